@@ -1,0 +1,32 @@
+import type { Metadata } from "next";
+import { redirect } from "next/navigation";
+import { currentActor } from "@/lib/auth/guard";
+import { SignInForm } from "@/components/auth/sign-in-form";
+
+export const metadata: Metadata = { title: "Sign in" };
+
+function safeCallback(value: string | string[] | undefined): string {
+  const v = Array.isArray(value) ? value[0] : value;
+  return v && v.startsWith("/") && !v.startsWith("//") ? v : "/jobs";
+}
+
+export default async function SignInPage({ searchParams }: PageProps<"/sign-in">) {
+  const params = await searchParams;
+  const callbackUrl = safeCallback(params.callbackUrl);
+  if (await currentActor()) redirect(callbackUrl);
+  const initialError = typeof params.error === "string" && params.error !== "CredentialsSignin" ? params.error : null;
+  return (
+    <main className="flex min-h-dvh items-center justify-center bg-ink p-4">
+      <div className="w-full max-w-sm rounded-2xl bg-paper p-6 shadow-xl sm:p-8">
+        <div className="mb-6 flex items-center gap-3">
+          <span aria-hidden className="inline-block h-9 w-9 rounded-full border-[6px] border-amber-500" />
+          <div>
+            <h1 className="text-2xl font-bold tracking-tight">Grindfade</h1>
+            <p className="text-sm text-stone-600">Sign in with your shop account</p>
+          </div>
+        </div>
+        <SignInForm callbackUrl={callbackUrl} initialError={initialError} />
+      </div>
+    </main>
+  );
+}

@@ -1,0 +1,28 @@
+import { asc, eq } from "drizzle-orm";
+import type { Db } from "@/db/client";
+import { users, type UserRole } from "@/db/schema";
+
+export interface PersonRow {
+  id: string;
+  name: string;
+  email: string;
+  role: UserRole;
+  active: boolean;
+  lockedUntil: string | null;
+}
+
+export async function listPeople(db: Db, shopId: string): Promise<PersonRow[]> {
+  const rows = await db
+    .select({
+      id: users.id,
+      name: users.name,
+      email: users.email,
+      role: users.role,
+      active: users.active,
+      lockedUntil: users.lockedUntil,
+    })
+    .from(users)
+    .where(eq(users.shopId, shopId))
+    .orderBy(asc(users.name));
+  return rows.map((r) => ({ ...r, lockedUntil: r.lockedUntil ? r.lockedUntil.toISOString() : null }));
+}

@@ -1,0 +1,372 @@
+// The one Grindfade schema. The same tables and migrations run on embedded PGlite and on a
+// PostgreSQL server, so only portable pg-core features are used here.
+import { sql } from "drizzle-orm";
+import {
+  bigserial,
+  boolean,
+  check,
+  date,
+  index,
+  integer,
+  jsonb,
+  pgEnum,
+  pgTable,
+  real,
+  text,
+  timestamp,
+  unique,
+  uuid,
+} from "drizzle-orm/pg-core";
+
+export const userRole = pgEnum("user_role", ["technician", "supervisor", "admin"]);
+
+// Our own life-cycle names for a work order.
+export const jobStatus = pgEnum("job_status", [
+  "queued",
+  "at_bench",
+  "awaiting_audit",
+  "signed_off",
+  "collected",
+]);
+
+export const bankArrangement = pgEnum("bank_arrangement", ["inline", "v"]);
+export const valveKind = pgEnum("valve_kind", ["intake", "exhaust"]);
+
+// Our own names for where a seat stands; "stalled" is a seat whose fade curve flattened high.
+export const seatState = pgEnum("seat_state", [
+  "waiting",
+  "lapping",
+  "settled",
+  "stalled",
+  "approved",
+  "sent_back",
+]);
+
+export const lappingStage = pgEnum("lapping_stage", ["coarse", "fine"]);
+
+export const measurementKind = pgEnum("measurement_kind", [
+  "journal_clearance",
+  "cap_torque",
+  "seat_contact_width",
+  "valve_stem_diameter",
+  "stem_guide_clearance",
+  "installed_spring_height",
+  "spring_load",
+  "deck_flatness",
+]);
+
+const timestamps = {
+  createdAt: timestamp("created_at", { withTimezone: true }).notNull().defaultNow(),
+  updatedAt: timestamp("updated_at", { withTimezone: true }).notNull().defaultNow(),
+};
+
+export const shops = pgTable("shops", {
+  id: uuid("id").primaryKey().defaultRandom(),
+  name: text("name").notNull().unique(),
+  address: text("address"),
+  ...timestamps,
+});
+
+export const users = pgTable(
+  "users",
+  {
+    id: uuid("id").primaryKey().defaultRandom(),
+    shopId: uuid("shop_id")
+      .notNull()
+      .references(() => shops.id, { onDelete: "restrict" }),
+    email: text("email").notNull(),
+    name: text("name").notNull(),
+    role: userRole("role").notNull().default("technician"),
+    passwordHash: text("password_hash").notNull(),
+    active: boolean("active").notNull().default(true),
+    failedSignIns: integer("failed_sign_ins").notNull().default(0),
+    lockedUntil: timestamp("locked_until", { withTimezone: true }),
+    ...timestamps,
+  },
+  (t) => [
+    unique("users_email_unique").on(t.email),
+    check("users_email_lowercase", sql`${t.email} = lower(${t.email})`),
+    check("users_failed_sign_ins_range", sql`${t.failedSignIns} >= 0`),
+  ],
+);
+
+export const customers = pgTable(
+  "customers",
+  {
+    id: uuid("id").primaryKey().defaultRandom(),
+    shopId: uuid("shop_id")
+      .notNull()
+      .references(() => shops.id, { onDelete: "restrict" }),
+    name: text("name").notNull(),
+    email: text("email"),
+    phone: text("phone"),
+    ...timestamps,
+  },
+  (t) => [unique("customers_shop_name_unique").on(t.shopId, t.name)],
+);
+
+export const jobs = pgTable(
+  "jobs",
+  {
+    id: uuid("id").primaryKey().defaultRandom(),
+    shopId: uuid("shop_id")
+      .notNull()
+      .references(() => shops.id, { onDelete: "restrict" }),
+    number: text("number").notNull(),
+    customerId: uuid("customer_id")
+      .notNull()
+      .references(() => customers.id, { onDelete: "restrict" }),
+    engineDescription: text("engine_description").notNull(),
+    status: jobStatus("status").notNull().default("queued"),
+    assignedTechnicianId: uuid("assigned_technician_id").references(() => users.id, {
+      onDelete: "set null",
+    }),
+    promisedOn: date("promised_on"),
+    notes: text("notes"),
+    ...timestamps,
+  },
+  (t) => [
+    unique("jobs_number_unique").on(t.number),
+    index("jobs_status_idx").on(t.status),
+    index("jobs_technician_idx").on(t.assignedTechnicianId),
+  ],
+);
+
+export const heads = pgTable(
+  "heads",
+  {
+    id: uuid("id").primaryKey().defaultRandom(),
+    jobId: uuid("job_id")
+      .notNull()
+      .references(() => jobs.id, { onDelete: "cascade" }),
+    label: text("label").notNull(),
+    arrangement: bankArrangement("arrangement").notNull().default("inline"),
+    cylinderCount: integer("cylinder_count").notNull(),
+    intakeValvesPerCylinder: integer("intake_valves_per_cylinder").notNull(),
+    exhaustValvesPerCylinder: integer("exhaust_valves_per_cylinder").notNull(),
+    camshaftCount: integer("camshaft_count").notNull(),
+    journalsPerCamshaft: integer("journals_per_camshaft").notNull(),
+    ...timestamps,
+  },
+  (t) => [
+    unique("heads_job_label_unique").on(t.jobId, t.label),
+    check("heads_cylinder_count_range", sql`${t.cylinderCount} between 1 and 16`),
+    check("heads_intake_valves_range", sql`${t.intakeValvesPerCylinder} between 1 and 3`),
+    check("heads_exhaust_valves_range", sql`${t.exhaustValvesPerCylinder} between 1 and 3`),
+    check("heads_camshaft_count_range", sql`${t.camshaftCount} between 0 and 4`),
+    check("heads_journals_range", sql`${t.journalsPerCamshaft} between 0 and 12`),
+    check(
+      "heads_v_needs_even_cylinders",
+      sql`${t.arrangement} = 'inline' or ${t.cylinderCount} % 2 = 0`,
+    ),
+  ],
+);
+
+export const camshafts = pgTable(
+  "camshafts",
+  {
+    id: uuid("id").primaryKey().defaultRandom(),
+    headId: uuid("head_id")
+      .notNull()
+      .references(() => heads.id, { onDelete: "cascade" }),
+    position: integer("position").notNull(),
+    label: text("label").notNull(),
+    journalCount: integer("journal_count").notNull(),
+  },
+  (t) => [
+    unique("camshafts_head_position_unique").on(t.headId, t.position),
+    check("camshafts_position_range", sql`${t.position} >= 1`),
+    check("camshafts_journal_count_range", sql`${t.journalCount} between 1 and 12`),
+  ],
+);
+
+export const journals = pgTable(
+  "journals",
+  {
+    id: uuid("id").primaryKey().defaultRandom(),
+    camshaftId: uuid("camshaft_id")
+      .notNull()
+      .references(() => camshafts.id, { onDelete: "cascade" }),
+    // Numbered from the timing end, as the caps are marked.
+    position: integer("position").notNull(),
+  },
+  (t) => [
+    unique("journals_camshaft_position_unique").on(t.camshaftId, t.position),
+    check("journals_position_range", sql`${t.position} >= 1`),
+  ],
+);
+
+export const seats = pgTable(
+  "seats",
+  {
+    id: uuid("id").primaryKey().defaultRandom(),
+    headId: uuid("head_id")
+      .notNull()
+      .references(() => heads.id, { onDelete: "cascade" }),
+    // Cylinder number counted from the timing end.
+    cylinder: integer("cylinder").notNull(),
+    kind: valveKind("kind").notNull(),
+    // 1-based position among this cylinder's valves of the same kind.
+    position: integer("position").notNull(),
+    state: seatState("state").notNull().default("waiting"),
+    ...timestamps,
+  },
+  (t) => [
+    unique("seats_head_position_unique").on(t.headId, t.cylinder, t.kind, t.position),
+    check("seats_cylinder_range", sql`${t.cylinder} >= 1`),
+    check("seats_position_range", sql`${t.position} between 1 and 3`),
+  ],
+);
+
+export const valves = pgTable(
+  "valves",
+  {
+    id: uuid("id").primaryKey().defaultRandom(),
+    headId: uuid("head_id")
+      .notNull()
+      .references(() => heads.id, { onDelete: "cascade" }),
+    // A valve lives with one seat; null only while it sits on the rack between seats.
+    seatId: uuid("seat_id").references(() => seats.id, { onDelete: "set null" }),
+    tag: text("tag").notNull(),
+    partNumber: text("part_number"),
+    serial: text("serial"),
+    ...timestamps,
+  },
+  (t) => [
+    unique("valves_head_tag_unique").on(t.headId, t.tag),
+    unique("valves_seat_unique").on(t.seatId),
+  ],
+);
+
+export const lappingSessions = pgTable(
+  "lapping_sessions",
+  {
+    id: uuid("id").primaryKey().defaultRandom(),
+    seatId: uuid("seat_id")
+      .notNull()
+      .references(() => seats.id, { onDelete: "cascade" }),
+    stage: lappingStage("stage").notNull(),
+    technicianId: uuid("technician_id")
+      .notNull()
+      .references(() => users.id, { onDelete: "restrict" }),
+    sampleRateHz: integer("sample_rate_hz"),
+    noiseFloorDb: real("noise_floor_db"),
+    startedAt: timestamp("started_at", { withTimezone: true }).notNull().defaultNow(),
+    endedAt: timestamp("ended_at", { withTimezone: true }),
+    recordingKey: text("recording_key"),
+  },
+  (t) => [
+    index("lapping_sessions_seat_idx").on(t.seatId, t.stage),
+    check(
+      "lapping_sessions_sample_rate_range",
+      sql`${t.sampleRateHz} is null or ${t.sampleRateHz} between 8000 and 192000`,
+    ),
+    check(
+      "lapping_sessions_end_after_start",
+      sql`${t.endedAt} is null or ${t.endedAt} >= ${t.startedAt}`,
+    ),
+  ],
+);
+
+export const strokes = pgTable(
+  "strokes",
+  {
+    id: uuid("id").primaryKey().defaultRandom(),
+    sessionId: uuid("session_id")
+      .notNull()
+      .references(() => lappingSessions.id, { onDelete: "cascade" }),
+    // Generated on the phone, so a resend of the same stroke is recognised and ignored.
+    clientId: uuid("client_id").notNull(),
+    index: integer("index").notNull(),
+    startS: real("start_s").notNull(),
+    endS: real("end_s").notNull(),
+    onsetDb: real("onset_db").notNull(),
+    bodyDb: real("body_db").notNull(),
+    contrastDb: real("contrast_db").notNull(),
+    flags: text("flags").array().notNull().default(sql`'{}'::text[]`),
+    createdAt: timestamp("created_at", { withTimezone: true }).notNull().defaultNow(),
+  },
+  (t) => [
+    unique("strokes_session_client_unique").on(t.sessionId, t.clientId),
+    index("strokes_session_idx").on(t.sessionId, t.index),
+    check("strokes_index_range", sql`${t.index} >= 1`),
+    check("strokes_times", sql`${t.startS} >= 0 and ${t.endS} > ${t.startS}`),
+    check("strokes_contrast_range", sql`${t.contrastDb} between -60 and 60`),
+  ],
+);
+
+export const measurements = pgTable(
+  "measurements",
+  {
+    id: uuid("id").primaryKey().defaultRandom(),
+    headId: uuid("head_id")
+      .notNull()
+      .references(() => heads.id, { onDelete: "cascade" }),
+    kind: measurementKind("kind").notNull(),
+    seatId: uuid("seat_id").references(() => seats.id, { onDelete: "cascade" }),
+    journalId: uuid("journal_id").references(() => journals.id, { onDelete: "cascade" }),
+    // Stored in SI base units of the kind (mm, N·m, N); the unit entered is kept for display.
+    value: real("value").notNull(),
+    enteredUnit: text("entered_unit").notNull(),
+    specMin: real("spec_min"),
+    specMax: real("spec_max"),
+    serviceLimit: real("service_limit"),
+    method: text("method"),
+    note: text("note"),
+    recordedById: uuid("recorded_by_id")
+      .notNull()
+      .references(() => users.id, { onDelete: "restrict" }),
+    ...timestamps,
+  },
+  (t) => [
+    index("measurements_head_idx").on(t.headId, t.kind),
+    check("measurements_value_nonnegative", sql`${t.value} >= 0`),
+    check(
+      "measurements_spec_order",
+      sql`${t.specMin} is null or ${t.specMax} is null or ${t.specMin} <= ${t.specMax}`,
+    ),
+  ],
+);
+
+// Append-only: a trigger in the migrations refuses UPDATE and DELETE for everyone.
+export const auditEntries = pgTable(
+  "audit_entries",
+  {
+    id: bigserial("id", { mode: "number" }).primaryKey(),
+    at: timestamp("at", { withTimezone: true }).notNull().defaultNow(),
+    actorId: uuid("actor_id").references(() => users.id, { onDelete: "restrict" }),
+    action: text("action").notNull(),
+    entityType: text("entity_type").notNull(),
+    entityId: text("entity_id").notNull(),
+    jobId: uuid("job_id").references(() => jobs.id, { onDelete: "restrict" }),
+    before: jsonb("before"),
+    after: jsonb("after"),
+  },
+  (t) => [
+    index("audit_entries_entity_idx").on(t.entityType, t.entityId),
+    index("audit_entries_job_idx").on(t.jobId),
+    index("audit_entries_actor_idx").on(t.actorId, t.at),
+  ],
+);
+
+export type Shop = typeof shops.$inferSelect;
+export type User = typeof users.$inferSelect;
+export type NewUser = typeof users.$inferInsert;
+export type Customer = typeof customers.$inferSelect;
+export type Job = typeof jobs.$inferSelect;
+export type NewJob = typeof jobs.$inferInsert;
+export type Head = typeof heads.$inferSelect;
+export type NewHead = typeof heads.$inferInsert;
+export type Camshaft = typeof camshafts.$inferSelect;
+export type Journal = typeof journals.$inferSelect;
+export type Seat = typeof seats.$inferSelect;
+export type Valve = typeof valves.$inferSelect;
+export type LappingSession = typeof lappingSessions.$inferSelect;
+export type Stroke = typeof strokes.$inferSelect;
+export type NewStroke = typeof strokes.$inferInsert;
+export type Measurement = typeof measurements.$inferSelect;
+export type AuditEntry = typeof auditEntries.$inferSelect;
+export type UserRole = (typeof userRole.enumValues)[number];
+export type JobStatus = (typeof jobStatus.enumValues)[number];
+export type SeatState = (typeof seatState.enumValues)[number];
+export type LappingStage = (typeof lappingStage.enumValues)[number];

@@ -1,0 +1,229 @@
+// The invented demo scenario: Millrace Head Works, a small cylinder-head shop, with three
+// customers and heads on the bench. Everything here is made up for the demo; no real people,
+// shops or engines. Seeding runs only on an empty database, so it is safe to call every start.
+import bcrypt from "bcryptjs";
+import { sql } from "drizzle-orm";
+import type { Db } from "./client";
+import {
+  auditEntries,
+  camshafts,
+  customers,
+  heads,
+  jobs,
+  journals,
+  seats,
+  shops,
+  users,
+  valves,
+  type JobStatus,
+  type SeatState,
+  type UserRole,
+} from "./schema";
+import { camshaftLabels, seatCode, seatPositions, type HeadLayout } from "@/lib/heads/layout";
+
+export const DEMO_SHOP_NAME = "Millrace Head Works";
+
+/** Development-only logins, printed in README. */
+export const DEMO_USERS: ReadonlyArray<{
+  email: string;
+  name: string;
+  role: UserRole;
+  password: string;
+}> = [
+  { email: "ines@millrace.example", name: "Ines Marlow", role: "technician", password: "lap-it-in-1" },
+  { email: "dov@millrace.example", name: "Dov Achterberg", role: "technician", password: "lap-it-in-2" },
+  { email: "rhea@millrace.example", name: "Rhea Castellan", role: "supervisor", password: "sign-it-off" },
+  { email: "admin@millrace.example", name: "Tobin Pell", role: "admin", password: "keys-to-the-shop" },
+];
+
+interface DemoJob {
+  number: string;
+  customer: string;
+  engine: string;
+  status: JobStatus;
+  technician: string | null;
+  promisedInDays: number;
+  notes: string | null;
+  head: { label: string } & HeadLayout;
+  seatStates?: (code: string) => SeatState;
+}
+
+const DEMO_CUSTOMERS = [
+  { name: "Corrin Vale Fleet Services", email: "workshop@corrinvale.example", phone: "0161 555 0142" },
+  { name: "Juniper Oyelaran", email: "juniper.o@mail.example", phone: "07700 900 318" },
+  { name: "Saltmarsh Vintage Motor Club", email: "secretary@saltmarsh-vmc.example", phone: null },
+];
+
+const DEMO_JOBS: DemoJob[] = [
+  {
+    number: "MHW-0141",
+    customer: "Corrin Vale Fleet Services",
+    engine: "Varda VX18 1.8 inline-4, twin cam, 16 valves (van, 212,000 km)",
+    status: "at_bench",
+    technician: "ines@millrace.example",
+    promisedInDays: 3,
+    notes: "New valves and guides fitted. Customer wants the report by e-mail.",
+    head: {
+      label: "Cylinder head",
+      arrangement: "inline",
+      cylinderCount: 4,
+      intakeValvesPerCylinder: 2,
+      exhaustValvesPerCylinder: 2,
+      camshaftCount: 2,
+      journalsPerCamshaft: 5,
+    },
+    seatStates: (code) =>
+      code.startsWith("1") ? "settled" : code === "2I1" || code === "2I2" ? "lapping" : "waiting",
+  },
+  {
+    number: "MHW-0142",
+    customer: "Juniper Oyelaran",
+    engine: "Halden HV30 3.0 V6, four cams, 24 valves (saloon, overheated once)",
+    status: "queued",
+    technician: "dov@millrace.example",
+    promisedInDays: 9,
+    notes: "Check both heads for flatness before any seat work.",
+    head: {
+      label: "Head pair",
+      arrangement: "v",
+      cylinderCount: 6,
+      intakeValvesPerCylinder: 2,
+      exhaustValvesPerCylinder: 2,
+      camshaftCount: 4,
+      journalsPerCamshaft: 4,
+    },
+  },
+  {
+    number: "MHW-0143",
+    customer: "Saltmarsh Vintage Motor Club",
+    engine: "Tor T14 1.4 inline-4, single cam, 8 valves (club rally car)",
+    status: "awaiting_audit",
+    technician: "ines@millrace.example",
+    promisedInDays: 1,
+    notes: null,
+    head: {
+      label: "Cylinder head",
+      arrangement: "inline",
+      cylinderCount: 4,
+      intakeValvesPerCylinder: 1,
+      exhaustValvesPerCylinder: 1,
+      camshaftCount: 1,
+      journalsPerCamshaft: 5,
+    },
+    seatStates: () => "settled",
+  },
+];
+
+function isoDateInDays(days: number): string {
+  const d = new Date();
+  d.setUTCDate(d.getUTCDate() + days);
+  return d.toISOString().slice(0, 10);
+}
+
+/** Seeds the demo shop if, and only if, the database has no shop yet. Returns whether it did. */
+export async function seedDemoShop(db: Db): Promise<boolean> {
+  const existing = await db.select({ n: sql<number>`count(*)::int` }).from(shops);
+  if ((existing[0]?.n ?? 0) > 0) return false;
+
+  const hashes = await Promise.all(DEMO_USERS.map((u) => bcrypt.hash(u.password, 10)));
+
+  await db.transaction(async (tx) => {
+    // A second process racing us would fail on the unique shop name and roll back cleanly.
+    const [shop] = await tx
+      .insert(shops)
+      .values({ name: DEMO_SHOP_NAME, address: "Unit 4, Weir Yard, Lockbridge" })
+      .returning();
+    if (!shop) throw new Error("demo shop insert returned nothing");
+
+    const insertedUsers = await tx
+      .insert(users)
+      .values(
+        DEMO_USERS.map((u, i) => ({
+          shopId: shop.id,
+          email: u.email,
+          name: u.name,
+          role: u.role,
+          passwordHash: hashes[i]!,
+        })),
+      )
+      .returning();
+    const userByEmail = new Map(insertedUsers.map((u) => [u.email, u]));
+
+    const insertedCustomers = await tx
+      .insert(customers)
+      .values(DEMO_CUSTOMERS.map((c) => ({ ...c, shopId: shop.id })))
+      .returning();
+    const customerByName = new Map(insertedCustomers.map((c) => [c.name, c]));
+
+    for (const j of DEMO_JOBS) {
+      const [job] = await tx
+        .insert(jobs)
+        .values({
+          shopId: shop.id,
+          number: j.number,
+          customerId: customerByName.get(j.customer)!.id,
+          engineDescription: j.engine,
+          status: j.status,
+          assignedTechnicianId: j.technician ? userByEmail.get(j.technician)!.id : null,
+          promisedOn: isoDateInDays(j.promisedInDays),
+          notes: j.notes,
+        })
+        .returning();
+      const { label, ...layout } = j.head;
+      const [head] = await tx
+        .insert(heads)
+        .values({ jobId: job!.id, label, ...layout })
+        .returning();
+
+      const labels = camshaftLabels(layout);
+      for (let c = 0; c < labels.length; c++) {
+        const [cam] = await tx
+          .insert(camshafts)
+          .values({
+            headId: head!.id,
+            position: c + 1,
+            label: labels[c]!,
+            journalCount: layout.journalsPerCamshaft,
+          })
+          .returning();
+        await tx.insert(journals).values(
+          Array.from({ length: layout.journalsPerCamshaft }, (_, k) => ({
+            camshaftId: cam!.id,
+            position: k + 1,
+          })),
+        );
+      }
+
+      const positions = seatPositions(layout);
+      const insertedSeats = await tx
+        .insert(seats)
+        .values(
+          positions.map((p) => ({
+            headId: head!.id,
+            ...p,
+            state: j.seatStates?.(seatCode(p)) ?? "waiting",
+          })),
+        )
+        .returning();
+      await tx.insert(valves).values(
+        insertedSeats.map((s, k) => ({
+          headId: head!.id,
+          seatId: s.id,
+          tag: seatCode(s),
+          partNumber: s.kind === "intake" ? "VI-3301" : "VE-3302",
+          serial: `${j.number.slice(-4)}-${String(k + 1).padStart(2, "0")}`,
+        })),
+      );
+
+      await tx.insert(auditEntries).values({
+        actorId: userByEmail.get("admin@millrace.example")!.id,
+        action: "job.created",
+        entityType: "job",
+        entityId: job!.id,
+        jobId: job!.id,
+        after: { number: j.number, status: j.status, source: "demo seed" },
+      });
+    }
+  });
+  return true;
+}

@@ -1,0 +1,20 @@
+// The shape every server action returns to its form.
+import { ZodError } from "zod";
+import { AppError, fieldErrorsOf } from "@/lib/errors";
+
+export interface ActionState {
+  ok: boolean;
+  message: string | null;
+  fieldErrors: Record<string, string[]>;
+}
+
+export const initialActionState: ActionState = { ok: false, message: null, fieldErrors: {} };
+
+export function actionFailure(err: unknown): ActionState {
+  if (err instanceof ZodError) {
+    return { ok: false, message: "Check the highlighted fields.", fieldErrors: fieldErrorsOf(err) };
+  }
+  if (err instanceof AppError) return { ok: false, message: err.message, fieldErrors: {} };
+  console.error(err);
+  return { ok: false, message: "The change could not be saved. Nothing was changed; try again.", fieldErrors: {} };
+}

@@ -1,0 +1,109 @@
+"use server";
+
+import bcrypt from "bcryptjs";
+import { and, eq, ne, sql } from "drizzle-orm";
+import { revalidatePath } from "next/cache";
+import { getDb } from "@/db/client";
+import { users } from "@/db/schema";
+import { requireActor } from "@/lib/auth/guard";
+import { recordAudit } from "@/lib/audit";
+import { BadRequestError, ConflictError, NotFoundError } from "@/lib/errors";
+import { changeRoleSchema, createUserSchema, resetPasswordSchema } from "@/lib/validations/users";
+import { actionFailure, type ActionState } from "./state";
+
+function isUniqueViolation(err: unknown): boolean {
+  const e = err as { code?: string; cause?: { code?: string } };
+  return e?.code === "23505" || e?.cause?.code === "23505";
+}
+
+export async function createUser(input: unknown): Promise<ActionState> {
+  try {
+    const actor = await requireActor("users:manage");
+    const data = createUserSchema.parse(input);
+    const passwordHash = await bcrypt.hash(data.password, 10);
+    const db = await getDb();
+    await db.transaction(async (tx) => {
+      const [created] = await tx
+        .insert(users)
+        .values({ shopId: actor.shopId, name: data.name, email: data.email, role: data.role, passwordHash })
+        .returning({ id: users.id });
+      await recordAudit(tx, {
+        actorId: actor.id,
+        action: "user.created",
+        entityType: "user",
+        entityId: created!.id,
+        after: { name: data.name, email: data.email, role: data.role },
+      });
+    });
+    revalidatePath("/admin/people");
+    return { ok: true, message: `${data.name} can now sign in as ${data.role}.`, fieldErrors: {} };
+  } catch (err) {
+    if (isUniqueViolation(err)) {
+      return { ok: false, message: "Someone already uses that e-mail address.", fieldErrors: { email: ["Already in use."] } };
+    }
+    return actionFailure(err);
+  }
+}
+
+export async function resetPassword(_prev: ActionState, formData: FormData): Promise<ActionState> {
+  try {
+    const actor = await requireActor("users:manage");
+    const data = resetPasswordSchema.parse({ id: formData.get("id"), password: formData.get("password") });
+    const passwordHash = await bcrypt.hash(data.password, 10);
+    const db = await getDb();
+    await db.transaction(async (tx) => {
+      const [updated] = await tx
+        .update(users)
+        .set({ passwordHash, failedSignIns: 0, lockedUntil: null, updatedAt: new Date() })
+        .where(and(eq(users.id, data.id), eq(users.shopId, actor.shopId)))
+        .returning({ id: users.id });
+      if (!updated) throw new NotFoundError("That person is not in your shop.");
+      // The password itself is never written to the audit trail.
+      await recordAudit(tx, { actorId: actor.id, action: "user.password_reset", entityType: "user", entityId: data.id });
+    });
+    revalidatePath("/admin/people");
+    return { ok: true, message: "Password reset; any lock on the account is cleared.", fieldErrors: {} };
+  } catch (err) {
+    return actionFailure(err);
+  }
+}
+
+export async function changeRole(_prev: ActionState, formData: FormData): Promise<ActionState> {
+  try {
+    const actor = await requireActor("users:manage");
+    const data = changeRoleSchema.parse({ id: formData.get("id"), role: formData.get("role") });
+    if (data.id === actor.id) {
+      throw new BadRequestError("You cannot change your own role; ask another admin.");
+    }
+    const db = await getDb();
+    await db.transaction(async (tx) => {
+      const [before] = await tx
+        .select({ role: users.role })
+        .from(users)
+        .where(and(eq(users.id, data.id), eq(users.shopId, actor.shopId)))
+        .for("update");
+      if (!before) throw new NotFoundError("That person is not in your shop.");
+      if (before.role === data.role) return;
+      if (before.role === "admin") {
+        const [others] = await tx
+          .select({ n: sql<number>`count(*)::int` })
+          .from(users)
+          .where(and(eq(users.shopId, actor.shopId), eq(users.role, "admin"), ne(users.id, data.id), eq(users.active, true)));
+        if ((others?.n ?? 0) === 0) throw new ConflictError("The shop needs at least one admin.");
+      }
+      await tx.update(users).set({ role: data.role, updatedAt: new Date() }).where(eq(users.id, data.id));
+      await recordAudit(tx, {
+        actorId: actor.id,
+        action: "user.role_changed",
+        entityType: "user",
+        entityId: data.id,
+        before: { role: before.role },
+        after: { role: data.role },
+      });
+    });
+    revalidatePath("/admin/people");
+    return { ok: true, message: "Role changed. It applies from their next page.", fieldErrors: {} };
+  } catch (err) {
+    return actionFailure(err);
+  }
+}

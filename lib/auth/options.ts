@@ -1,0 +1,55 @@
+// next-auth configuration: e-mail and password against the users table, JWT sessions that
+// carry the user's id and role.
+import type { NextAuthOptions } from "next-auth";
+import CredentialsProvider from "next-auth/providers/credentials";
+import { getDb } from "@/db/client";
+import { serverEnv } from "@/lib/env";
+import { signInSchema } from "@/lib/validations/auth";
+import { checkCredentials, lockedMessage } from "./credentials";
+import { authSecret } from "./secret";
+
+export const authOptions: NextAuthOptions = {
+  secret: authSecret(),
+  session: { strategy: "jwt", maxAge: 12 * 60 * 60 },
+  pages: { signIn: "/sign-in", error: "/sign-in" },
+  providers: [
+    CredentialsProvider({
+      name: "Shop account",
+      credentials: {
+        email: { label: "E-mail", type: "email" },
+        password: { label: "Password", type: "password" },
+      },
+      async authorize(raw) {
+        const parsed = signInSchema.safeParse(raw ?? {});
+        if (!parsed.success) {
+          throw new Error(parsed.error.issues[0]?.message ?? "Enter your e-mail and password.");
+        }
+        const env = serverEnv();
+        const result = await checkCredentials(await getDb(), parsed.data.email, parsed.data.password, {
+          maxFailures: env.GRINDFADE_SIGNIN_MAX_FAILURES,
+          lockMinutes: env.GRINDFADE_SIGNIN_LOCK_MINUTES,
+        });
+        if (result.ok) {
+          return { id: result.user.id, name: result.user.name, email: result.user.email, role: result.user.role };
+        }
+        if (result.reason === "locked") throw new Error(lockedMessage(result.retryInMinutes));
+        throw new Error("Wrong e-mail or password.");
+      },
+    }),
+  ],
+  callbacks: {
+    async jwt({ token, user }) {
+      if (user) {
+        token.uid = user.id;
+        token.role = user.role;
+      }
+      return token;
+    },
+    async session({ session, token }) {
+      if (token.uid && token.role) {
+        session.user = { ...session.user, id: token.uid, role: token.role };
+      }
+      return session;
+    },
+  },
+};

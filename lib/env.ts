@@ -1,0 +1,46 @@
+// Server configuration, parsed once with zod so that a bad value fails loudly at start-up.
+import path from "node:path";
+import { z } from "zod";
+
+const schema = z.object({
+  DATABASE_URL: z
+    .string()
+    .trim()
+    .min(1)
+    .refine((v) => /^postgres(ql)?:\/\//.test(v), {
+      message: "DATABASE_URL must start with postgres:// or postgresql://",
+    })
+    .optional(),
+  GRINDFADE_DATA_DIR: z.string().trim().min(1).default(".data"),
+  GRINDFADE_SEED: z.enum(["demo", "none"]).default("demo"),
+  GRINDFADE_SIGNIN_MAX_FAILURES: z.coerce.number().int().min(1).max(100).default(5),
+  GRINDFADE_SIGNIN_LOCK_MINUTES: z.coerce.number().int().min(1).max(24 * 60).default(15),
+  NEXTAUTH_SECRET: z.string().min(16).optional(),
+  NEXTAUTH_URL: z.string().url().optional(),
+});
+
+export type ServerEnv = z.infer<typeof schema> & { dataDir: string; pgliteDir: string };
+
+let cached: ServerEnv | null = null;
+
+export function serverEnv(): ServerEnv {
+  if (cached) return cached;
+  const raw = Object.fromEntries(
+    Object.entries(process.env).filter(([, v]) => v !== undefined && v !== ""),
+  );
+  const parsed = schema.safeParse(raw);
+  if (!parsed.success) {
+    const first = parsed.error.issues[0];
+    throw new Error(
+      `Configuration error: ${first?.path.join(".") ?? "environment"} — ${first?.message ?? "invalid"}`,
+    );
+  }
+  const dataDir = path.resolve(parsed.data.GRINDFADE_DATA_DIR);
+  cached = { ...parsed.data, dataDir, pgliteDir: path.join(dataDir, "pglite") };
+  return cached;
+}
+
+/** For tests that change the environment between cases. */
+export function resetServerEnvCache(): void {
+  cached = null;
+}

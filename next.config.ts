@@ -1,0 +1,10 @@
+import type { NextConfig } from "next";
+
+const nextConfig: NextConfig = {
+  // PGlite ships WebAssembly and data files that must be loaded from node_modules at run time.
+  serverExternalPackages: ["@electric-sql/pglite", "pg"],
+  poweredByHeader: false,
+  typedRoutes: false,
+};
+
+export default nextConfig;
