@@ -1,0 +1,57 @@
+// Fresh databases for tests: a PGlite directory of its own, or a new database on the
+// PostgreSQL server named by TEST_DATABASE_URL.
+import fs from "node:fs";
+import os from "node:os";
+import path from "node:path";
+import { openDatabase, type DatabaseHandle } from "@/db/client";
+
+export interface TestDatabase extends DatabaseHandle {
+  cleanup(): Promise<void>;
+  dir?: string;
+}
+
+export async function freshPglite(): Promise<TestDatabase> {
+  const dir = fs.mkdtempSync(path.join(os.tmpdir(), "grindfade-test-"));
+  const pgliteDir = path.join(dir, "pglite");
+  const handle = await openDatabase({ pgliteDir });
+  return {
+    ...handle,
+    dir: pgliteDir,
+    cleanup: async () => {
+      await handle.close();
+      fs.rmSync(dir, { recursive: true, force: true });
+    },
+  };
+}
+
+/** The server under test, or null when none was given (CI always gives one). */
+export function serverUrl(): string | null {
+  const url = process.env.TEST_DATABASE_URL;
+  if (url) return url;
+  if (process.env.CI) {
+    throw new Error("TEST_DATABASE_URL is not set: CI must provide a PostgreSQL server for these tests.");
+  }
+  return null;
+}
+
+export async function freshServerDatabase(baseUrl: string): Promise<TestDatabase> {
+  const { Client } = await import("pg");
+  const name = `grindfade_test_${process.pid}_${Math.random().toString(36).slice(2, 8)}`;
+  const admin = new Client({ connectionString: baseUrl });
+  await admin.connect();
+  await admin.query(`CREATE DATABASE ${name}`);
+  await admin.end();
+  const url = new URL(baseUrl);
+  url.pathname = `/${name}`;
+  const handle = await openDatabase({ databaseUrl: url.toString() });
+  return {
+    ...handle,
+    cleanup: async () => {
+      await handle.close();
+      const c = new Client({ connectionString: baseUrl });
+      await c.connect();
+      await c.query(`DROP DATABASE IF EXISTS ${name} WITH (FORCE)`);
+      await c.end();
+    },
+  };
+}
