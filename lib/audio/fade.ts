@@ -1,0 +1,111 @@
+// The fade curve: stroke-by-stroke contrast fitted by a decay toward a floor,
+//   contrast(k) = floorDb + amplitudeDb * exp(-(k - 1) / decayStrokes),
+// by least squares. For a fixed decay the model is linear in floor and
+// amplitude, so the fit is a one-dimensional search over the decay with a
+// closed-form solve inside — no iterative solver to diverge on a short curve.
+
+export interface FadeFit {
+  floorDb: number;
+  amplitudeDb: number;
+  /** Strokes for the excess over the floor to fall by a factor e. */
+  decayStrokes: number;
+  /** Root-mean-square residual, dB. */
+  rmsErrorDb: number;
+  strokes: number;
+}
+
+const MIN_DECAY_STROKES = 0.25;
+const MAX_DECAY_STROKES = 200;
+
+/** Fitted contrast at stroke number k (1-based). */
+export function fadeAt(fit: FadeFit, k: number): number {
+  return fit.floorDb + fit.amplitudeDb * Math.exp(-(k - 1) / fit.decayStrokes);
+}
+
+interface Solve {
+  floor: number;
+  amp: number;
+  sse: number;
+}
+
+function solveForDecay(y: ArrayLike<number>, decay: number): Solve {
+  const n = y.length;
+  let se = 0;
+  let see = 0;
+  let sy = 0;
+  let sey = 0;
+  for (let i = 0; i < n; i++) {
+    const e = Math.exp(-i / decay);
+    se += e;
+    see += e * e;
+    sy += y[i];
+    sey += e * y[i];
+  }
+  const det = n * see - se * se;
+  let floor: number;
+  let amp: number;
+  if (Math.abs(det) < 1e-12) {
+    floor = sy / n;
+    amp = 0;
+  } else {
+    amp = (n * sey - se * sy) / det;
+    floor = (sy - amp * se) / n;
+  }
+  // A curve that rises is not a fade; the best non-rising model is flat.
+  if (amp < 0) {
+    amp = 0;
+    floor = sy / n;
+  }
+  let sse = 0;
+  for (let i = 0; i < n; i++) {
+    const r = y[i] - (floor + amp * Math.exp(-i / decay));
+    sse += r * r;
+  }
+  return { floor, amp, sse };
+}
+
+/** Least-squares fade fit, or null with fewer than minStrokes values. */
+export function fitFade(contrastsDb: ArrayLike<number>, minStrokes = 3): FadeFit | null {
+  const n = contrastsDb.length;
+  if (n < Math.max(3, minStrokes)) return null;
+  for (let i = 0; i < n; i++) {
+    if (!Number.isFinite(contrastsDb[i])) throw new RangeError(`contrast of stroke ${i + 1} is not a finite number: ${contrastsDb[i]}`);
+  }
+  const lo = Math.log(MIN_DECAY_STROKES);
+  const hi = Math.log(MAX_DECAY_STROKES);
+  const steps = 60;
+  let bestT = lo;
+  let best = solveForDecay(contrastsDb, Math.exp(lo));
+  for (let s = 1; s <= steps; s++) {
+    const t = lo + ((hi - lo) * s) / steps;
+    const r = solveForDecay(contrastsDb, Math.exp(t));
+    if (r.sse < best.sse) {
+      best = r;
+      bestT = t;
+    }
+  }
+  // Golden-section refinement within one grid step either side.
+  const step = (hi - lo) / steps;
+  let a = Math.max(lo, bestT - step);
+  let b = Math.min(hi, bestT + step);
+  const g = (Math.sqrt(5) - 1) / 2;
+  for (let it = 0; it < 40; it++) {
+    const c = b - g * (b - a);
+    const d = a + g * (b - a);
+    if (solveForDecay(contrastsDb, Math.exp(c)).sse < solveForDecay(contrastsDb, Math.exp(d)).sse) b = d;
+    else a = c;
+  }
+  const tMid = (a + b) / 2;
+  const refined = solveForDecay(contrastsDb, Math.exp(tMid));
+  if (refined.sse <= best.sse) {
+    best = refined;
+    bestT = tMid;
+  }
+  return {
+    floorDb: best.floor,
+    amplitudeDb: best.amp,
+    decayStrokes: Math.exp(bestT),
+    rmsErrorDb: Math.sqrt(best.sse / n),
+    strokes: n,
+  };
+}

@@ -1,0 +1,101 @@
+// Framing and spectra: frame and hop sizes derived from the sample rate, the
+// Hann window, and a reusable fft.js real transform that turns a frame of
+// samples into a one-sided power spectrum scaled so that its bins sum to the
+// frame's mean-square level.
+
+import FFT from "fft.js";
+
+/** Power of two closest (on a log scale) to the target duration. */
+export function frameSizeFor(sampleRateHz: number, frameTargetMs: number): number {
+  const target = (sampleRateHz * frameTargetMs) / 1000;
+  const exponent = Math.max(4, Math.round(Math.log2(target)));
+  return 2 ** exponent;
+}
+
+export function hopSizeFor(sampleRateHz: number, hopMs: number): number {
+  return Math.max(1, Math.round((sampleRateHz * hopMs) / 1000));
+}
+
+/**
+ * Periodic Hann window: the DFT-even form, whose overlap-add at half-frame
+ * hops is exactly constant, which the period form is not.
+ */
+export function hannWindow(size: number): Float64Array {
+  const w = new Float64Array(size);
+  for (let i = 0; i < size; i++) w[i] = 0.5 - 0.5 * Math.cos((2 * Math.PI * i) / size);
+  return w;
+}
+
+/** First and last bin (inclusive) whose centre frequency lies in [lowHz, highHz]. */
+export function bandBins(sampleRateHz: number, size: number, lowHz: number, highHz: number): [number, number] {
+  const binHz = sampleRateHz / size;
+  const first = Math.max(0, Math.ceil(lowHz / binHz - 1e-9));
+  const last = Math.min(size / 2, Math.floor(highHz / binHz + 1e-9));
+  return [first, last];
+}
+
+/**
+ * One frame's worth of pre-allocated buffers. `analyze` overwrites them, so a
+ * single instance serves every frame of a recording without allocation.
+ */
+export class SpectrumFrame {
+  readonly size: number;
+  readonly bins: number;
+  readonly window: Float64Array;
+  /** |X[k]|, k = 0..size/2, for meyda's extractors (scale-free features). */
+  readonly amplitude: Float32Array;
+  /** Mean-square contribution of each bin: sum over all bins = mean square of the frame. */
+  readonly power: Float64Array;
+  private readonly fft: FFT;
+  private readonly input: Float64Array;
+  private readonly output: Float64Array;
+  private readonly powerScale: number;
+
+  constructor(size: number) {
+    if (!Number.isInteger(size) || size < 16 || (size & (size - 1)) !== 0) {
+      throw new RangeError(`frame size must be a power of two of at least 16, got ${size}`);
+    }
+    this.size = size;
+    this.bins = size / 2 + 1;
+    this.window = hannWindow(size);
+    this.fft = new FFT(size);
+    this.input = new Float64Array(size);
+    this.output = new Float64Array(2 * size);
+    this.amplitude = new Float32Array(this.bins);
+    this.power = new Float64Array(this.bins);
+    let sumW2 = 0;
+    for (let i = 0; i < size; i++) sumW2 += this.window[i] * this.window[i];
+    // Parseval: sum |X|^2 over all N bins = N * sum (w x)^2; dividing by the
+    // window's energy makes the estimate unbiased for a stationary signal.
+    this.powerScale = 1 / (size * sumW2);
+  }
+
+  /**
+   * Window samples[start .. start+size) and compute its spectrum. Samples
+   * past the end of the array count as zeros, so a frame never reads audio
+   * outside the view it was given.
+   */
+  analyze(samples: Float32Array, start: number): void {
+    const n = this.size;
+    const x = this.input;
+    const w = this.window;
+    const avail = Math.max(0, Math.min(n, samples.length - start));
+    for (let i = 0; i < avail; i++) x[i] = samples[start + i] * w[i];
+    for (let i = avail; i < n; i++) x[i] = 0;
+    // fft.js fills only bins 0..N/2 of a real transform; that is all we read.
+    this.fft.realTransform(this.output, x);
+    const out = this.output;
+    const amp = this.amplitude;
+    const pow = this.power;
+    const scale = this.powerScale;
+    const half = n / 2;
+    for (let k = 0; k <= half; k++) {
+      const re = out[2 * k];
+      const im = out[2 * k + 1];
+      const p = re * re + im * im;
+      amp[k] = Math.sqrt(p);
+      // Interior bins stand for their mirror image too.
+      pow[k] = (k === 0 || k === half ? p : 2 * p) * scale;
+    }
+  }
+}

@@ -1,0 +1,140 @@
+// Splitting the level envelope into strokes, and deciding whether a burst of
+// sound is lapping at all. Segmentation is a hop-by-hop state machine with
+// hysteresis relative to the noise floor, so the live path can run it on
+// audio as it arrives and the offline path on a whole recording, identically.
+
+import { bandBins, type SpectrumFrame } from "./frames";
+import { spectralFlatness } from "./features";
+import type { AnalysisOptions } from "./options";
+
+/** A burst of sound found by the segmenter, in hops; not yet judged. */
+export interface Candidate {
+  /** First hop of the burst. */
+  startHop: number;
+  /** Hop just past the burst. */
+  endHop: number;
+}
+
+export type RejectionReason = "too-short" | "too-long" | "not-noise-like";
+
+export interface RejectedSound {
+  startS: number;
+  endS: number;
+  reason: RejectionReason;
+  /** Median spectral flatness over the shape band, when it was measured. */
+  flatness: number | null;
+}
+
+/**
+ * Hysteresis segmenter. Feed it one windowed level per hop; it returns a
+ * candidate when a burst has ended (after a lift of minLiftMs), else null.
+ */
+export class StrokeSegmenter {
+  private startLevel = Infinity;
+  private endLevel = Infinity;
+  private readonly liftHops: number;
+  private readonly startAboveFloorDb: number;
+  private readonly endAboveFloorDb: number;
+  private readonly windowHops: number;
+  private active = false;
+  private runStart = -1;
+  private candidateStart = -1;
+  private lastAbove = -1;
+
+  constructor(options: AnalysisOptions, windowHops: number) {
+    this.liftHops = Math.max(1, Math.ceil(options.minLiftMs / options.hopMs));
+    this.windowHops = windowHops;
+    this.startAboveFloorDb = options.strokeStartAboveFloorDb;
+    this.endAboveFloorDb = options.strokeEndAboveFloorDb;
+  }
+
+  setNoiseFloor(floorDbfs: number): void {
+    this.startLevel = 10 ** ((floorDbfs + this.startAboveFloorDb) / 10);
+    this.endLevel = 10 ** ((floorDbfs + this.endAboveFloorDb) / 10);
+  }
+
+  reset(): void {
+    this.active = false;
+    this.runStart = -1;
+    this.candidateStart = -1;
+    this.lastAbove = -1;
+  }
+
+  /** The earliest hop a pending or future candidate could start at. */
+  get earliestOpenHop(): number {
+    if (this.active) return this.candidateStart;
+    return this.runStart;
+  }
+
+  step(hop: number, level: number): Candidate | null {
+    const above = level >= this.endLevel;
+    if (!this.active) {
+      if (!above) {
+        this.runStart = -1;
+        return null;
+      }
+      // The window trails the audio, so the hop where the level first rose
+      // above the exit level is where the sound began.
+      if (this.runStart < 0) this.runStart = hop;
+      if (level >= this.startLevel) {
+        this.active = true;
+        this.candidateStart = this.runStart;
+        this.lastAbove = hop;
+      }
+      return null;
+    }
+    if (above) {
+      this.lastAbove = hop;
+      return null;
+    }
+    if (hop - this.lastAbove >= this.liftHops) return this.close();
+    return null;
+  }
+
+  /** End of input: close a burst still in progress. */
+  finish(): Candidate | null {
+    return this.active ? this.close() : null;
+  }
+
+  private close(): Candidate {
+    // The window still held the burst's last hop for windowHops-1 hops after
+    // the sound stopped; step back to where it really ended.
+    const endHop = Math.max(this.candidateStart + 1, this.lastAbove - this.windowHops + 2);
+    const c = { startHop: this.candidateStart, endHop };
+    this.active = false;
+    this.runStart = -1;
+    this.candidateStart = -1;
+    this.lastAbove = -1;
+    return c;
+  }
+}
+
+/**
+ * Median spectral flatness over the shape band, from `frames` evenly spaced
+ * frames across [start, end) of `samples` (indices relative to the array).
+ */
+export function medianFlatness(
+  samples: Float32Array,
+  start: number,
+  end: number,
+  frame: SpectrumFrame,
+  sampleRateHz: number,
+  options: AnalysisOptions,
+): number {
+  const n = frame.size;
+  const cap = sampleRateHz * options.highBandMaxFractionOfRate;
+  const [first, last] = bandBins(sampleRateHz, n, options.shapeBandLowHz, Math.min(options.shapeBandHighHz, cap));
+  const span = end - start - n;
+  const count = span <= 0 ? 1 : options.shapeFramesPerStroke;
+  const values: number[] = [];
+  for (let i = 0; i < count; i++) {
+    const at = span <= 0 ? Math.max(0, start + Math.floor(span / 2)) : start + Math.floor((span * (i + 0.5)) / count);
+    frame.analyze(samples, at);
+    const f = spectralFlatness(frame.amplitude.subarray(first, last + 1));
+    if (Number.isFinite(f)) values.push(f);
+  }
+  if (values.length === 0) return 0;
+  values.sort((a, b) => a - b);
+  const mid = values.length >> 1;
+  return values.length % 2 ? values[mid] : (values[mid - 1] + values[mid]) / 2;
+}

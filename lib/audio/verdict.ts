@@ -1,0 +1,123 @@
+// The seat's verdict from its list of stroke contrasts: settled, still
+// fading, or not settling. Pure and cheap, so the server recomputes it from
+// stored strokes with exactly the code the bench screen runs.
+
+import { fadeAt, fitFade, type FadeFit } from "./fade";
+import { resolveOptions, type AnalysisOptions, type AnalysisOptionsInput } from "./options";
+
+export type StrokeFlag = "clipping" | "too-quiet";
+
+/** What the verdict needs of a stroke; a full Stroke satisfies it. */
+export interface VerdictStroke {
+  contrastDb: number;
+  /** 1-based stroke number; defaults to the position in the list. */
+  index?: number;
+  startS?: number;
+  flags?: readonly string[];
+}
+
+export type SeatState = "no-strokes" | "fading" | "settled" | "not-settling";
+
+export interface SettledRule {
+  consecutive: number;
+  maxContrastDb: number;
+  maxSlopeDbPerStroke: number;
+}
+
+export interface SeatVerdict {
+  state: SeatState;
+  /** Strokes that entered the judgement (too-quiet ones are left out). */
+  judgedStrokes: number;
+  fit: FadeFit | null;
+  /** Further strokes the fitted curve needs to satisfy the rule; 0 once settled; null when it never will. */
+  strokesRemaining: number | null;
+  settled: { atStroke: number; atS: number | null } | null;
+  notSettling: boolean;
+  rule: SettledRule;
+}
+
+/** Least-squares slope of values[from..to) against their position, per step. */
+export function leastSquaresSlope(values: ArrayLike<number>, from: number, to: number): number {
+  const n = to - from;
+  if (n < 2) return 0;
+  const mx = (n - 1) / 2;
+  let my = 0;
+  for (let i = from; i < to; i++) my += values[i];
+  my /= n;
+  let sxy = 0;
+  let sxx = 0;
+  for (let i = 0; i < n; i++) {
+    const dx = i - mx;
+    sxy += dx * (values[from + i] - my);
+    sxx += dx * dx;
+  }
+  return sxy / sxx;
+}
+
+/** Does the settled rule hold for the window ending just before `end`? */
+export function ruleHoldsAt(values: ArrayLike<number>, end: number, options: AnalysisOptions): boolean {
+  const n = options.settledStrokes;
+  if (end < n) return false;
+  for (let i = end - n; i < end; i++) if (!(values[i] <= options.settledMaxContrastDb)) return false;
+  return Math.abs(leastSquaresSlope(values, end - n, end)) <= options.settledMaxSlopeDbPerStroke;
+}
+
+/** 0-based position of the first stroke at which the rule holds, or -1. */
+export function firstSettledPosition(contrastsDb: ArrayLike<number>, options: AnalysisOptions): number {
+  for (let end = options.settledStrokes; end <= contrastsDb.length; end++) {
+    if (ruleHoldsAt(contrastsDb, end, options)) return end - 1;
+  }
+  return -1;
+}
+
+/**
+ * How many more strokes until the rule holds, continuing the observed curve
+ * with the fitted one; null if not within the horizon.
+ */
+export function strokesRemaining(contrastsDb: ArrayLike<number>, fit: FadeFit, options: AnalysisOptions): number | null {
+  const n = contrastsDb.length;
+  const horizon = options.remainingHorizonStrokes;
+  const values = new Float64Array(n + horizon);
+  for (let i = 0; i < n; i++) values[i] = contrastsDb[i];
+  for (let i = n; i < n + horizon; i++) values[i] = fadeAt(fit, i + 1);
+  for (let end = Math.max(n + 1, options.settledStrokes); end <= n + horizon; end++) {
+    if (ruleHoldsAt(values, end, options)) return end - n;
+  }
+  return null;
+}
+
+/** Verdict for one seat and stage from its strokes in order. */
+export function judgeSeat(
+  strokes: readonly VerdictStroke[],
+  options: AnalysisOptionsInput | AnalysisOptions = {},
+): SeatVerdict {
+  const o = resolveOptions(options);
+  const judged = strokes.filter((s) => !(s.flags ?? []).includes("too-quiet"));
+  judged.forEach((s, i) => {
+    if (typeof s.contrastDb !== "number" || !Number.isFinite(s.contrastDb)) {
+      throw new RangeError(`stroke ${s.index ?? i + 1} has no finite contrastDb (got ${String(s.contrastDb)})`);
+    }
+  });
+  const contrasts = judged.map((s) => s.contrastDb);
+  const rule: SettledRule = {
+    consecutive: o.settledStrokes,
+    maxContrastDb: o.settledMaxContrastDb,
+    maxSlopeDbPerStroke: o.settledMaxSlopeDbPerStroke,
+  };
+  const fit = fitFade(contrasts, o.fitMinStrokes);
+  const at = firstSettledPosition(contrasts, o);
+  const settled =
+    at >= 0
+      ? { atStroke: judged[at].index ?? strokes.indexOf(judged[at]) + 1, atS: judged[at].startS ?? null }
+      : null;
+  let notSettling = false;
+  if (!settled && fit && contrasts.length >= o.notSettlingMinStrokes) {
+    const k = Math.min(o.notSettlingSlopeStrokes, contrasts.length);
+    const slope = leastSquaresSlope(contrasts, contrasts.length - k, contrasts.length);
+    notSettling = fit.floorDb > o.settledMaxContrastDb && Math.abs(slope) <= o.settledMaxSlopeDbPerStroke;
+  }
+  const remaining = settled ? 0 : fit && !notSettling ? strokesRemaining(contrasts, fit, o) : null;
+  const state: SeatState =
+    contrasts.length === 0 ? "no-strokes" : settled ? "settled" : notSettling ? "not-settling" : "fading";
+  return { state, judgedStrokes: contrasts.length, fit, strokesRemaining: remaining, settled, notSettling, rule };
+}
