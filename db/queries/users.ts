@@ -1,4 +1,4 @@
-import { asc, eq } from "drizzle-orm";
+import { asc, eq, sql } from "drizzle-orm";
 import type { Db } from "@/db/client";
 import { users, type UserRole } from "@/db/schema";
 
@@ -9,6 +9,7 @@ export interface PersonRow {
   role: UserRole;
   active: boolean;
   lockedUntil: string | null;
+  locked: boolean;
 }
 
 export async function listPeople(db: Db, shopId: string): Promise<PersonRow[]> {
@@ -20,6 +21,7 @@ export async function listPeople(db: Db, shopId: string): Promise<PersonRow[]> {
       role: users.role,
       active: users.active,
       lockedUntil: users.lockedUntil,
+      locked: sql<boolean>`coalesce(${users.lockedUntil} > now(), false)`,
     })
     .from(users)
     .where(eq(users.shopId, shopId))

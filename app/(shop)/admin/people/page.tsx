@@ -13,7 +13,6 @@ export default async function PeoplePage() {
   const actor = await currentActor();
   if (!actor || !can(actor.role, "users:manage")) return <Forbidden message={forbiddenMessage("users:manage")} />;
   const people = await listPeople(await getDb(), actor.shopId);
-  const now = Date.now();
   return (
     <div className="flex flex-col gap-6">
       <div>
@@ -32,7 +31,7 @@ export default async function PeoplePage() {
         </h2>
         <ul className="flex flex-col gap-3" data-testid="people-list">
           {people.map((p) => {
-            const locked = p.lockedUntil && new Date(p.lockedUntil).getTime() > now;
+            const locked = p.locked;
             return (
               <li key={p.id} className="rounded-xl border border-stone-300 bg-white p-4">
                 <div className="flex flex-wrap items-baseline justify-between gap-2">

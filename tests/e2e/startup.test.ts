@@ -1,0 +1,46 @@
+// The production server refuses to start on a database it cannot use, with one clear line.
+import { spawn } from "node:child_process";
+import fs from "node:fs";
+import os from "node:os";
+import path from "node:path";
+import { describe, expect, it } from "vitest";
+
+function startServer(env: Record<string, string>): Promise<{ code: number | null; stderr: string; stdout: string }> {
+  return new Promise((resolve) => {
+    const nextBin = path.join(process.cwd(), "node_modules", "next", "dist", "bin", "next");
+    const child = spawn(process.execPath, [nextBin, "start", "-p", "0", "-H", "127.0.0.1"], {
+      env: { ...process.env, NODE_ENV: "production", NEXTAUTH_SECRET: "startup-test-secret-0123456789", ...env },
+      stdio: ["ignore", "pipe", "pipe"],
+    });
+    let stdout = "";
+    let stderr = "";
+    child.stdout.on("data", (d) => (stdout += d));
+    child.stderr.on("data", (d) => (stderr += d));
+    const timer = setTimeout(() => child.kill("SIGKILL"), 60_000);
+    child.on("exit", (code) => {
+      clearTimeout(timer);
+      resolve({ code, stderr, stdout });
+    });
+  });
+}
+
+describe("server start-up", () => {
+  it("stops with one line naming DATABASE_URL when the server cannot be reached", async () => {
+    const r = await startServer({ DATABASE_URL: "postgres://nobody@127.0.0.1:1/grindfade" });
+    expect(r.code).not.toBe(0);
+    const lines = r.stderr.split("\n").filter((l) => l.includes("Grindfade cannot start"));
+    expect(lines).toHaveLength(1);
+    expect(lines[0]).toMatch(/DATABASE_URL/);
+  });
+
+  it("stops and leaves a foreign data directory untouched", async () => {
+    const dir = fs.mkdtempSync(path.join(os.tmpdir(), "grindfade-foreign-"));
+    fs.mkdirSync(path.join(dir, "pglite"));
+    fs.writeFileSync(path.join(dir, "pglite", "notes.txt"), "keep me");
+    const r = await startServer({ GRINDFADE_DATA_DIR: dir });
+    expect(r.code).not.toBe(0);
+    expect(r.stderr).toMatch(/GRINDFADE_DATA_DIR.*left untouched/);
+    expect(fs.readdirSync(path.join(dir, "pglite"))).toEqual(["notes.txt"]);
+    fs.rmSync(dir, { recursive: true, force: true });
+  });
+});
