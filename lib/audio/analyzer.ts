@@ -3,7 +3,7 @@
 // (live.ts) — envelope, segmentation, judging each burst on its own samples —
 // so both report the same strokes for the same audio.
 
-import { onsetContrast, highBandHz, meanSquareDb } from "./contrast";
+import { highBandHz, meanSquareDb, measureStroke } from "./contrast";
 import { frameSizeFor, hopSizeFor, SpectrumFrame } from "./frames";
 import { levelSeries, noiseFloorDbfs } from "./level";
 import {
@@ -12,7 +12,7 @@ import {
   type AnalysisOptions,
   type AnalysisOptionsInput,
 } from "./options";
-import { medianFlatness, StrokeSegmenter, type Candidate, type RejectedSound } from "./strokes";
+import { StrokeSegmenter, type Candidate, type RejectedSound } from "./strokes";
 import { judgeSeat, type SeatVerdict, type StrokeFlag } from "./verdict";
 
 export interface Stroke {
@@ -97,11 +97,10 @@ export class StrokeJudge {
       return { kind: "rejected", sound: { startS, endS, reason: reason ?? "too-long", flatness: null } };
     }
     const len = strokeSamples.length;
-    const flatness = medianFlatness(strokeSamples, 0, len, this.frame, sr, o);
+    const { flatness, ...contrast } = measureStroke(strokeSamples, 0, len, this.frame, sr, o);
     if (flatness < o.minFlatness) {
       return { kind: "rejected", sound: { startS, endS, reason: "not-noise-like", flatness } };
     }
-    const contrast = onsetContrast(strokeSamples, 0, len, this.frame, sr, o);
     const bodyDb = meanSquareDb(
       strokeSamples,
       Math.round(len * o.bodyStartFraction),

@@ -42,7 +42,7 @@ export class SpectrumFrame {
   readonly size: number;
   readonly bins: number;
   readonly window: Float64Array;
-  /** |X[k]|, k = 0..size/2, for meyda's extractors (scale-free features). */
+  /** |X[k]|, k = 0..size/2, for meyda's extractors (scale-free features); filled only on request. */
   readonly amplitude: Float32Array;
   /** Mean-square contribution of each bin: sum over all bins = mean square of the frame. */
   readonly power: Float64Array;
@@ -75,7 +75,7 @@ export class SpectrumFrame {
    * past the end of the array count as zeros, so a frame never reads audio
    * outside the view it was given.
    */
-  analyze(samples: Float32Array, start: number): void {
+  analyze(samples: Float32Array, start: number, withAmplitude = true): void {
     const n = this.size;
     const x = this.input;
     const w = this.window;
@@ -92,10 +92,38 @@ export class SpectrumFrame {
     for (let k = 0; k <= half; k++) {
       const re = out[2 * k];
       const im = out[2 * k + 1];
-      const p = re * re + im * im;
-      amp[k] = Math.sqrt(p);
       // Interior bins stand for their mirror image too.
-      pow[k] = (k === 0 || k === half ? p : 2 * p) * scale;
+      pow[k] = (k === 0 || k === half ? re * re + im * im : 2 * (re * re + im * im)) * scale;
+    }
+    // Square roots are the costliest part after the transform; band powers
+    // do not need them, so they are taken only for shape features.
+    if (withAmplitude) {
+      for (let k = 0; k <= half; k++) amp[k] = Math.sqrt(out[2 * k] * out[2 * k] + out[2 * k + 1] * out[2 * k + 1]);
     }
   }
+}
+
+/**
+ * Start positions of frames of `size` at `hop` inside [start, end); a region
+ * shorter than one frame gets one frame centred on it.
+ */
+export function framePositions(start: number, end: number, size: number, hop: number): number[] {
+  const out: number[] = [];
+  for (let at = start; at + size <= end; at += hop) out.push(at);
+  if (out.length === 0) out.push(Math.max(0, Math.floor((start + end - size) / 2)));
+  return out;
+}
+
+/**
+ * Frames no more than `maxHop` apart that cover [start, end) exactly, first
+ * frame at start, last ending at end, so neither end of the region is
+ * left out.
+ */
+export function coveringPositions(start: number, end: number, size: number, maxHop: number): number[] {
+  const span = end - start - size;
+  if (span <= 0) return [Math.max(0, Math.floor((start + end - size) / 2))];
+  const count = Math.ceil(span / maxHop) + 1;
+  const out: number[] = [];
+  for (let i = 0; i < count; i++) out.push(start + Math.round((span * i) / (count - 1)));
+  return out;
 }

@@ -6,14 +6,14 @@ export { ANALYSIS_DEFAULTS, resolveOptions, validateSampleRate, OptionsError, MI
 export type { AnalysisOptions, AnalysisOptionsInput } from "./options";
 export { decodeWav, decodeWavMono, readWavInfo, mixDown, encodeWav, WavFormatError } from "./wav";
 export type { DecodedWav, DecodedMonoWav, WavInfo, WavErrorCode } from "./wav";
-export { frameSizeFor, hopSizeFor, hannWindow, bandBins, SpectrumFrame } from "./frames";
+export { frameSizeFor, hopSizeFor, hannWindow, bandBins, framePositions, SpectrumFrame } from "./frames";
 export { spectralCentroidHz, spectralFlatness, spectralRolloffHz, spectralFlux, bandPower, powerToDb } from "./features";
 export { LevelMeter, levelSeries, noiseFloorDbfs, percentile } from "./level";
 export type { LevelSeries } from "./level";
 export { StrokeSegmenter, medianFlatness } from "./strokes";
 export type { Candidate, RejectedSound, RejectionReason } from "./strokes";
-export { onsetContrast, meanBandPower, highBandHz, meanSquareDb } from "./contrast";
-export type { StrokeContrast } from "./contrast";
+export { onsetContrast, measureStroke, meanBandPower, highBandHz, meanSquareDb } from "./contrast";
+export type { StrokeContrast, StrokeMeasures } from "./contrast";
 export { fitFade, fadeAt } from "./fade";
 export type { FadeFit } from "./fade";
 export { judgeSeat, leastSquaresSlope, ruleHoldsAt, firstSettledPosition, strokesRemaining } from "./verdict";
