@@ -3,7 +3,7 @@
 // (live.ts) — envelope, segmentation, judging each burst on its own samples —
 // so both report the same strokes for the same audio.
 
-import { highBandHz, meanSquareDb, measureStroke } from "./contrast";
+import { highBandHz, measureStroke } from "./contrast";
 import { frameSizeFor, hopSizeFor, SpectrumFrame } from "./frames";
 import { levelSeries, noiseFloorDbfs } from "./level";
 import {
@@ -97,16 +97,11 @@ export class StrokeJudge {
       return { kind: "rejected", sound: { startS, endS, reason: reason ?? "too-long", flatness: null } };
     }
     const len = strokeSamples.length;
-    const { flatness, ...contrast } = measureStroke(strokeSamples, 0, len, this.frame, sr, o);
+    const { flatness, bodyLevelDbfs, ...contrast } = measureStroke(strokeSamples, 0, len, this.frame, sr, o);
     if (flatness < o.minFlatness) {
       return { kind: "rejected", sound: { startS, endS, reason: "not-noise-like", flatness } };
     }
-    const bodyDb = meanSquareDb(
-      strokeSamples,
-      Math.round(len * o.bodyStartFraction),
-      Math.round(len * o.bodyEndFraction),
-    );
-    const bodyAboveFloorDb = bodyDb - floorDbfs;
+    const bodyAboveFloorDb = bodyLevelDbfs - floorDbfs;
     const flags: StrokeFlag[] = [];
     if (clipped) flags.push("clipping");
     if (bodyAboveFloorDb < o.minBodyAboveFloorDb) flags.push("too-quiet");

@@ -37,7 +37,7 @@ export function meanBandPower(
   const positions = framePositions(start, end, frame.size, hop);
   let sum = 0;
   for (const at of positions) {
-    frame.analyze(samples, at, false);
+    frame.analyze(samples, at, false, first, last);
     sum += bandPower(frame.power, first, last);
   }
   return sum / positions.length;
@@ -46,6 +46,8 @@ export function meanBandPower(
 export interface StrokeMeasures extends StrokeContrast {
   /** Median spectral flatness over the shape band, from a spread of the same frames. */
   flatness: number;
+  /** Full-band level of the body frames (Parseval: their Hann-weighted mean square), dBFS. */
+  bodyLevelDbfs: number;
 }
 
 /**
@@ -85,13 +87,17 @@ export function measureStroke(
   const flat: number[] = [];
   let onset = 0;
   let body = 0;
+  let bodyMeanSquare = 0;
   for (let i = 0; i < total; i++) {
     const wantShape = nextShape < shapeCount && i === Math.floor(((nextShape + 0.5) * total) / shapeCount);
     const isOnset = i < onsetAt.length;
-    frame.analyze(samples, isOnset ? onsetAt[i] : bodyAt[i - onsetAt.length], wantShape);
+    frame.analyze(samples, isOnset ? onsetAt[i] : bodyAt[i - onsetAt.length], wantShape, first, last);
     const p = bandPower(frame.power, first, last);
     if (isOnset) onset += p;
-    else body += p;
+    else {
+      body += p;
+      bodyMeanSquare += frame.meanSquare;
+    }
     if (wantShape) {
       nextShape++;
       const f = spectralFlatness(frame.amplitude.subarray(shapeFirst, shapeLast + 1));
@@ -100,7 +106,13 @@ export function measureStroke(
   }
   const onsetDb = 10 * Math.log10(onset / onsetAt.length);
   const bodyDb = 10 * Math.log10(body / bodyAt.length);
-  return { onsetDb, bodyDb, contrastDb: onsetDb - bodyDb, flatness: median(flat) };
+  return {
+    onsetDb,
+    bodyDb,
+    contrastDb: onsetDb - bodyDb,
+    flatness: median(flat),
+    bodyLevelDbfs: 10 * Math.log10(bodyMeanSquare / bodyAt.length),
+  };
 }
 
 /** At most `max` of the positions, evenly spread, first and last kept. */

@@ -44,12 +44,18 @@ export class SpectrumFrame {
   readonly window: Float64Array;
   /** |X[k]|, k = 0..size/2, for meyda's extractors (scale-free features); filled only on request. */
   readonly amplitude: Float32Array;
-  /** Mean-square contribution of each bin: sum over all bins = mean square of the frame. */
+  /**
+   * Mean-square contribution of each bin: sum over all bins = mean square of
+   * the frame. Only bins firstBin..lastBin of the last analyze() are current.
+   */
   readonly power: Float64Array;
   private readonly fft: FFT;
   private readonly input: Float64Array;
   private readonly output: Float64Array;
   private readonly powerScale: number;
+  private readonly windowNorm: number;
+  /** Mean square of the last frame, Hann-weighted: sum (w x)^2 / sum w^2 (Parseval's full-band total). */
+  meanSquare = 0;
 
   constructor(size: number) {
     if (!Number.isInteger(size) || size < 16 || (size & (size - 1)) !== 0) {
@@ -68,6 +74,7 @@ export class SpectrumFrame {
     // Parseval: sum |X|^2 over all N bins = N * sum (w x)^2; dividing by the
     // window's energy makes the estimate unbiased for a stationary signal.
     this.powerScale = 1 / (size * sumW2);
+    this.windowNorm = 1 / sumW2;
   }
 
   /**
@@ -75,13 +82,19 @@ export class SpectrumFrame {
    * past the end of the array count as zeros, so a frame never reads audio
    * outside the view it was given.
    */
-  analyze(samples: Float32Array, start: number, withAmplitude = true): void {
+  analyze(samples: Float32Array, start: number, withAmplitude = true, firstBin = 0, lastBin = this.size / 2): void {
     const n = this.size;
     const x = this.input;
     const w = this.window;
     const avail = Math.max(0, Math.min(n, samples.length - start));
-    for (let i = 0; i < avail; i++) x[i] = samples[start + i] * w[i];
+    let energy = 0;
+    for (let i = 0; i < avail; i++) {
+      const v = samples[start + i] * w[i];
+      x[i] = v;
+      energy += v * v;
+    }
     for (let i = avail; i < n; i++) x[i] = 0;
+    this.meanSquare = energy * this.windowNorm;
     // fft.js fills only bins 0..N/2 of a real transform; that is all we read.
     this.fft.realTransform(this.output, x);
     const out = this.output;
@@ -89,7 +102,8 @@ export class SpectrumFrame {
     const pow = this.power;
     const scale = this.powerScale;
     const half = n / 2;
-    for (let k = 0; k <= half; k++) {
+    // Only the bins asked for: a band power needs a third of them.
+    for (let k = firstBin; k <= lastBin; k++) {
       const re = out[2 * k];
       const im = out[2 * k + 1];
       // Interior bins stand for their mirror image too.

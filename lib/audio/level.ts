@@ -27,7 +27,7 @@ export class LevelMeter {
   private readonly ring: Float64Array;
   private ringPos = 0;
   private filled = 0;
-  private sum = 0;
+  private readonly lanes = new Float64Array(4);
   private count = 0;
   private clipRun = 0;
   private hopClipped = 0;
@@ -52,7 +52,7 @@ export class LevelMeter {
     this.ring.fill(0);
     this.ringPos = 0;
     this.filled = 0;
-    this.sum = 0;
+    this.lanes.fill(0);
     this.count = 0;
     this.clipRun = 0;
     this.hopClipped = 0;
@@ -61,28 +61,48 @@ export class LevelMeter {
 
   push(block: Float32Array, from: number, to: number, onHop: (level: number, clipped: boolean) => void): void {
     const hop = this.hopSize;
-    const clipLevel = this.clipLevel;
-    const clipRunSamples = this.clipRunSamples;
-    let sum = this.sum;
-    let count = this.count;
-    let clipRun = this.clipRun;
+    const lanes = this.lanes;
+    // A sample at or beyond the clip level adds at least clipLevel² to its
+    // piece's sum of squares, so a piece below that holds none and needs no
+    // per-sample clipping test — which would cost more than the sum itself.
+    const clipSquare = this.clipLevel * this.clipLevel;
     let i = from;
     while (i < to) {
-      const take = Math.min(hop - count, to - i);
+      const take = Math.min(hop - this.count, to - i);
       const end = i + take;
-      for (; i < end; i++) {
-        const x = block[i];
-        sum += x * x;
-        if (x >= clipLevel || x <= -clipLevel) {
-          // Count the run's start only once, as the run reaches its length.
-          if (++clipRun === clipRunSamples) this.hopClipped = 1;
-        } else clipRun = 0;
+      const before = lanes[0] + lanes[1] + lanes[2] + lanes[3];
+      const pieceStart = i;
+      // Four partial sums, each sample going to the lane of its position in
+      // the hop: the same additions in the same order however the audio is
+      // split into blocks, so live and offline levels agree to the bit.
+      let pos = this.count;
+      for (; i < end && (pos & 3) !== 0; i++, pos++) lanes[pos & 3] += block[i] * block[i];
+      let s0 = lanes[0];
+      let s1 = lanes[1];
+      let s2 = lanes[2];
+      let s3 = lanes[3];
+      for (; i + 3 < end; i += 4, pos += 4) {
+        const a = block[i];
+        const b = block[i + 1];
+        const c = block[i + 2];
+        const d = block[i + 3];
+        s0 += a * a;
+        s1 += b * b;
+        s2 += c * c;
+        s3 += d * d;
       }
-      count += take;
-      if (count === hop) {
-        const power = sum / hop;
-        sum = 0;
-        count = 0;
+      lanes[0] = s0;
+      lanes[1] = s1;
+      lanes[2] = s2;
+      lanes[3] = s3;
+      for (; i < end; i++, pos++) lanes[pos & 3] += block[i] * block[i];
+      if (lanes[0] + lanes[1] + lanes[2] + lanes[3] - before >= 0.5 * clipSquare) this.scanClipping(block, pieceStart, end);
+      else this.clipRun = 0;
+      this.count += take;
+      if (this.count === hop) {
+        const power = (lanes[0] + lanes[1] + (lanes[2] + lanes[3])) / hop;
+        lanes.fill(0);
+        this.count = 0;
         const level = this.windowed(power);
         const clipped = this.hopClipped === 1;
         this.hopClipped = 0;
@@ -90,9 +110,19 @@ export class LevelMeter {
         onHop(level, clipped);
       }
     }
-    this.sum = sum;
-    this.count = count;
-    this.clipRun = clipRun;
+  }
+
+  private scanClipping(block: Float32Array, from: number, to: number): void {
+    const c = this.clipLevel;
+    let run = this.clipRun;
+    for (let i = from; i < to; i++) {
+      const x = block[i];
+      if (x >= c || x <= -c) {
+        // Count the run once, as it reaches its length.
+        if (++run === this.clipRunSamples) this.hopClipped = 1;
+      } else run = 0;
+    }
+    this.clipRun = run;
   }
 
   private windowed(power: number): number {

@@ -137,39 +137,57 @@ function parseLayout(bytes: Uint8Array): Layout {
   throw new WavFormatError("truncated", "the WAV file has no data chunk");
 }
 
-function readChannel(bytes: Uint8Array, layout: Layout, channel: number, out: Float32Array, add: boolean, gain: number): void {
-  const view = new DataView(bytes.buffer, bytes.byteOffset, bytes.byteLength);
+const LITTLE_ENDIAN = new Uint8Array(new Uint16Array([1]).buffer)[0] === 1;
+
+/**
+ * The data chunk as an aligned typed array of the sample type, so the inner
+ * loops index memory directly instead of calling DataView per sample. The
+ * bytes are copied once when the chunk does not start on a multiple of the
+ * sample size (node's Buffer pool gives arbitrary offsets).
+ */
+function sampleView(bytes: Uint8Array, layout: Layout): Int16Array | Int32Array | Float32Array | Float64Array | null {
+  const bps = layout.bitsPerSample >> 3;
+  if (!LITTLE_ENDIAN || bps === 1 || bps === 3) return null;
+  const length = layout.frames * layout.channels;
+  let buffer = bytes.buffer as ArrayBuffer;
+  let offset = bytes.byteOffset + layout.dataOffset;
+  if (offset % bps !== 0) {
+    buffer = bytes.slice(layout.dataOffset, layout.dataOffset + length * bps).buffer;
+    offset = 0;
+  }
+  if (layout.encoding === "float") return bps === 4 ? new Float32Array(buffer, offset, length) : new Float64Array(buffer, offset, length);
+  return bps === 2 ? new Int16Array(buffer, offset, length) : new Int32Array(buffer, offset, length);
+}
+
+function readChannel(
+  bytes: Uint8Array,
+  layout: Layout,
+  view: Int16Array | Int32Array | Float32Array | Float64Array | null,
+  channel: number,
+  out: Float32Array,
+  add: boolean,
+  gain: number,
+): void {
   const n = layout.frames;
-  const stride = layout.blockAlign;
-  let p = layout.dataOffset + channel * (layout.bitsPerSample >> 3);
+  const ch = layout.channels;
   const bits = layout.bitsPerSample;
-  if (layout.encoding === "float") {
-    if (bits === 32) {
-      for (let i = 0; i < n; i++, p += stride) {
-        const v = view.getFloat32(p, true) * gain;
-        out[i] = add ? out[i] + v : v;
-      }
+  if (view) {
+    const g = gain * (layout.encoding === "float" ? 1 : 1 / 2 ** (bits - 1));
+    if (ch === 1 && !add) {
+      for (let i = 0; i < n; i++) out[i] = view[i] * g;
     } else {
-      for (let i = 0; i < n; i++, p += stride) {
-        const v = view.getFloat64(p, true) * gain;
-        out[i] = add ? out[i] + v : v;
-      }
+      for (let i = 0, p = channel; i < n; i++, p += ch) out[i] = add ? out[i] + view[p] * g : view[p] * g;
     }
     return;
   }
+  const dv = new DataView(bytes.buffer, bytes.byteOffset, bytes.byteLength);
+  const stride = layout.blockAlign;
+  let p = layout.dataOffset + channel * (bits >> 3);
   switch (bits) {
     case 8: {
       const g = gain / 128;
       for (let i = 0; i < n; i++, p += stride) {
         const v = (bytes[p] - 128) * g;
-        out[i] = add ? out[i] + v : v;
-      }
-      return;
-    }
-    case 16: {
-      const g = gain / 32768;
-      for (let i = 0; i < n; i++, p += stride) {
-        const v = view.getInt16(p, true) * g;
         out[i] = add ? out[i] + v : v;
       }
       return;
@@ -184,10 +202,18 @@ function readChannel(bytes: Uint8Array, layout: Layout, channel: number, out: Fl
       return;
     }
     default: {
-      const g = gain / 2147483648;
+      // Big-endian hosts only: read little-endian words one by one.
+      const g = layout.encoding === "float" ? gain : gain / 2 ** (bits - 1);
       for (let i = 0; i < n; i++, p += stride) {
-        const v = view.getInt32(p, true) * g;
-        out[i] = add ? out[i] + v : v;
+        const raw =
+          layout.encoding === "float"
+            ? bits === 32
+              ? dv.getFloat32(p, true)
+              : dv.getFloat64(p, true)
+            : bits === 16
+              ? dv.getInt16(p, true)
+              : dv.getInt32(p, true);
+        out[i] = add ? out[i] + raw * g : raw * g;
       }
     }
   }
@@ -197,9 +223,10 @@ function readChannel(bytes: Uint8Array, layout: Layout, channel: number, out: Fl
 export function decodeWav(bytes: Uint8Array): DecodedWav {
   const layout = parseLayout(bytes);
   const channelData: Float32Array[] = [];
+  const view = sampleView(bytes, layout);
   for (let c = 0; c < layout.channels; c++) {
     const ch = new Float32Array(layout.frames);
-    readChannel(bytes, layout, c, ch, false, 1);
+    readChannel(bytes, layout, view, c, ch, false, 1);
     channelData.push(ch);
   }
   const { dataOffset: _o, blockAlign: _b, ...info } = layout;
@@ -211,8 +238,9 @@ export function decodeWavMono(bytes: Uint8Array): DecodedMonoWav {
   const layout = parseLayout(bytes);
   const samples = new Float32Array(layout.frames);
   const gain = 1 / layout.channels;
+  const view = sampleView(bytes, layout);
   for (let c = 0; c < layout.channels; c++) {
-    readChannel(bytes, layout, c, samples, c > 0, gain);
+    readChannel(bytes, layout, view, c, samples, c > 0, gain);
   }
   const { dataOffset: _o, blockAlign: _b, ...info } = layout;
   return { ...info, samples };

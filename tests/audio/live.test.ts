@@ -15,6 +15,11 @@ function pushAll(live: LiveAnalyzer, samples: Float32Array, nextSize: () => numb
   return events;
 }
 
+function randomSizes(seed: number): () => number {
+  const r = createRandom(seed);
+  return () => 1 + Math.floor(r() * 3000);
+}
+
 const strokesOf = (events: LiveEvent[]) => events.flatMap((e) => (e.type === "stroke" ? [e.stroke] : []));
 const rejectedOf = (events: LiveEvent[]) => events.flatMap((e) => (e.type === "rejected" ? [e.sound] : []));
 
@@ -27,10 +32,7 @@ describe("live analyzer gives the offline analyzer's strokes", () => {
 
   it.each([
     ["128-sample blocks", () => 128],
-    ["blocks of random size", (() => {
-      const r = createRandom(17);
-      return () => 1 + Math.floor(r() * 3000);
-    })()],
+    ["blocks of random size", randomSizes(17)],
     ["one block", () => Number.MAX_SAFE_INTEGER],
   ] as const)("after a 2 s calibration, pushed in %s", (_label, size) => {
     const live = createLiveAnalyzer({ sampleRate: 44100 });

@@ -1,0 +1,105 @@
+// Speed benchmark of the acoustic engine (figures, not a pass/fail test):
+// decode and analysis of a ten-minute 48 kHz mono recording, the whole
+// command-line analyzer process against Debian's aubioonset on the same file,
+// and the cost of one 128-sample block in the live analyzer.
+// Usage: npm run bench:audio
+
+import { execFileSync, spawnSync } from "node:child_process";
+import { mkdtempSync, readFileSync, rmSync, writeFileSync } from "node:fs";
+import { tmpdir } from "node:os";
+import { join } from "node:path";
+import { analyzeRecording } from "../lib/audio/analyzer";
+import { createLiveAnalyzer } from "../lib/audio/live";
+import { synthesizeSession } from "../lib/audio/synth";
+import { decodeWavMono, encodeWav } from "../lib/audio/wav";
+
+const SAMPLE_RATE = 48000;
+const DURATION_S = 600;
+
+function median(values: number[]): number {
+  const s = [...values].sort((a, b) => a - b);
+  return s[s.length >> 1];
+}
+
+function timeIt<T>(fn: () => T): { ms: number; value: T } {
+  const t = performance.now();
+  const value = fn();
+  return { ms: performance.now() - t, value };
+}
+
+function wallMs(cmd: string, args: string[]): number {
+  const t = performance.now();
+  const r = spawnSync(cmd, args, { stdio: ["ignore", "ignore", "pipe"] });
+  const ms = performance.now() - t;
+  if (r.error) throw r.error;
+  if (r.status !== 0) throw new Error(`${cmd} exited ${r.status}: ${r.stderr}`);
+  return ms;
+}
+
+function main(): void {
+  const dir = mkdtempSync(join(tmpdir(), "grindfade-bench-"));
+  try {
+    // Strokes of 0.8–1.6 s with 0.6–1.2 s lifts, contrast fading every 30
+    // strokes as if seat after seat were lapped: about 290 strokes.
+    const strokes: { contrastDb: number }[] = [];
+    for (let i = 0; i < 400; i++) strokes.push({ contrastDb: 0.3 + 10 * Math.exp(-(i % 30) / 5) });
+    let session = synthesizeSession({ sampleRate: SAMPLE_RATE, seed: 1, strokes, tailS: 0 });
+    session = { ...session, samples: session.samples.subarray(0, SAMPLE_RATE * DURATION_S) };
+    const path = join(dir, "ten-minutes.wav");
+    writeFileSync(path, encodeWav([session.samples], SAMPLE_RATE, { bitsPerSample: 16 }));
+    const bytes = readFileSync(path);
+    console.log(`recording: ${DURATION_S} s, ${SAMPLE_RATE} Hz mono 16-bit, ${(bytes.byteLength / 1e6).toFixed(1)} MB`);
+
+    const decodes = [1, 2, 3].map(() => timeIt(() => decodeWavMono(bytes)));
+    const samples = decodes[0].value.samples;
+    console.log(`decode: first ${decodes[0].ms.toFixed(1)} ms, median of 3 ${median(decodes.map((d) => d.ms)).toFixed(1)} ms`);
+
+    const runs = [1, 2, 3, 4, 5].map(() => timeIt(() => analyzeRecording(samples, { sampleRate: SAMPLE_RATE })));
+    const first = runs[0].ms;
+    const med = median(runs.map((r) => r.ms));
+    console.log(
+      `analysis: first ${first.toFixed(1)} ms (${(DURATION_S / (first / 1000)).toFixed(0)}× real time), ` +
+        `median of 5 ${med.toFixed(1)} ms (${(DURATION_S / (med / 1000)).toFixed(0)}× real time); ` +
+        `${runs[0].value.strokes.length} strokes; goal ≥ 2000× (≤ 300 ms)`,
+    );
+
+    const live = createLiveAnalyzer({ sampleRate: SAMPLE_RATE });
+    const block = 128;
+    const blocks = Math.floor(samples.length / block);
+    const t0 = performance.now();
+    let worst = 0;
+    for (let b = 0; b < blocks; b++) {
+      const t = performance.now();
+      live.push(samples.subarray(b * block, (b + 1) * block));
+      const dt = performance.now() - t;
+      if (dt > worst) worst = dt;
+    }
+    live.flush();
+    const perBlockUs = ((performance.now() - t0) * 1000) / blocks;
+    const blockUs = (block / SAMPLE_RATE) * 1e6;
+    console.log(
+      `live: ${perBlockUs.toFixed(1)} µs per 128-sample block on average (${((100 * perBlockUs) / blockUs).toFixed(2)}% of its ${blockUs.toFixed(0)} µs), ` +
+        `worst block ${(worst * 1000).toFixed(0)} µs (a stroke being judged); ${live.strokes.length} strokes; goal < 10%`,
+    );
+
+    const hasAubio = spawnSync("aubioonset", ["--help"], { stdio: "ignore" }).error === undefined;
+    const cliArgs = ["run", "--silent", "analyze", "--", path, "--json"];
+    execFileSync("npm", cliArgs); // warm tsx's compile cache, as any second run would be
+    const ours = [1, 2, 3].map(() => wallMs("npm", cliArgs));
+    console.log(`process: npm run analyze, median of 3: ${median(ours).toFixed(0)} ms`);
+    if (hasAubio) {
+      const aubio = [1, 2, 3].map(() => wallMs("aubioonset", ["-i", path, "-O", "hfc"]));
+      const ratio = median(aubio) / median(ours);
+      console.log(
+        `process: aubioonset -O hfc, median of 3: ${median(aubio).toFixed(0)} ms; ` +
+          `aubioonset / analyzer = ${ratio.toFixed(2)} (goal > 1: the analyzer is faster)`,
+      );
+    } else {
+      console.log("process: aubioonset not installed (apt-get install aubio-tools); ratio not measured");
+    }
+  } finally {
+    rmSync(dir, { recursive: true, force: true });
+  }
+}
+
+main();
