@@ -30,11 +30,12 @@ describe("live analyzer gives the offline analyzer's strokes", () => {
   ]);
   const offlineLeadIn = analyzeRecording(session.samples, { sampleRate: 44100, options: { leadInMs: 2000 } });
 
-  it.each([
+  const blockings: [string, () => number][] = [
     ["128-sample blocks", () => 128],
     ["blocks of random size", randomSizes(17)],
     ["one block", () => Number.MAX_SAFE_INTEGER],
-  ] as const)("after a 2 s calibration, pushed in %s", (_label, size) => {
+  ];
+  it.each(blockings)("after a 2 s calibration, pushed in %s", (_label, size) => {
     const live = createLiveAnalyzer({ sampleRate: 44100 });
     expect(live.state).toBe("calibrating");
     const events = pushAll(live, session.samples, size);
