@@ -5,7 +5,9 @@
 
 import { highBandHz, measureStroke } from "./contrast";
 import { frameSizeFor, hopSizeFor, SpectrumFrame } from "./frames";
-import { levelSeries, noiseFloorDbfs } from "./level";
+import { LevelMeter, levelSeries, noiseFloorDbfs } from "./level";
+import { LiveAnalyzer, type LiveEvent } from "./live";
+import { decodeWavMono, forEachMonoChunk, readWavInfo } from "./wav";
 import {
   resolveOptions,
   validateSampleRate,
@@ -179,6 +181,57 @@ export function analyzeRecording(samples: Float32Array, input: AnalyzeRecordingI
     durationS: samples.length / sr,
     noiseFloorDbfs: floor,
     noiseFloorSource: source,
+    highBandHz: highBandHz(sr, o),
+    strokes,
+    rejected,
+    verdict: judgeSeat(strokes, o),
+    warnings: recordingWarnings(strokes, rejected, clippedAnywhere, sr, o),
+  };
+}
+
+/**
+ * Analyse a WAV file's bytes without materialising the whole decoded
+ * recording: one pass of the level meter for the noise floor, then the live
+ * analyzer over the same chunks. Same result as decoding with decodeWavMono
+ * and calling analyzeRecording — the live and offline paths agree by design.
+ */
+export function analyzeWavBytes(bytes: Uint8Array, options: AnalysisOptionsInput = {}): AnalysisResult {
+  const o = resolveOptions(options);
+  const info = readWavInfo(bytes);
+  const sr = validateSampleRate(info.sampleRate);
+  const chunk = 1 << 15;
+  const meter = LevelMeter.fromOptions(sr, o);
+  const levels = new Float64Array(Math.floor(info.frames / meter.hopSize));
+  let clippedAnywhere = false;
+  let h = 0;
+  const onHop = (level: number, clipped: boolean) => {
+    if (h < levels.length) levels[h++] = level;
+    if (clipped) clippedAnywhere = true;
+  };
+  forEachMonoChunk(bytes, chunk, (samples) => meter.push(samples, 0, samples.length, onHop));
+  const leadInHops = Math.min(levels.length, Math.floor(Math.round((sr * o.leadInMs) / 1000) / meter.hopSize));
+  // The live analyzer calibrates on exactly the hops an offline lead-in uses.
+  const useCalibration = leadInHops > 0 && o.leadInMs >= 100;
+  const floor = leadInHops > 0 ? noiseFloorDbfs(levels, o, 0, leadInHops) : noiseFloorDbfs(levels, o);
+  const live = useCalibration
+    ? new LiveAnalyzer({ sampleRate: sr, options: { ...o, calibrationMs: o.leadInMs } })
+    : new LiveAnalyzer({ sampleRate: sr, options: o, noiseFloorDbfs: floor });
+  if (leadInHops > 0 && !useCalibration) {
+    const decoded = decodeWavMono(bytes);
+    return analyzeRecording(decoded.samples, { sampleRate: sr, options: o });
+  }
+  const rejected: RejectedSound[] = [];
+  const collect = (events: readonly LiveEvent[]) => {
+    for (const e of events) if (e.type === "rejected") rejected.push(e.sound);
+  };
+  forEachMonoChunk(bytes, chunk, (samples) => collect(live.push(samples)));
+  collect(live.flush());
+  const strokes = [...live.strokes];
+  return {
+    sampleRate: sr,
+    durationS: info.frames / sr,
+    noiseFloorDbfs: floor,
+    noiseFloorSource: leadInHops > 0 ? "lead-in" : "quietest-frames",
     highBandHz: highBandHz(sr, o),
     strokes,
     rejected,

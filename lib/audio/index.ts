@@ -4,7 +4,7 @@
 
 export { ANALYSIS_DEFAULTS, resolveOptions, validateSampleRate, OptionsError, MIN_SAMPLE_RATE_HZ, MAX_SAMPLE_RATE_HZ } from "./options";
 export type { AnalysisOptions, AnalysisOptionsInput } from "./options";
-export { decodeWav, decodeWavMono, readWavInfo, mixDown, encodeWav, WavFormatError } from "./wav";
+export { decodeWav, decodeWavMono, readWavInfo, forEachMonoChunk, mixDown, encodeWav, WavFormatError } from "./wav";
 export type { DecodedWav, DecodedMonoWav, WavInfo, WavErrorCode } from "./wav";
 export { frameSizeFor, hopSizeFor, hannWindow, bandBins, framePositions, SpectrumFrame } from "./frames";
 export { spectralCentroidHz, spectralFlatness, spectralRolloffHz, spectralFlux, bandPower, powerToDb } from "./features";
@@ -18,7 +18,7 @@ export { fitFade, fadeAt } from "./fade";
 export type { FadeFit } from "./fade";
 export { judgeSeat, leastSquaresSlope, ruleHoldsAt, firstSettledPosition, strokesRemaining } from "./verdict";
 export type { SeatVerdict, SeatState, SettledRule, StrokeFlag, VerdictStroke } from "./verdict";
-export { analyzeRecording, StrokeJudge, WARNING_TEXT, recordingWarnings } from "./analyzer";
+export { analyzeRecording, analyzeWavBytes, StrokeJudge, WARNING_TEXT, recordingWarnings } from "./analyzer";
 export type { AnalysisResult, AnalyzeRecordingInput, Stroke, RecordingWarning, NoiseFloorSource } from "./analyzer";
 export { LiveAnalyzer, createLiveAnalyzer } from "./live";
 export type { LiveEvent, LiveState, LiveAnalyzerInput } from "./live";

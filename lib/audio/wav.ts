@@ -167,22 +167,24 @@ function readChannel(
   out: Float32Array,
   add: boolean,
   gain: number,
+  fromFrame = 0,
+  toFrame = layout.frames,
 ): void {
-  const n = layout.frames;
+  const n = toFrame - fromFrame;
   const ch = layout.channels;
   const bits = layout.bitsPerSample;
   if (view) {
     const g = gain * (layout.encoding === "float" ? 1 : 1 / 2 ** (bits - 1));
     if (ch === 1 && !add) {
-      for (let i = 0; i < n; i++) out[i] = view[i] * g;
+      for (let i = 0, p = fromFrame; i < n; i++, p++) out[i] = view[p] * g;
     } else {
-      for (let i = 0, p = channel; i < n; i++, p += ch) out[i] = add ? out[i] + view[p] * g : view[p] * g;
+      for (let i = 0, p = fromFrame * ch + channel; i < n; i++, p += ch) out[i] = add ? out[i] + view[p] * g : view[p] * g;
     }
     return;
   }
   const dv = new DataView(bytes.buffer, bytes.byteOffset, bytes.byteLength);
   const stride = layout.blockAlign;
-  let p = layout.dataOffset + channel * (bits >> 3);
+  let p = layout.dataOffset + fromFrame * stride + channel * (bits >> 3);
   switch (bits) {
     case 8: {
       const g = gain / 128;
@@ -244,6 +246,31 @@ export function decodeWavMono(bytes: Uint8Array): DecodedMonoWav {
   }
   const { dataOffset: _o, blockAlign: _b, ...info } = layout;
   return { ...info, samples };
+}
+
+/**
+ * Decode the mono mix in chunks of `chunkFrames` into one reused buffer and
+ * hand each to `onChunk` (valid only during the call). A ten-minute file then
+ * needs a few hundred kilobytes instead of a fresh 115 MB array, whose first
+ * touch alone (page faults) costs more than the decoding.
+ */
+export function forEachMonoChunk(
+  bytes: Uint8Array,
+  chunkFrames: number,
+  onChunk: (samples: Float32Array, firstFrame: number) => void,
+): WavInfo {
+  const layout = parseLayout(bytes);
+  const view = sampleView(bytes, layout);
+  const buffer = new Float32Array(Math.max(1, Math.min(chunkFrames, layout.frames)));
+  const gain = 1 / layout.channels;
+  for (let from = 0; from < layout.frames; from += chunkFrames) {
+    const to = Math.min(layout.frames, from + chunkFrames);
+    const out = to - from === buffer.length ? buffer : buffer.subarray(0, to - from);
+    for (let c = 0; c < layout.channels; c++) readChannel(bytes, layout, view, c, out, c > 0, gain, from, to);
+    onChunk(out, from);
+  }
+  const { dataOffset: _o, blockAlign: _b, ...info } = layout;
+  return info;
 }
 
 /** Average channels into one (for callers that already hold channel arrays). */

@@ -1,5 +1,6 @@
 import { describe, expect, it } from "vitest";
-import { analyzeRecording } from "@/lib/audio/analyzer";
+import { analyzeRecording, analyzeWavBytes } from "@/lib/audio/analyzer";
+import { decodeWavMono, encodeWav } from "@/lib/audio/wav";
 import { createLiveAnalyzer, type LiveAnalyzer, type LiveEvent } from "@/lib/audio/live";
 import { createRandom } from "@/lib/audio/synth";
 import { decayingSession, sessionWithPauses } from "./sessions";
@@ -95,5 +96,21 @@ describe("live analyzer gives the offline analyzer's strokes", () => {
     const live = createLiveAnalyzer({ sampleRate: 48000 });
     expect(() => live.startCalibration(20)).toThrow(/20/);
     expect(() => live.setNoiseFloor(Number.NaN)).toThrow(/NaN/);
+  });
+});
+
+describe("chunked analysis of WAV bytes (the command line's path)", () => {
+  it.each([
+    ["16-bit mono", 1, 16],
+    ["24-bit stereo", 2, 24],
+  ] as const)("equals decoding whole and analysing offline: %s", (_label, channels, bits) => {
+    const s = sessionWithPauses(48000, (p) => [{ kind: "tap", atS: p.strokes[3].endS + 1 }]);
+    const chans = Array.from({ length: channels }, () => s.samples);
+    const bytes = encodeWav(chans, 48000, { bitsPerSample: bits });
+    const whole = analyzeRecording(decodeWavMono(bytes).samples, { sampleRate: 48000 });
+    expect(analyzeWavBytes(bytes)).toEqual(whole);
+    const withLeadIn = analyzeRecording(decodeWavMono(bytes).samples, { sampleRate: 48000, options: { leadInMs: 2000 } });
+    expect(analyzeWavBytes(bytes, { leadInMs: 2000 })).toEqual(withLeadIn);
+    expect(whole.strokes).toHaveLength(s.strokes.length);
   });
 });
