@@ -5,6 +5,8 @@ const nextConfig: NextConfig = {
   serverExternalPackages: ["@electric-sql/pglite", "pg"],
   poweredByHeader: false,
   typedRoutes: false,
+  // `npm test` type-checks the whole project once (next typegen && tsc); the build need not repeat it.
+  typescript: { ignoreBuildErrors: true },
 };
 
 export default nextConfig;

@@ -251,9 +251,15 @@ export const lappingSessions = pgTable(
       .references(() => users.id, { onDelete: "restrict" }),
     sampleRateHz: integer("sample_rate_hz"),
     noiseFloorDb: real("noise_floor_db"),
+    // The phone listening to this session; a second phone is told the seat is busy while
+    // this one has been heard from recently (lastSeenAt).
+    deviceId: text("device_id"),
+    lastSeenAt: timestamp("last_seen_at", { withTimezone: true }).notNull().defaultNow(),
     startedAt: timestamp("started_at", { withTimezone: true }).notNull().defaultNow(),
     endedAt: timestamp("ended_at", { withTimezone: true }),
     recordingKey: text("recording_key"),
+    recordingType: text("recording_type"),
+    recordingBytes: integer("recording_bytes"),
   },
   (t) => [
     index("lapping_sessions_seat_idx").on(t.seatId, t.stage),

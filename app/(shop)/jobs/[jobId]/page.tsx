@@ -82,7 +82,11 @@ export default async function JobPage({ params }: PageProps<"/jobs/[jobId]">) {
                       {head.seats
                         .filter((s) => s.cylinder === cyl)
                         .map((s) => (
-                          <li key={s.id} className={`flex items-center justify-between gap-2 rounded-lg px-3 py-2 ring-1 ${SEAT_STATE_TONES[s.state]}`}>
+                          <li key={s.id}>
+                            <Link
+                              href={`/bench/${s.id}`}
+                              className={`flex min-h-14 items-center justify-between gap-2 rounded-lg px-3 py-2 ring-1 ${SEAT_STATE_TONES[s.state]}`}
+                            >
                             <span>
                               <span className="figure font-bold">{seatCode(s)}</span>{" "}
                               <span className="text-sm">
@@ -95,6 +99,7 @@ export default async function JobPage({ params }: PageProps<"/jobs/[jobId]">) {
                                 {s.valve ? `valve ${s.valve.tag}${s.valve.serial ? ` · ${s.valve.serial}` : ""}` : "no valve"}
                               </span>
                             </span>
+                            </Link>
                           </li>
                         ))}
                     </ul>

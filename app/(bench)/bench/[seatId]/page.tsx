@@ -1,0 +1,23 @@
+import type { Metadata } from "next";
+import { notFound } from "next/navigation";
+import { z } from "zod";
+import { getDb } from "@/db/client";
+import { BenchScreen } from "@/components/bench/bench-screen";
+import { requireActor } from "@/lib/auth/guard";
+import { getSeatReport } from "@/lib/bench/service";
+import { NotFoundError } from "@/lib/errors";
+
+export const metadata: Metadata = { title: "Bench" };
+
+export default async function BenchPage({ params }: PageProps<"/bench/[seatId]">) {
+  const actor = await requireActor("jobs:read");
+  const { seatId } = await params;
+  if (!z.string().uuid().safeParse(seatId).success) notFound();
+  try {
+    const report = await getSeatReport(await getDb(), actor, seatId);
+    return <BenchScreen key={seatId} initial={report} />;
+  } catch (err) {
+    if (err instanceof NotFoundError) notFound();
+    throw err;
+  }
+}

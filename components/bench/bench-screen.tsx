@@ -1,0 +1,485 @@
+"use client";
+
+import { useQuery, useQueryClient } from "@tanstack/react-query";
+import Link from "next/link";
+import { useCallback, useEffect, useMemo, useRef, useState } from "react";
+import type { Stroke } from "@/lib/audio/analyzer";
+import type { RejectedSound } from "@/lib/audio/strokes";
+import { judgeSeat, type SeatVerdict } from "@/lib/audio/verdict";
+import { Outbox, type FlushReport } from "@/lib/bench/outbox";
+import type { SeatReport } from "@/lib/bench/service";
+import type { StrokeInput } from "@/lib/validations/bench";
+import { SEAT_STATE_LABELS, STAGE_LABELS } from "@/lib/labels";
+import { FadeChart, type ChartStroke } from "./fade-chart";
+import { useListener } from "./use-listener";
+
+type Stage = "coarse" | "fine";
+
+/** Our names for where the fade curve stands, as the technician reads them. */
+const VERDICT_LABELS: Record<SeatVerdict["state"], string> = {
+  "no-strokes": "No strokes yet",
+  fading: "Still fading",
+  settled: "Settled",
+  "not-settling": "Not settling",
+};
+
+function deviceId(): string {
+  const key = "grindfade-device";
+  let id = localStorage.getItem(key);
+  if (!id) {
+    id = crypto.randomUUID();
+    localStorage.setItem(key, id);
+  }
+  return id;
+}
+
+async function fetchSeat(seatId: string): Promise<SeatReport> {
+  const res = await fetch(`/api/seats/${seatId}`, { headers: { accept: "application/json" } });
+  const body = (await res.json().catch(() => null)) as (SeatReport & { message?: string }) | null;
+  if (!res.ok || !body) throw new Error(body?.message ?? `The seat could not be loaded (HTTP ${res.status}).`);
+  return body;
+}
+
+function playTone() {
+  try {
+    const ctx = new AudioContext();
+    const osc = ctx.createOscillator();
+    const gain = ctx.createGain();
+    osc.frequency.value = 880;
+    gain.gain.setValueAtTime(0.0001, ctx.currentTime);
+    gain.gain.exponentialRampToValueAtTime(0.3, ctx.currentTime + 0.02);
+    gain.gain.exponentialRampToValueAtTime(0.0001, ctx.currentTime + 0.45);
+    osc.connect(gain).connect(ctx.destination);
+    osc.start();
+    osc.stop(ctx.currentTime + 0.5);
+    osc.onended = () => void ctx.close();
+  } catch {
+    /* no audio output: the full-screen cue and vibration still show it */
+  }
+}
+
+export function BenchScreen({ initial }: { initial: SeatReport }) {
+  const seatId = initial.seat.id;
+  const queryClient = useQueryClient();
+  const seatQuery = useQuery({ queryKey: ["seat", seatId], queryFn: () => fetchSeat(seatId), initialData: initial });
+  const report = seatQuery.data;
+  const defaultStage: Stage = report.stages.coarse.verdict.state === "settled" ? "fine" : "coarse";
+  const [stage, setStage] = useState<Stage>(defaultStage);
+  const [record, setRecord] = useState(true);
+  const [local, setLocal] = useState<Array<{ sessionId: string; stroke: StrokeInput }>>([]);
+  const [pendingCount, setPendingCount] = useState(0);
+  const [syncNote, setSyncNote] = useState<string | null>(null);
+  const [refusals, setRefusals] = useState<string[]>([]);
+  const [speechHeard, setSpeechHeard] = useState(0);
+  const [cue, setCue] = useState<"settled" | "not-settling" | null>(null);
+  const sessionRef = useRef<string | null>(null);
+  const cueShown = useRef<{ settled: boolean; notSettling: boolean }>({ settled: false, notSettling: false });
+  const outboxRef = useRef<Outbox | null>(null);
+  const strokeCounter = useRef(0);
+
+  const outbox = useCallback(() => (outboxRef.current ??= new Outbox()), []);
+
+  const sync = useCallback(async () => {
+    let report: FlushReport;
+    try {
+      report = await outbox().flush();
+    } catch {
+      setSyncNote("This phone's storage is not available; strokes cannot be kept offline.");
+      return;
+    }
+    setPendingCount(report.pending);
+    if (report.refused.length) setRefusals((r) => [...r, ...report.refused.map((x) => x.message)]);
+    setSyncNote(
+      report.stoppedBy === "offline"
+        ? "No network: strokes are kept on this phone and sent when it returns."
+        : report.stoppedBy === "signed-out"
+          ? "You were signed out. Sign in again in another tab; strokes are kept on this phone."
+          : report.stoppedBy === "server"
+            ? "The server is busy; strokes are kept and will be resent."
+            : null,
+    );
+    if (report.sent > 0) {
+      const pending = await outbox().pendingStrokes(seatId);
+      await queryClient.invalidateQueries({ queryKey: ["seat", seatId] });
+      setLocal((l) => l.filter((x) => pending.some((p) => p.stroke.clientId === x.stroke.clientId)));
+    }
+  }, [outbox, queryClient, seatId]);
+
+  // Strokes still in the outbox from before a reload belong on the curve too.
+  useEffect(() => {
+    let cancelled = false;
+    void (async () => {
+      try {
+        const pending = await outbox().pendingStrokes(seatId);
+        if (!cancelled && pending.length) setLocal(pending);
+        await sync();
+      } catch {
+        /* storage unavailable: handled in sync */
+      }
+    })();
+    const online = () => void sync();
+    window.addEventListener("online", online);
+    const timer = setInterval(() => {
+      if (navigator.onLine) void sync();
+    }, 5000);
+    return () => {
+      cancelled = true;
+      window.removeEventListener("online", online);
+      clearInterval(timer);
+    };
+  }, [outbox, seatId, sync]);
+
+  const listener = useListener({
+    onCalibrated: () => {},
+    onStroke: (s: Stroke) => {
+      const sessionId = sessionRef.current;
+      if (!sessionId) return;
+      strokeCounter.current += 1;
+      const stroke: StrokeInput = {
+        clientId: crypto.randomUUID(),
+        index: strokeCounter.current,
+        startS: s.startS,
+        endS: s.endS,
+        onsetDb: s.onsetDb,
+        bodyDb: s.bodyDb,
+        contrastDb: s.contrastDb,
+        flags: s.flags,
+      };
+      setLocal((l) => [...l, { sessionId, stroke }]);
+      void outbox()
+        .add({ kind: "stroke", seatId, sessionId, stroke })
+        .then(sync);
+    },
+    onRejected: (sound: RejectedSound) => {
+      if (sound.reason === "not-noise-like") setSpeechHeard((n) => n + 1);
+    },
+    onRecording: (blob, type) => {
+      const sessionId = sessionRef.current;
+      if (!sessionId) return;
+      void outbox()
+        .add({ kind: "recording", seatId, sessionId, type, blob })
+        .then(sync);
+    },
+  });
+
+  const serverStage = report.stages[stage];
+  const combined = useMemo(() => {
+    const known = new Set(serverStage.strokes.map((s) => s.clientId));
+    const sessionsOfStage = new Set(serverStage.sessions.map((s) => s.id));
+    const mine = local.filter(
+      (l) => !known.has(l.stroke.clientId) && (sessionsOfStage.has(l.sessionId) || l.sessionId === sessionRef.current),
+    );
+    const all: Array<ChartStroke & { flags: string[]; startS: number }> = [
+      ...serverStage.strokes.map((s) => ({ n: s.n, contrastDb: s.contrastDb, flags: s.flags, startS: s.startS })),
+      ...mine.map((m, i) => ({
+        n: serverStage.strokes.length + i + 1,
+        contrastDb: m.stroke.contrastDb,
+        flags: m.stroke.flags,
+        startS: m.stroke.startS,
+        pending: true,
+      })),
+    ];
+    return { all, pending: mine.length };
+  }, [serverStage, local]);
+
+  const preview = useMemo(
+    () => judgeSeat(combined.all.map((s) => ({ contrastDb: s.contrastDb, index: s.n, flags: s.flags, startS: s.startS }))),
+    [combined.all],
+  );
+  const waitingToSync = combined.pending > 0 || pendingCount > 0;
+  const verdict: SeatVerdict = combined.pending > 0 ? preview : serverStage.verdict;
+  const last = combined.all[combined.all.length - 1];
+  const lastFlags = last?.flags ?? [];
+
+  const stopListening = listener.stop;
+  // The settled cue: full screen, vibration, and a tone once listening has stopped (so the
+  // microphone does not hear it).
+  useEffect(() => {
+    if (verdict.state === "settled" && !cueShown.current.settled && (listener.phase === "listening" || combined.pending > 0)) {
+      cueShown.current.settled = true;
+      setCue("settled");
+      navigator.vibrate?.([250, 120, 250, 120, 400]);
+      void stopListening().then(() => {
+        playTone();
+        void finishSession();
+      });
+    } else if (verdict.state === "not-settling" && !cueShown.current.notSettling && listener.phase === "listening") {
+      cueShown.current.notSettling = true;
+      setCue("not-settling");
+      navigator.vibrate?.([600]);
+    }
+    // finishSession is stable for this purpose; adding it would re-run the cue.
+    // eslint-disable-next-line react-hooks/exhaustive-deps
+  }, [verdict.state, listener.phase, combined.pending, stopListening]);
+
+  async function finishSession() {
+    const sessionId = sessionRef.current;
+    if (!sessionId) return;
+    await outbox().add({ kind: "end", seatId, sessionId });
+    await sync();
+  }
+
+  async function startListening() {
+    setCue(null);
+    setRefusals([]);
+    setSpeechHeard(0);
+    cueShown.current = { settled: serverStage.verdict.state === "settled", notSettling: false };
+    const sessionId = crypto.randomUUID();
+    sessionRef.current = sessionId;
+    strokeCounter.current = 0;
+    const ok = await listener.start({ record });
+    if (!ok) {
+      sessionRef.current = null;
+      return;
+    }
+    await outbox().add({
+      kind: "session",
+      seatId,
+      body: { sessionId, stage, deviceId: deviceId(), sampleRateHz: undefined },
+    });
+    await sync();
+  }
+
+  async function stop() {
+    await listener.stop();
+    await finishSession();
+  }
+
+  const listening = listener.phase === "calibrating" || listener.phase === "listening" || listener.phase === "starting";
+  const fineOffered = stage === "coarse" && verdict.state === "settled";
+  const seatDone = stage === "fine" && verdict.state === "settled";
+  const busyRefusal = refusals.find((r) => /busy/i.test(r));
+
+  return (
+    <div className="mx-auto flex min-h-dvh max-w-3xl flex-col gap-3 p-3 pb-8 sm:p-4" data-testid="bench">
+      <header className="flex items-start justify-between gap-3">
+        <div>
+          <Link href={`/jobs/${report.job.id}`} className="text-sm font-semibold text-brass-dark underline-offset-2 hover:underline">
+            ← {report.job.number} · {report.head.label}
+          </Link>
+          <h1 className="mt-1 leading-none" data-testid="seat-heading">
+            <span className="figure block text-6xl font-bold sm:text-7xl">{report.seat.code}</span>
+            <span className="mt-1 block text-xl font-semibold">{report.seat.label}</span>
+          </h1>
+          {report.seat.valveTag ? (
+            <p className="mt-1 text-sm text-stone-600">
+              Valve <span className="figure font-semibold">{report.seat.valveTag}</span> — it goes back into this seat only.
+            </p>
+          ) : null}
+        </div>
+        <div className="text-right">
+          <span className="block text-sm text-stone-500">Seat</span>
+          <span className="block font-semibold" data-testid="seat-state">
+            {SEAT_STATE_LABELS[report.seat.state]}
+          </span>
+        </div>
+      </header>
+
+      <div role="group" aria-label="Stage" className="grid grid-cols-2 gap-2">
+        {(["coarse", "fine"] as const).map((s) => (
+          <button
+            key={s}
+            type="button"
+            disabled={listening}
+            aria-pressed={stage === s}
+            onClick={() => {
+              setStage(s);
+              setCue(null);
+            }}
+            className={`min-h-14 rounded-xl border-2 text-lg font-bold disabled:opacity-60 ${
+              stage === s ? "border-ink bg-ink text-white" : "border-stone-400 bg-white"
+            }`}
+          >
+            {STAGE_LABELS[s]}
+            <span className="block text-xs font-normal">{VERDICT_LABELS[report.stages[s].verdict.state]}</span>
+          </button>
+        ))}
+      </div>
+
+      <section aria-live="polite" className="grid grid-cols-3 gap-2 rounded-2xl bg-ink p-3 text-white">
+        <div>
+          <div className="text-sm text-stone-300">Strokes</div>
+          <div className="figure text-4xl font-bold" data-testid="stroke-count">
+            {combined.all.length}
+          </div>
+        </div>
+        <div className="col-span-2 text-right">
+          <div className="text-sm text-stone-300">Last stroke&apos;s onset contrast</div>
+          <div className="figure text-5xl font-bold" data-testid="last-contrast">
+            {last ? `${last.contrastDb >= 0 ? "+" : ""}${last.contrastDb.toFixed(1)}` : "—"}
+            <span className="text-2xl"> dB</span>
+          </div>
+        </div>
+        <div className="col-span-3 flex flex-wrap items-center justify-between gap-2 border-t border-stone-700 pt-2">
+          <span className="text-2xl font-bold" data-testid="verdict">
+            {VERDICT_LABELS[verdict.state]}
+          </span>
+          <span className="text-sm text-stone-300">
+            {verdict.state === "fading" && verdict.strokesRemaining !== null
+              ? `about ${verdict.strokesRemaining} more stroke${verdict.strokesRemaining === 1 ? "" : "s"}`
+              : verdict.state === "settled"
+                ? `at stroke ${verdict.settled?.atStroke}`
+                : `settled: last ${verdict.rule.consecutive} ≤ ${verdict.rule.maxContrastDb} dB and flat`}
+          </span>
+        </div>
+      </section>
+
+      <div className="rounded-2xl border border-stone-300 bg-white p-2">
+        <FadeChart strokes={combined.all} fit={verdict.fit} thresholdDb={verdict.rule.maxContrastDb} />
+        <p className="px-2 text-xs text-stone-500">Green band: settled zone. Dashed: fitted fade toward its floor.</p>
+      </div>
+
+      <div aria-live="polite" className="flex flex-col gap-2">
+        {waitingToSync ? (
+          <p className="rounded-lg bg-sky-100 px-3 py-2 text-sm font-semibold text-sky-900" data-testid="sync-state">
+            Waiting to sync {Math.max(combined.pending, pendingCount)} item{Math.max(combined.pending, pendingCount) === 1 ? "" : "s"} — the server&apos;s verdict counts.
+          </p>
+        ) : (
+          <p className="text-sm text-stone-500" data-testid="sync-state">
+            All strokes saved on the server.
+          </p>
+        )}
+        {syncNote ? <p className="rounded-lg bg-amber-100 px-3 py-2 text-sm text-amber-900">{syncNote}</p> : null}
+        {busyRefusal ? (
+          <p role="alert" className="rounded-lg bg-rose-100 px-3 py-2 text-sm font-semibold text-rose-900">
+            {busyRefusal}
+          </p>
+        ) : (
+          refusals.slice(-1).map((r) => (
+            <p key={r} role="alert" className="rounded-lg bg-rose-100 px-3 py-2 text-sm font-semibold text-rose-900">
+              Not saved: {r}
+            </p>
+          ))
+        )}
+        {listener.processing.length ? (
+          <p className="rounded-lg bg-amber-100 px-3 py-2 text-sm text-amber-900" data-testid="processing-warning">
+            This browser kept {listener.processing.map((p) => p.label).join(", ")} on. It can fade a steady sound and make
+            the curve unreliable; some phones force it. Try another browser, or a wired microphone.
+          </p>
+        ) : null}
+        {lastFlags.includes("too-quiet") ? (
+          <p className="rounded-lg bg-amber-100 px-3 py-2 text-sm text-amber-900">
+            Too quiet to judge: move the phone closer to the head (about a hand&apos;s width).
+          </p>
+        ) : null}
+        {lastFlags.includes("clipping") ? (
+          <p className="rounded-lg bg-amber-100 px-3 py-2 text-sm text-amber-900">
+            Clipping: the sound is too loud for the microphone. Move the phone a little further away.
+          </p>
+        ) : null}
+        {speechHeard > 0 ? (
+          <p className="rounded-lg bg-stone-200 px-3 py-2 text-sm text-stone-800">
+            Speech or a ringing sound was heard and ignored ({speechHeard}×). Keep talk to the pauses.
+          </p>
+        ) : null}
+        {listener.error ? (
+          <div role="alert" className="rounded-xl border border-rose-300 bg-rose-50 p-3 text-rose-900" data-testid="listen-error">
+            <p className="font-semibold">{listener.error}</p>
+          </div>
+        ) : null}
+      </div>
+
+      {!report.canWork ? (
+        <p className="rounded-xl border border-stone-300 bg-stone-100 p-3 text-sm">
+          This seat is read-only for you
+          {report.seat.state === "approved" ? ": it is signed off." : ": the job is assigned to someone else or your role only reads."}
+        </p>
+      ) : (
+        <div className="sticky bottom-2 flex flex-col gap-2">
+          {listener.phase === "calibrating" ? (
+            <p className="rounded-xl bg-amber-400 p-3 text-center text-xl font-bold text-ink" data-testid="calibrating">
+              Stay quiet — measuring the room…
+            </p>
+          ) : null}
+          {listening ? (
+            <div className="grid grid-cols-3 gap-2">
+              <button
+                type="button"
+                onClick={listener.recalibrate}
+                disabled={listener.phase !== "listening"}
+                className="min-h-16 rounded-2xl border-2 border-ink bg-white text-base font-bold disabled:opacity-50"
+              >
+                Re-measure room
+              </button>
+              <button
+                type="button"
+                onClick={() => void stop()}
+                className="col-span-2 min-h-16 rounded-2xl bg-rose-700 text-xl font-bold text-white"
+              >
+                Stop listening
+              </button>
+            </div>
+          ) : (
+            <>
+              <label className="flex min-h-12 items-center gap-3 rounded-xl bg-white px-3 text-base">
+                <input type="checkbox" checked={record} onChange={(e) => setRecord(e.target.checked)} className="h-6 w-6" />
+                Record the session for the supervisor
+              </label>
+              <button
+                type="button"
+                onClick={() => void startListening()}
+                className="min-h-16 rounded-2xl bg-emerald-700 text-xl font-bold text-white"
+                data-testid="start-listening"
+              >
+                {listener.error ? "Try again" : `Listen — ${STAGE_LABELS[stage].toLowerCase()}`}
+              </button>
+            </>
+          )}
+          {!listening && fineOffered ? (
+            <button type="button" onClick={() => setStage("fine")} className="min-h-14 rounded-2xl border-2 border-ink bg-white text-lg font-bold">
+              Coarse settled — switch to fine compound
+            </button>
+          ) : null}
+          {!listening && seatDone && report.nextSeatId ? (
+            <Link
+              href={`/bench/${report.nextSeatId}`}
+              className="flex min-h-14 items-center justify-center rounded-2xl border-2 border-ink bg-white text-lg font-bold"
+            >
+              Seat lapped — next seat →
+            </Link>
+          ) : null}
+        </div>
+      )}
+
+      <details className="rounded-xl border border-stone-300 bg-white p-3 text-sm">
+        <summary className="min-h-10 cursor-pointer font-semibold">Cautions</summary>
+        <ul className="mt-2 list-disc pl-5 text-stone-700">
+          <li>Wear eye protection; lapping compound and grit can fly.</li>
+          <li>Keep compound off the stem and guide; clean every trace afterwards with solvent, with ventilation and nitrile gloves, away from flames.</li>
+          <li>Lift and turn the valve between strokes; never spin it with a drill. Some coated valves must not be lapped: check the engine maker&apos;s instructions.</li>
+          <li>The sound is one check. Confirm with an even dull-grey ring on face and seat, and a leak test.</li>
+        </ul>
+      </details>
+
+      {cue === "settled" ? (
+        <div
+          role="alertdialog"
+          aria-label="Seat settled"
+          className="fixed inset-0 z-50 flex flex-col items-center justify-center gap-4 bg-emerald-600 p-6 text-center text-white"
+          data-testid="settled-cue"
+        >
+          <p className="figure text-7xl font-bold">{report.seat.code}</p>
+          <p className="text-5xl font-black uppercase tracking-wide">Settled</p>
+          <p className="text-xl">
+            {stage === "coarse" ? "Coarse compound is done. Clean off, then lap with fine." : "This seat is lapped. Clean off all compound."}
+          </p>
+          <button type="button" onClick={() => setCue(null)} className="min-h-16 min-w-48 rounded-2xl bg-white px-6 text-xl font-bold text-emerald-800">
+            OK
+          </button>
+        </div>
+      ) : null}
+      {cue === "not-settling" ? (
+        <div role="alertdialog" aria-label="Not settling" className="fixed inset-x-0 bottom-0 z-50 bg-amber-500 p-5 text-ink shadow-2xl" data-testid="not-settling-cue">
+          <p className="text-3xl font-black">Not settling</p>
+          <p className="mt-1 text-lg">
+            The curve has gone flat above the settled zone. More lapping will not help: stop, check the contact ring with marking
+            compound, and have the seat (and valve face) checked for recutting.
+          </p>
+          <button type="button" onClick={() => setCue(null)} className="mt-3 min-h-14 w-full rounded-2xl bg-ink text-lg font-bold text-white">
+            Understood
+          </button>
+        </div>
+      ) : null}
+    </div>
+  );
+}

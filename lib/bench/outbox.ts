@@ -1,0 +1,148 @@
+// The phone's outbox: every session start, stroke, session end and recording is written to
+// IndexedDB first and sent from there, so a dropped network or a reload loses nothing. Sends
+// are idempotent on the server (client-made ids), so sending twice is harmless.
+import { openDB, type DBSchema, type IDBPDatabase } from "idb";
+import type { StartSessionInput, StrokeInput } from "@/lib/validations/bench";
+
+export type OutboxOp =
+  | { kind: "session"; seatId: string; body: StartSessionInput }
+  | { kind: "stroke"; seatId: string; sessionId: string; stroke: StrokeInput }
+  | { kind: "end"; seatId: string; sessionId: string }
+  | { kind: "recording"; seatId: string; sessionId: string; type: string; blob: Blob };
+
+export type StoredOp = OutboxOp & { seq: number; failed?: string };
+
+interface OutboxSchema extends DBSchema {
+  ops: { key: number; value: StoredOp; indexes: { bySeat: string } };
+}
+
+export type SendResult =
+  | { kind: "sent"; body?: unknown }
+  | { kind: "retry"; reason: string }
+  | { kind: "refused"; status: number; message: string }
+  | { kind: "signed-out" };
+
+export interface FlushReport {
+  sent: number;
+  pending: number;
+  refused: Array<{ op: StoredOp; message: string }>;
+  stoppedBy: "done" | "offline" | "signed-out" | "server";
+  lastBody?: unknown;
+}
+
+type Fetch = (input: string, init?: RequestInit) => Promise<Response>;
+
+async function send(fetchFn: Fetch, url: string, init: RequestInit): Promise<SendResult> {
+  let res: Response;
+  try {
+    res = await fetchFn(url, init);
+  } catch (err) {
+    return { kind: "retry", reason: err instanceof Error ? err.message : "network" };
+  }
+  const body = (await res.json().catch(() => null)) as { message?: string } | null;
+  if (res.ok) return { kind: "sent", body };
+  if (res.status === 401) return { kind: "signed-out" };
+  if (res.status >= 500 || res.status === 408 || res.status === 429) {
+    return { kind: "retry", reason: `HTTP ${res.status}` };
+  }
+  return { kind: "refused", status: res.status, message: body?.message ?? `Refused (HTTP ${res.status}).` };
+}
+
+export class Outbox {
+  private dbp: Promise<IDBPDatabase<OutboxSchema>>;
+  private flushing: Promise<FlushReport> | null = null;
+
+  constructor(
+    name = "grindfade-outbox",
+    private readonly fetchFn: Fetch = (i, init) => fetch(i, init),
+  ) {
+    this.dbp = openDB<OutboxSchema>(name, 1, {
+      upgrade(db) {
+        const store = db.createObjectStore("ops", { keyPath: "seq", autoIncrement: true });
+        store.createIndex("bySeat", "seatId");
+      },
+    });
+  }
+
+  async add(op: OutboxOp): Promise<void> {
+    const db = await this.dbp;
+    await db.add("ops", op as StoredOp);
+  }
+
+  async all(seatId?: string): Promise<StoredOp[]> {
+    const db = await this.dbp;
+    return seatId ? db.getAllFromIndex("ops", "bySeat", seatId) : db.getAll("ops");
+  }
+
+  async pendingStrokes(seatId: string): Promise<Array<{ sessionId: string; stroke: StrokeInput }>> {
+    return (await this.all(seatId)).flatMap((op) => (op.kind === "stroke" ? [{ sessionId: op.sessionId, stroke: op.stroke }] : []));
+  }
+
+  async count(): Promise<number> {
+    return (await this.dbp).count("ops");
+  }
+
+  async clearFailed(): Promise<void> {
+    const db = await this.dbp;
+    for (const op of await db.getAll("ops")) if (op.failed) await db.delete("ops", op.seq);
+  }
+
+  /** Sends everything in order; concurrent calls share one run. */
+  flush(): Promise<FlushReport> {
+    this.flushing ??= this.run().finally(() => {
+      this.flushing = null;
+    });
+    return this.flushing;
+  }
+
+  private async run(): Promise<FlushReport> {
+    const db = await this.dbp;
+    const ops = (await db.getAll("ops")).filter((o) => !o.failed);
+    const report: FlushReport = { sent: 0, pending: 0, refused: [], stoppedBy: "done" };
+    // A session refused by the server refuses its strokes too; they are kept, marked, not resent.
+    const blockedSessions = new Set<string>();
+    let i = 0;
+    while (i < ops.length) {
+      const op = ops[i]!;
+      let batch: StoredOp[] = [op];
+      let result: SendResult;
+      const json = { "content-type": "application/json" };
+      if (op.kind === "session") {
+        result = await send(this.fetchFn, `/api/seats/${op.seatId}/sessions`, { method: "POST", headers: json, body: JSON.stringify(op.body) });
+      } else if (op.kind === "stroke") {
+        if (blockedSessions.has(op.sessionId)) {
+          i++;
+          continue;
+        }
+        batch = [];
+        for (let j = i; j < ops.length && batch.length < 200; j++) {
+          const o = ops[j]!;
+          if (o.kind !== "stroke" || o.sessionId !== op.sessionId) break;
+          batch.push(o);
+        }
+        const strokes = batch.map((o) => (o as Extract<StoredOp, { kind: "stroke" }>).stroke);
+        result = await send(this.fetchFn, `/api/sessions/${op.sessionId}/strokes`, { method: "POST", headers: json, body: JSON.stringify({ strokes }) });
+      } else if (op.kind === "end") {
+        result = await send(this.fetchFn, `/api/sessions/${op.sessionId}/end`, { method: "POST" });
+      } else {
+        result = await send(this.fetchFn, `/api/sessions/${op.sessionId}/recording`, { method: "PUT", headers: { "content-type": op.type }, body: op.blob });
+      }
+      if (result.kind === "sent") {
+        const tx = db.transaction("ops", "readwrite");
+        await Promise.all([...batch.map((b) => tx.store.delete(b.seq)), tx.done]);
+        report.sent += batch.length;
+        report.lastBody = result.body;
+      } else if (result.kind === "refused") {
+        for (const b of batch) await db.put("ops", { ...b, failed: result.message });
+        report.refused.push({ op, message: result.message });
+        if (op.kind === "session") blockedSessions.add(op.body.sessionId);
+      } else {
+        report.stoppedBy = result.kind === "signed-out" ? "signed-out" : result.reason.startsWith("HTTP") ? "server" : "offline";
+        break;
+      }
+      i += batch.length;
+    }
+    report.pending = (await db.getAll("ops")).filter((o) => !o.failed).length;
+    return report;
+  }
+}

@@ -1,0 +1,390 @@
+// The server side of the bench screen: lapping sessions, stroke saves and the verdict. The
+// phone's own verdict is only a preview; the one that counts is recomputed here from the stored
+// strokes with the same lib/audio functions.
+import { and, asc, eq, gt, isNull, ne, sql } from "drizzle-orm";
+import type { Db } from "@/db/client";
+import {
+  heads,
+  jobs,
+  lappingSessions,
+  seats,
+  strokes,
+  users,
+  valves,
+  type JobStatus,
+  type LappingStage,
+  type SeatState,
+} from "@/db/schema";
+import { judgeSeat, type SeatVerdict } from "@/lib/audio";
+import type { Actor } from "@/lib/auth/guard";
+import { assertCanWorkOn } from "@/lib/auth/job-access";
+import { recordAudit } from "@/lib/audit";
+import { ConflictError, NotFoundError } from "@/lib/errors";
+import { seatCode, seatLabel } from "@/lib/heads/layout";
+import type { StartSessionInput, StrokeInput } from "@/lib/validations/bench";
+
+/** A phone that has sent nothing for this long no longer holds its seat. */
+export const SEAT_HOLD_SECONDS = 45;
+
+const CLOSED_JOB_STATUSES: readonly JobStatus[] = ["signed_off", "collected"];
+
+interface SeatContext {
+  seat: typeof seats.$inferSelect;
+  head: typeof heads.$inferSelect;
+  job: typeof jobs.$inferSelect;
+}
+
+type Reader = Pick<Db, "select">;
+
+async function loadSeat(db: Reader, shopId: string, seatId: string): Promise<SeatContext> {
+  const [row] = await db
+    .select({ seat: seats, head: heads, job: jobs })
+    .from(seats)
+    .innerJoin(heads, eq(heads.id, seats.headId))
+    .innerJoin(jobs, eq(jobs.id, heads.jobId))
+    .where(and(eq(seats.id, seatId), eq(jobs.shopId, shopId)))
+    .limit(1);
+  if (!row) throw new NotFoundError("That seat does not exist in your shop.");
+  return row;
+}
+
+function assertOpenForWork(ctx: SeatContext): void {
+  if (ctx.seat.state === "approved") {
+    throw new ConflictError(
+      `Seat ${seatCode(ctx.seat)} is signed off. A supervisor must reopen it before more strokes are recorded.`,
+    );
+  }
+  if (CLOSED_JOB_STATUSES.includes(ctx.job.status)) {
+    throw new ConflictError(`Job ${ctx.job.number} is signed off; its seats are read-only.`);
+  }
+}
+
+export interface StageRecord {
+  stage: LappingStage;
+  sessions: Array<{ id: string; technicianName: string; startedAt: string; endedAt: string | null; hasRecording: boolean }>;
+  strokes: Array<{
+    n: number;
+    sessionId: string;
+    clientId: string;
+    startS: number;
+    endS: number;
+    onsetDb: number;
+    bodyDb: number;
+    contrastDb: number;
+    flags: string[];
+  }>;
+  verdict: SeatVerdict;
+}
+
+export interface SeatReport {
+  seat: {
+    id: string;
+    code: string;
+    label: string;
+    cylinder: number;
+    kind: "intake" | "exhaust";
+    position: number;
+    state: SeatState;
+    valveTag: string | null;
+  };
+  head: { id: string; label: string };
+  job: { id: string; number: string; status: JobStatus };
+  stages: Record<LappingStage, StageRecord>;
+  nextSeatId: string | null;
+  canWork: boolean;
+}
+
+async function stageRecord(db: Reader, seatId: string, stage: LappingStage): Promise<StageRecord> {
+  const sessionRows = await db
+    .select({
+      id: lappingSessions.id,
+      technicianName: users.name,
+      startedAt: lappingSessions.startedAt,
+      endedAt: lappingSessions.endedAt,
+      recordingKey: lappingSessions.recordingKey,
+    })
+    .from(lappingSessions)
+    .innerJoin(users, eq(users.id, lappingSessions.technicianId))
+    .where(and(eq(lappingSessions.seatId, seatId), eq(lappingSessions.stage, stage)))
+    .orderBy(asc(lappingSessions.startedAt), asc(lappingSessions.id));
+  const strokeRows = await db
+    .select({
+      sessionId: strokes.sessionId,
+      clientId: strokes.clientId,
+      startS: strokes.startS,
+      endS: strokes.endS,
+      onsetDb: strokes.onsetDb,
+      bodyDb: strokes.bodyDb,
+      contrastDb: strokes.contrastDb,
+      flags: strokes.flags,
+      sessionStarted: lappingSessions.startedAt,
+    })
+    .from(strokes)
+    .innerJoin(lappingSessions, eq(lappingSessions.id, strokes.sessionId))
+    .where(and(eq(lappingSessions.seatId, seatId), eq(lappingSessions.stage, stage)))
+    // Sessions in the order they were lapped, strokes in the order they were heard.
+    .orderBy(asc(lappingSessions.startedAt), asc(lappingSessions.id), asc(strokes.startS), asc(strokes.index));
+  const list = strokeRows.map((s, i) => ({
+    n: i + 1,
+    sessionId: s.sessionId,
+    clientId: s.clientId,
+    startS: s.startS,
+    endS: s.endS,
+    onsetDb: s.onsetDb,
+    bodyDb: s.bodyDb,
+    contrastDb: s.contrastDb,
+    flags: s.flags,
+  }));
+  const verdict = judgeSeat(list.map((s) => ({ contrastDb: s.contrastDb, index: s.n, startS: s.startS, flags: s.flags })));
+  return {
+    stage,
+    sessions: sessionRows.map((s) => ({
+      id: s.id,
+      technicianName: s.technicianName,
+      startedAt: s.startedAt.toISOString(),
+      endedAt: s.endedAt ? s.endedAt.toISOString() : null,
+      hasRecording: Boolean(s.recordingKey),
+    })),
+    strokes: list,
+    verdict,
+  };
+}
+
+/** The seat's state after its strokes: our own names, decided by the server's verdicts. */
+export function seatStateFor(current: SeatState, stage: LappingStage, verdict: SeatVerdict, fineVerdict: SeatVerdict): SeatState {
+  if (current === "approved") return current;
+  if (fineVerdict.state === "settled") return "settled";
+  if (verdict.state === "not-settling") return "stalled";
+  if (verdict.state === "no-strokes" && stage === "coarse" && current === "waiting") return "waiting";
+  return "lapping";
+}
+
+async function nextSeatInHead(db: Reader, ctx: SeatContext): Promise<string | null> {
+  const all = await db
+    .select({ id: seats.id, state: seats.state })
+    .from(seats)
+    .where(eq(seats.headId, ctx.head.id))
+    .orderBy(asc(seats.cylinder), asc(seats.kind), asc(seats.position));
+  const at = all.findIndex((s) => s.id === ctx.seat.id);
+  const after = [...all.slice(at + 1), ...all.slice(0, at)];
+  return after.find((s) => s.state !== "settled" && s.state !== "approved")?.id ?? null;
+}
+
+export async function getSeatReport(db: Db, actor: Actor, seatId: string): Promise<SeatReport> {
+  const ctx = await loadSeat(db, actor.shopId, seatId);
+  const [valve] = await db.select({ tag: valves.tag }).from(valves).where(eq(valves.seatId, seatId)).limit(1);
+  let canWork = true;
+  try {
+    assertCanWorkOn(actor, ctx.job);
+    assertOpenForWork(ctx);
+  } catch {
+    canWork = false;
+  }
+  return {
+    seat: {
+      id: ctx.seat.id,
+      code: seatCode(ctx.seat),
+      label: seatLabel(ctx.seat),
+      cylinder: ctx.seat.cylinder,
+      kind: ctx.seat.kind,
+      position: ctx.seat.position,
+      state: ctx.seat.state,
+      valveTag: valve?.tag ?? null,
+    },
+    head: { id: ctx.head.id, label: ctx.head.label },
+    job: { id: ctx.job.id, number: ctx.job.number, status: ctx.job.status },
+    stages: { coarse: await stageRecord(db, seatId, "coarse"), fine: await stageRecord(db, seatId, "fine") },
+    nextSeatId: await nextSeatInHead(db, ctx),
+    canWork,
+  };
+}
+
+export interface StartedSession {
+  sessionId: string;
+  resumed: boolean;
+}
+
+/**
+ * Opens (or resumes) a lapping session. One phone listens to a seat at a time: while another
+ * phone's session on the same seat has been heard from within SEAT_HOLD_SECONDS, a second one
+ * is told the seat is busy.
+ */
+export async function startSession(db: Db, actor: Actor, seatId: string, input: StartSessionInput): Promise<StartedSession> {
+  const ctx = await loadSeat(db, actor.shopId, seatId);
+  assertCanWorkOn(actor, ctx.job);
+  assertOpenForWork(ctx);
+  return db.transaction(async (tx) => {
+    const [existing] = await tx.select().from(lappingSessions).where(eq(lappingSessions.id, input.sessionId)).limit(1);
+    if (existing) {
+      if (existing.seatId !== seatId || existing.stage !== input.stage) {
+        throw new ConflictError("That session belongs to another seat or stage. Start a new session.");
+      }
+      await tx.update(lappingSessions).set({ lastSeenAt: new Date(), deviceId: input.deviceId }).where(eq(lappingSessions.id, existing.id));
+      return { sessionId: existing.id, resumed: true };
+    }
+    const since = new Date(Date.now() - SEAT_HOLD_SECONDS * 1000);
+    const [busy] = await tx
+      .select({ id: lappingSessions.id, name: users.name })
+      .from(lappingSessions)
+      .innerJoin(users, eq(users.id, lappingSessions.technicianId))
+      .where(
+        and(
+          eq(lappingSessions.seatId, seatId),
+          isNull(lappingSessions.endedAt),
+          gt(lappingSessions.lastSeenAt, since),
+          ne(lappingSessions.deviceId, input.deviceId),
+        ),
+      )
+      .limit(1);
+    if (busy) {
+      throw new ConflictError(
+        `Seat ${seatCode(ctx.seat)} is busy: ${busy.name}'s phone is listening to it. Stop there first, or wait ${SEAT_HOLD_SECONDS} s after it goes quiet.`,
+      );
+    }
+    await tx.insert(lappingSessions).values({
+      id: input.sessionId,
+      seatId,
+      stage: input.stage,
+      technicianId: actor.id,
+      deviceId: input.deviceId,
+      sampleRateHz: input.sampleRateHz ?? null,
+      noiseFloorDb: input.noiseFloorDb ?? null,
+    });
+    if (ctx.seat.state === "waiting" || ctx.seat.state === "sent_back") {
+      await tx.update(seats).set({ state: "lapping", updatedAt: new Date() }).where(eq(seats.id, seatId));
+      await recordAudit(tx, {
+        actorId: actor.id,
+        action: "seat.state_changed",
+        entityType: "seat",
+        entityId: seatId,
+        jobId: ctx.job.id,
+        before: { state: ctx.seat.state },
+        after: { state: "lapping" },
+      });
+    }
+    if (ctx.job.status === "queued") {
+      await tx.update(jobs).set({ status: "at_bench", updatedAt: new Date() }).where(eq(jobs.id, ctx.job.id));
+      await recordAudit(tx, {
+        actorId: actor.id,
+        action: "job.status_changed",
+        entityType: "job",
+        entityId: ctx.job.id,
+        jobId: ctx.job.id,
+        before: { status: "queued" },
+        after: { status: "at_bench" },
+      });
+    }
+    await recordAudit(tx, {
+      actorId: actor.id,
+      action: "session.started",
+      entityType: "lapping_session",
+      entityId: input.sessionId,
+      jobId: ctx.job.id,
+      after: { seat: seatCode(ctx.seat), stage: input.stage },
+    });
+    return { sessionId: input.sessionId, resumed: false };
+  });
+}
+
+async function loadSession(db: Reader, shopId: string, sessionId: string) {
+  const [row] = await db
+    .select({ session: lappingSessions, seat: seats, head: heads, job: jobs })
+    .from(lappingSessions)
+    .innerJoin(seats, eq(seats.id, lappingSessions.seatId))
+    .innerJoin(heads, eq(heads.id, seats.headId))
+    .innerJoin(jobs, eq(jobs.id, heads.jobId))
+    .where(and(eq(lappingSessions.id, sessionId), eq(jobs.shopId, shopId)))
+    .limit(1);
+  if (!row) throw new NotFoundError("That lapping session does not exist in your shop.");
+  return row;
+}
+
+export interface StrokeSaveResult {
+  accepted: number;
+  duplicates: number;
+  seatState: SeatState;
+  verdict: SeatVerdict;
+  strokeCount: number;
+}
+
+/** Saves strokes idempotently (a resend with the same clientId is ignored) and re-judges the seat. */
+export async function saveStrokes(db: Db, actor: Actor, sessionId: string, input: StrokeInput[]): Promise<StrokeSaveResult> {
+  const ctx = await loadSession(db, actor.shopId, sessionId);
+  assertCanWorkOn(actor, ctx.job);
+  assertOpenForWork(ctx);
+  return db.transaction(async (tx) => {
+    // Lock the seat row so two saves for one seat judge it one after the other.
+    const [seatNow] = await tx.select().from(seats).where(eq(seats.id, ctx.seat.id)).for("update");
+    if (!seatNow || seatNow.state === "approved") {
+      throw new ConflictError("This seat was signed off meanwhile; the strokes were not saved.");
+    }
+    const inserted = await tx
+      .insert(strokes)
+      .values(input.map((s) => ({ ...s, sessionId })))
+      .onConflictDoNothing({ target: [strokes.sessionId, strokes.clientId] })
+      .returning({ id: strokes.id });
+    await tx.update(lappingSessions).set({ lastSeenAt: new Date() }).where(eq(lappingSessions.id, sessionId));
+    const stage = ctx.session.stage;
+    const current = await stageRecord(tx, ctx.seat.id, stage);
+    const fine = stage === "fine" ? current : await stageRecord(tx, ctx.seat.id, "fine");
+    const next = seatStateFor(seatNow.state, stage, current.verdict, fine.verdict);
+    if (next !== seatNow.state) {
+      await tx.update(seats).set({ state: next, updatedAt: new Date() }).where(eq(seats.id, ctx.seat.id));
+      await recordAudit(tx, {
+        actorId: actor.id,
+        action: "seat.state_changed",
+        entityType: "seat",
+        entityId: ctx.seat.id,
+        jobId: ctx.job.id,
+        before: { state: seatNow.state },
+        after: { state: next, stage, verdict: current.verdict.state, strokes: current.strokes.length },
+      });
+    }
+    return {
+      accepted: inserted.length,
+      duplicates: input.length - inserted.length,
+      seatState: next,
+      verdict: current.verdict,
+      strokeCount: current.strokes.length,
+    };
+  });
+}
+
+export async function endSession(db: Db, actor: Actor, sessionId: string): Promise<void> {
+  const ctx = await loadSession(db, actor.shopId, sessionId);
+  assertCanWorkOn(actor, ctx.job);
+  if (ctx.session.endedAt) return;
+  await db.transaction(async (tx) => {
+    await tx
+      .update(lappingSessions)
+      .set({ endedAt: sql`greatest(now(), ${lappingSessions.startedAt})` })
+      .where(eq(lappingSessions.id, sessionId));
+    await recordAudit(tx, {
+      actorId: actor.id,
+      action: "session.ended",
+      entityType: "lapping_session",
+      entityId: sessionId,
+      jobId: ctx.job.id,
+    });
+  });
+}
+
+export async function attachRecording(
+  db: Db,
+  actor: Actor,
+  sessionId: string,
+  recording: { key: string; type: string; bytes: number },
+): Promise<void> {
+  const ctx = await loadSession(db, actor.shopId, sessionId);
+  assertCanWorkOn(actor, ctx.job);
+  await db
+    .update(lappingSessions)
+    .set({ recordingKey: recording.key, recordingType: recording.type, recordingBytes: recording.bytes })
+    .where(eq(lappingSessions.id, sessionId));
+}
+
+export async function getSessionForUpload(db: Db, actor: Actor, sessionId: string) {
+  const ctx = await loadSession(db, actor.shopId, sessionId);
+  assertCanWorkOn(actor, ctx.job);
+  return ctx;
+}

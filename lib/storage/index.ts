@@ -1,0 +1,90 @@
+// Where recordings and photos are kept. One small interface; files under the data directory
+// by default. (An object-storage implementation plugs in behind the same interface.)
+import fs from "node:fs";
+import fsp from "node:fs/promises";
+import path from "node:path";
+import { Readable } from "node:stream";
+import { pipeline } from "node:stream/promises";
+import { serverEnv } from "@/lib/env";
+
+export interface StoredObject {
+  key: string;
+  bytes: number;
+}
+
+export interface BlobStore {
+  /** Writes the whole stream under key, replacing any earlier object; nothing partial is left on failure. */
+  put(key: string, body: ReadableStream<Uint8Array> | Uint8Array, options?: { maxBytes?: number }): Promise<StoredObject>;
+  get(key: string): Promise<ReadableStream<Uint8Array> | null>;
+  size(key: string): Promise<number | null>;
+  delete(key: string): Promise<void>;
+}
+
+export class TooLargeError extends Error {
+  constructor(readonly maxBytes: number) {
+    super(`larger than ${maxBytes} bytes`);
+  }
+}
+
+const SAFE_KEY = /^[a-z0-9][a-z0-9/_.-]{0,200}$/i;
+
+export class LocalDiskStore implements BlobStore {
+  constructor(private readonly root: string) {}
+
+  private file(key: string): string {
+    if (!SAFE_KEY.test(key) || key.includes("..")) throw new Error(`unsafe storage key ${JSON.stringify(key)}`);
+    return path.join(this.root, key);
+  }
+
+  async put(key: string, body: ReadableStream<Uint8Array> | Uint8Array, options: { maxBytes?: number } = {}) {
+    const target = this.file(key);
+    await fsp.mkdir(path.dirname(target), { recursive: true });
+    const temp = `${target}.part-${process.pid}-${Date.now()}`;
+    let bytes = 0;
+    const max = options.maxBytes ?? Number.POSITIVE_INFINITY;
+    const source = body instanceof Uint8Array ? Readable.from([body]) : Readable.fromWeb(body as import("node:stream/web").ReadableStream);
+    try {
+      await pipeline(
+        source,
+        async function* (chunks: AsyncIterable<Buffer>) {
+          for await (const chunk of chunks) {
+            bytes += chunk.length;
+            if (bytes > max) throw new TooLargeError(max);
+            yield chunk;
+          }
+        },
+        fs.createWriteStream(temp),
+      );
+      await fsp.rename(temp, target);
+    } catch (err) {
+      await fsp.rm(temp, { force: true });
+      throw err;
+    }
+    return { key, bytes };
+  }
+
+  async get(key: string) {
+    const f = this.file(key);
+    if (!fs.existsSync(f)) return null;
+    return Readable.toWeb(fs.createReadStream(f)) as ReadableStream<Uint8Array>;
+  }
+
+  async size(key: string) {
+    try {
+      return (await fsp.stat(this.file(key))).size;
+    } catch {
+      return null;
+    }
+  }
+
+  async delete(key: string) {
+    await fsp.rm(this.file(key), { force: true });
+  }
+}
+
+let store: BlobStore | null = null;
+
+export function blobStore(): BlobStore {
+  store ??= new LocalDiskStore(path.join(serverEnv().dataDir, "blobs"));
+  return store;
+}
