@@ -7,6 +7,8 @@ import type { Db } from "./client";
 import {
   auditEntries,
   camshafts,
+  lappingSessions,
+  strokes,
   customers,
   heads,
   jobs,
@@ -19,6 +21,7 @@ import {
   type SeatState,
   type UserRole,
 } from "./schema";
+import { decayingContrasts } from "@/lib/audio/synth";
 import { camshaftLabels, seatCode, seatPositions, type HeadLayout } from "@/lib/heads/layout";
 
 export const DEMO_SHOP_NAME = "Millrace Head Works";
@@ -113,6 +116,14 @@ const DEMO_JOBS: DemoJob[] = [
     seatStates: () => "settled",
   },
 ];
+
+/** A decaying curve with a little stroke-to-stroke scatter, reproducible per seat. */
+function demoContrasts(count: number, startDb: number, floorDb: number, decay: number, seed: number): number[] {
+  return decayingContrasts(count, startDb, floorDb, decay).map((c, i) => {
+    const wobble = Math.sin(seed * 12.9898 + i * 78.233) * 0.15;
+    return Math.round((c + wobble) * 100) / 100;
+  });
+}
 
 function isoDateInDays(days: number): string {
   const d = new Date();
@@ -214,6 +225,56 @@ export async function seedDemoShop(db: Db): Promise<boolean> {
           serial: `${j.number.slice(-4)}-${String(k + 1).padStart(2, "0")}`,
         })),
       );
+
+      // Seats the scenario calls settled or lapping get the strokes that put them there, so the
+      // server's verdict agrees with the state shown.
+      const techId = j.technician ? userByEmail.get(j.technician)!.id : null;
+      if (techId) {
+        let k = 0;
+        for (const seat of insertedSeats) {
+          if (seat.state !== "settled" && seat.state !== "lapping") continue;
+          k++;
+          const stages: Array<["coarse" | "fine", number[]]> =
+            seat.state === "settled"
+              ? [
+                  ["coarse", demoContrasts(14, 11 + (k % 3), 0.6, 2.6, k)],
+                  ["fine", demoContrasts(10, 4.5, 0.3, 1.8, k + 7)],
+                ]
+              : [["coarse", demoContrasts(5, 10 + (k % 2), 0.8, 2.4, k)]];
+          for (const [stage, contrasts] of stages) {
+            const [session] = await tx
+              .insert(lappingSessions)
+              .values({
+                seatId: seat.id,
+                stage,
+                technicianId: techId,
+                sampleRateHz: 48000,
+                noiseFloorDb: -68,
+                deviceId: "demo-seed",
+                endedAt: seat.state === "settled" ? new Date() : null,
+                lastSeenAt: new Date(Date.now() - 3600_000),
+              })
+              .returning();
+            let t = 2.1;
+            await tx.insert(strokes).values(
+              contrasts.map((c, n) => {
+                const startS = t;
+                t += 1.3;
+                return {
+                  sessionId: session!.id,
+                  clientId: crypto.randomUUID(),
+                  index: n + 1,
+                  startS,
+                  endS: startS + 0.8,
+                  onsetDb: -33 + c,
+                  bodyDb: -33,
+                  contrastDb: c,
+                };
+              }),
+            );
+          }
+        }
+      }
 
       await tx.insert(auditEntries).values({
         actorId: userByEmail.get("admin@millrace.example")!.id,

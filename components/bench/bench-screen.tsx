@@ -58,13 +58,18 @@ function playTone() {
   }
 }
 
-export function BenchScreen({ initial }: { initial: SeatReport }) {
+export function BenchScreen({ initial, initialStage }: { initial: SeatReport; initialStage?: Stage }) {
   const seatId = initial.seat.id;
   const queryClient = useQueryClient();
   const seatQuery = useQuery({ queryKey: ["seat", seatId], queryFn: () => fetchSeat(seatId), initialData: initial });
   const report = seatQuery.data;
   const defaultStage: Stage = report.stages.coarse.verdict.state === "settled" ? "fine" : "coarse";
-  const [stage, setStage] = useState<Stage>(defaultStage);
+  const [stage, setStageState] = useState<Stage>(initialStage ?? defaultStage);
+  // The stage lives in the address too, so a reload comes back to the same curve.
+  const setStage = useCallback((s: Stage) => {
+    setStageState(s);
+    window.history.replaceState(null, "", `?stage=${s}`);
+  }, []);
   const [record, setRecord] = useState(true);
   const [local, setLocal] = useState<Array<{ sessionId: string; stroke: StrokeInput }>>([]);
   const [pendingCount, setPendingCount] = useState(0);
@@ -220,6 +225,7 @@ export function BenchScreen({ initial }: { initial: SeatReport }) {
   }
 
   async function startListening() {
+    window.history.replaceState(null, "", `?stage=${stage}`);
     setCue(null);
     setRefusals([]);
     setSpeechHeard(0);

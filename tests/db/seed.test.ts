@@ -1,7 +1,8 @@
 // The demo shop seeds once, completely, and a second run changes nothing.
 import { eq, sql } from "drizzle-orm";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { heads, jobs, seats, users, valves, shops } from "@/db/schema";
+import { heads, jobs, lappingSessions, seats, strokes, users, valves, shops } from "@/db/schema";
+import { judgeSeat } from "@/lib/audio/verdict";
 import { DEMO_USERS, seedDemoShop } from "@/db/seed";
 import { checkCredentials } from "@/lib/auth/credentials";
 import { freshPglite, type TestDatabase } from "../helpers/db";
@@ -64,6 +65,23 @@ describe("demo seed", () => {
       expect(row!.passwordHash).toMatch(/^\$2[aby]\$10\$/); // bcrypt modular crypt format, cost 10
       const r = await checkCredentials(t.db, u.email, u.password, { maxFailures: 5, lockMinutes: 15 });
       expect(r.ok).toBe(true);
+    }
+  });
+
+  it("gives seats shown as settled the strokes that settle them", async () => {
+    const settled = await t.db.select().from(seats).where(eq(seats.state, "settled"));
+    expect(settled.length).toBeGreaterThan(0);
+    for (const seat of settled) {
+      const rows = await t.db
+        .select({ contrastDb: strokes.contrastDb, stage: lappingSessions.stage })
+        .from(strokes)
+        .innerJoin(lappingSessions, eq(lappingSessions.id, strokes.sessionId))
+        .where(eq(lappingSessions.seatId, seat.id))
+        .orderBy(strokes.index);
+      for (const stage of ["coarse", "fine"] as const) {
+        const v = judgeSeat(rows.filter((r) => r.stage === stage));
+        expect(v.state, `${stage} on a seeded settled seat`).toBe("settled");
+      }
     }
   });
 });

@@ -9,13 +9,15 @@ import { NotFoundError } from "@/lib/errors";
 
 export const metadata: Metadata = { title: "Bench" };
 
-export default async function BenchPage({ params }: PageProps<"/bench/[seatId]">) {
+export default async function BenchPage({ params, searchParams }: PageProps<"/bench/[seatId]">) {
   const actor = await requireActor("jobs:read");
   const { seatId } = await params;
+  const { stage } = await searchParams;
+  const initialStage = stage === "coarse" || stage === "fine" ? stage : undefined;
   if (!z.string().uuid().safeParse(seatId).success) notFound();
   try {
     const report = await getSeatReport(await getDb(), actor, seatId);
-    return <BenchScreen key={seatId} initial={report} />;
+    return <BenchScreen key={seatId} initial={report} initialStage={initialStage} />;
   } catch (err) {
     if (err instanceof NotFoundError) notFound();
     throw err;
