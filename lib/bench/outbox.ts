@@ -97,25 +97,33 @@ export class Outbox {
 
   private async run(): Promise<FlushReport> {
     const db = await this.dbp;
-    const ops = (await db.getAll("ops")).filter((o) => !o.failed);
+    const stored = await db.getAll("ops");
+    const ops = stored.filter((o) => !o.failed);
     const report: FlushReport = { sent: 0, pending: 0, refused: [], stoppedBy: "done" };
-    // A session refused by the server refuses its strokes too; they are kept, marked, not resent.
-    const blockedSessions = new Set<string>();
+    // A session refused by the server refuses everything recorded in it, in this flush or a
+    // later one: its strokes, end and recording are kept, marked with the refusal, not sent.
+    const blockedSessions = new Map<string, string>();
+    for (const o of stored) if (o.kind === "session" && o.failed) blockedSessions.set(o.body.sessionId, o.failed);
+    // After a batch is refused as malformed, its strokes go one by one so only the bad one is kept back.
+    let singlyUntil = -1;
     let i = 0;
     while (i < ops.length) {
       const op = ops[i]!;
       let batch: StoredOp[] = [op];
       let result: SendResult;
       const json = { "content-type": "application/json" };
+      const blockedBy = op.kind === "session" ? undefined : blockedSessions.get(op.sessionId);
+      if (blockedBy !== undefined) {
+        await db.put("ops", { ...op, failed: blockedBy });
+        i++;
+        continue;
+      }
       if (op.kind === "session") {
         result = await send(this.fetchFn, `/api/seats/${op.seatId}/sessions`, { method: "POST", headers: json, body: JSON.stringify(op.body) });
       } else if (op.kind === "stroke") {
-        if (blockedSessions.has(op.sessionId)) {
-          i++;
-          continue;
-        }
         batch = [];
-        for (let j = i; j < ops.length && batch.length < 200; j++) {
+        const limit = i < singlyUntil ? 1 : 200;
+        for (let j = i; j < ops.length && batch.length < limit; j++) {
           const o = ops[j]!;
           if (o.kind !== "stroke" || o.sessionId !== op.sessionId) break;
           batch.push(o);
@@ -133,9 +141,13 @@ export class Outbox {
         report.sent += batch.length;
         report.lastBody = result.body;
       } else if (result.kind === "refused") {
+        if (op.kind === "stroke" && result.status === 400 && batch.length > 1) {
+          singlyUntil = i + batch.length;
+          continue;
+        }
         for (const b of batch) await db.put("ops", { ...b, failed: result.message });
         report.refused.push({ op, message: result.message });
-        if (op.kind === "session") blockedSessions.add(op.body.sessionId);
+        if (op.kind === "session") blockedSessions.set(op.body.sessionId, result.message);
       } else {
         report.stoppedBy = result.kind === "signed-out" ? "signed-out" : result.reason.startsWith("HTTP") ? "server" : "offline";
         break;

@@ -1,0 +1,287 @@
+// The phone's outbox on IndexedDB (fake-indexeddb in Node) with a scripted network: order,
+// batching, resend after failures, refusals that are kept but never resent, and shared flushes.
+import "fake-indexeddb/auto";
+import { randomUUID } from "node:crypto";
+import { describe, expect, it } from "vitest";
+import { Outbox, type OutboxOp } from "@/lib/bench/outbox";
+import type { StrokeInput } from "@/lib/validations/bench";
+import { sessionBody, strokeInputs } from "./helpers";
+
+interface Call {
+  url: string;
+  method: string;
+  body: unknown;
+  contentType: string | null;
+}
+
+type Reply = Response | Error | ((call: Call) => Response | Error);
+
+/** A network that records every request and answers from a script (default: 200 with accepted counts). */
+function scriptedNetwork() {
+  const calls: Call[] = [];
+  const script: Reply[] = [];
+  const fetchFn = async (url: string, init?: RequestInit): Promise<Response> => {
+    const headers = new Headers(init?.headers);
+    const raw = init?.body;
+    const body = typeof raw === "string" ? (JSON.parse(raw) as unknown) : raw instanceof Blob ? await raw.text() : null;
+    const call: Call = { url, method: init?.method ?? "GET", body, contentType: headers.get("content-type") };
+    calls.push(call);
+    let reply = script.shift() ?? defaultReply;
+    if (typeof reply === "function") reply = reply(call);
+    if (reply instanceof Error) throw reply;
+    return reply;
+  };
+  const defaultReply = (call: Call): Response => {
+    const strokes = (call.body as { strokes?: StrokeInput[] } | null)?.strokes;
+    return Response.json(strokes ? { accepted: strokes.length, duplicates: 0 } : { ok: true }, { status: 201 });
+  };
+  return { calls, script, fetchFn };
+}
+
+const offline = () => new TypeError("fetch failed");
+const refusal = (status: number, message: string) => Response.json({ error: "x", message }, { status });
+
+function newOutbox(net: ReturnType<typeof scriptedNetwork>) {
+  return new Outbox(`outbox-test-${randomUUID()}`, net.fetchFn);
+}
+
+/** A session start with its strokes, as the bench screen queues them. */
+function sessionOps(seatId: string, contrasts: number[]) {
+  const body = sessionBody("coarse", "phone-test-1");
+  const strokes = strokeInputs(contrasts);
+  const ops: OutboxOp[] = [
+    { kind: "session", seatId, body },
+    ...strokes.map((stroke): OutboxOp => ({ kind: "stroke", seatId, sessionId: body.sessionId, stroke })),
+  ];
+  return { sessionId: body.sessionId, strokes, ops };
+}
+
+async function addAll(box: Outbox, ops: OutboxOp[]) {
+  for (const op of ops) await box.add(op);
+}
+
+const sentStrokeIds = (calls: Call[]) =>
+  calls.flatMap((c) => ((c.body as { strokes?: StrokeInput[] } | null)?.strokes ?? []).map((s) => s.clientId));
+
+describe("Outbox", () => {
+  it("sends a session before its strokes, batches consecutive strokes, then the end, and empties itself", async () => {
+    const net = scriptedNetwork();
+    const box = newOutbox(net);
+    const seat = randomUUID();
+    const { sessionId, strokes, ops } = sessionOps(seat, [9, 8, 7]);
+    await addAll(box, [...ops, { kind: "end", seatId: seat, sessionId }]);
+    expect(await box.count()).toBe(5);
+
+    const report = await box.flush();
+    expect(net.calls.map((c) => `${c.method} ${c.url}`)).toEqual([
+      `POST /api/seats/${seat}/sessions`,
+      `POST /api/sessions/${sessionId}/strokes`,
+      `POST /api/sessions/${sessionId}/end`,
+    ]);
+    expect(net.calls[0]!.body).toMatchObject({ sessionId, stage: "coarse" });
+    expect(net.calls[1]!.body).toEqual({ strokes });
+    expect(report).toMatchObject({ sent: 5, pending: 0, refused: [], stoppedBy: "done" });
+    expect(await box.count()).toBe(0);
+  });
+
+  it("does not batch across sessions, and splits long runs of strokes", async () => {
+    const net = scriptedNetwork();
+    const box = newOutbox(net);
+    const seat = randomUUID();
+    const a = sessionOps(seat, Array.from({ length: 250 }, () => 5));
+    const b = sessionOps(seat, [4, 3]);
+    await addAll(box, [...a.ops, ...b.ops]);
+    const report = await box.flush();
+    const batches = net.calls.filter((c) => c.url.endsWith("/strokes"));
+    expect(batches.map((c) => [c.url.split("/")[3], (c.body as { strokes: unknown[] }).strokes.length])).toEqual([
+      [a.sessionId, 200],
+      [a.sessionId, 50],
+      [b.sessionId, 2],
+    ]);
+    expect(sentStrokeIds(net.calls)).toEqual([...a.strokes, ...b.strokes].map((s) => s.clientId));
+    expect(report.sent).toBe(254);
+  });
+
+  it("keeps everything when the network is gone, and sends it all, once, when it returns", async () => {
+    const net = scriptedNetwork();
+    const box = newOutbox(net);
+    const seat = randomUUID();
+    const { sessionId, strokes, ops } = sessionOps(seat, [9, 8, 7, 6]);
+    await box.add(ops[0]!);
+    await box.add(ops[1]!);
+    net.script.push(new Response(JSON.stringify({ sessionId: "x", resumed: false }), { status: 201 }), offline());
+    const first = await box.flush();
+    expect(first).toMatchObject({ sent: 1, pending: 1, stoppedBy: "offline", refused: [] });
+
+    // Still offline while more strokes are heard.
+    for (const op of ops.slice(2)) {
+      await box.add(op);
+      net.script.push(offline());
+      expect((await box.flush()).stoppedBy).toBe("offline");
+    }
+    expect(await box.pendingStrokes(seat)).toEqual(strokes.map((stroke) => ({ sessionId, stroke })));
+
+    const back = await box.flush();
+    expect(back).toMatchObject({ sent: 4, pending: 0, stoppedBy: "done" });
+    // Every attempt carried the same client-made ids, and the last one carried all of them in order.
+    const last = net.calls[net.calls.length - 1]!;
+    expect((last.body as { strokes: StrokeInput[] }).strokes.map((s) => s.clientId)).toEqual(strokes.map((s) => s.clientId));
+    expect(await box.count()).toBe(0);
+  });
+
+  it("drops a stroke the server already has (a resend after a lost answer)", async () => {
+    const net = scriptedNetwork();
+    const box = newOutbox(net);
+    const seat = randomUUID();
+    const sessionId = randomUUID();
+    await box.add({ kind: "stroke", seatId: seat, sessionId, stroke: strokeInputs([3])[0]! });
+    net.script.push(Response.json({ accepted: 0, duplicates: 1, strokeCount: 7 }, { status: 200 }));
+    const report = await box.flush();
+    expect(report).toMatchObject({ sent: 1, pending: 0, stoppedBy: "done", lastBody: { duplicates: 1 } });
+    expect(await box.count()).toBe(0);
+  });
+
+  for (const status of [400, 403, 409]) {
+    it(`marks ops refused with ${status} as failed, keeps them, and never resends them`, async () => {
+      const net = scriptedNetwork();
+      const box = newOutbox(net);
+      const seat = randomUUID();
+      const sessionId = randomUUID();
+      const [refused, later] = strokeInputs([3, 2]);
+      await box.add({ kind: "stroke", seatId: seat, sessionId, stroke: refused! });
+      await box.add({ kind: "end", seatId: seat, sessionId });
+      await box.add({ kind: "stroke", seatId: seat, sessionId: randomUUID(), stroke: later! });
+      net.script.push(refusal(status, `Refused for a reason ${status}.`));
+      const report = await box.flush();
+      expect(report.refused.map((r) => r.message)).toEqual([`Refused for a reason ${status}.`]);
+      // A refusal does not stop what follows it.
+      expect(report).toMatchObject({ sent: 2, pending: 0, stoppedBy: "done" });
+      const kept = await box.all();
+      expect(kept).toHaveLength(1);
+      expect(kept[0]).toMatchObject({ kind: "stroke", failed: `Refused for a reason ${status}.` });
+
+      const callsBefore = net.calls.length;
+      const again = await box.flush();
+      expect(net.calls.length).toBe(callsBefore);
+      expect(again).toMatchObject({ sent: 0, pending: 0, refused: [] });
+      await box.clearFailed();
+      expect(await box.count()).toBe(0);
+    });
+  }
+
+  it("never sends the strokes, end or recording of a session the server refused, now or later", async () => {
+    const net = scriptedNetwork();
+    const box = newOutbox(net);
+    const seat = randomUUID();
+    const { sessionId, ops } = sessionOps(seat, [8, 7]);
+    await addAll(box, ops);
+    net.script.push(refusal(409, "Seat 3I1 is busy: Ines Marlow's phone is listening to it."));
+    const first = await box.flush();
+    expect(net.calls.map((c) => c.url)).toEqual([`/api/seats/${seat}/sessions`]);
+    expect(first.refused.map((r) => r.message)).toEqual(["Seat 3I1 is busy: Ines Marlow's phone is listening to it."]);
+    expect(first.pending).toBe(0);
+
+    // The phone keeps listening for a moment: more of that session arrives after the refusal.
+    await box.add({ kind: "stroke", seatId: seat, sessionId, stroke: strokeInputs([6], 3)[0]! });
+    await box.add({ kind: "recording", seatId: seat, sessionId, type: "audio/webm", blob: new Blob(["webm"]) });
+    await box.add({ kind: "end", seatId: seat, sessionId });
+    const second = await box.flush();
+    expect(net.calls).toHaveLength(1);
+    expect(second).toMatchObject({ sent: 0, pending: 0 });
+    // Kept on the phone, each marked with why.
+    const kept = await box.all(seat);
+    expect(kept).toHaveLength(6);
+    expect(kept.every((op) => /busy/.test(op.failed ?? ""))).toBe(true);
+  });
+
+  it("stops at 401 as signed out, keeping everything unmarked for after sign-in", async () => {
+    const net = scriptedNetwork();
+    const box = newOutbox(net);
+    const { ops } = sessionOps(randomUUID(), [5, 4]);
+    await addAll(box, ops);
+    net.script.push(refusal(401, "Sign in to continue."));
+    const report = await box.flush();
+    expect(report).toMatchObject({ sent: 0, pending: 3, stoppedBy: "signed-out", refused: [] });
+    expect((await box.all()).some((op) => op.failed)).toBe(false);
+    expect((await box.flush()).sent).toBe(3);
+  });
+
+  for (const status of [500, 503, 429]) {
+    it(`retries after ${status}: stops, keeps the op, and sends it on the next flush`, async () => {
+      const net = scriptedNetwork();
+      const box = newOutbox(net);
+      const { ops, strokes } = sessionOps(randomUUID(), [5, 4]);
+      await addAll(box, ops);
+      net.script.push(Response.json({ sessionId: "x" }, { status: 201 }), refusal(status, "Try again."));
+      const report = await box.flush();
+      expect(report).toMatchObject({ sent: 1, pending: 2, stoppedBy: "server", refused: [] });
+      await box.flush();
+      expect(sentStrokeIds(net.calls.slice(-1))).toEqual(strokes.map((s) => s.clientId));
+      expect(await box.count()).toBe(0);
+    });
+  }
+
+  it("retries the good strokes of a batch one by one when one stroke in it is malformed", async () => {
+    const net = scriptedNetwork();
+    const box = newOutbox(net);
+    const seat = randomUUID();
+    const sessionId = randomUUID();
+    const strokes = strokeInputs([5, 4, 3]);
+    for (const stroke of strokes) await box.add({ kind: "stroke", seatId: seat, sessionId, stroke });
+    const bad = strokes[1]!.clientId;
+    // A server that refuses any batch holding the bad stroke, as the real one does.
+    const judge = (call: Call): Response => {
+      const batch = (call.body as { strokes: StrokeInput[] }).strokes;
+      const at = batch.findIndex((s) => s.clientId === bad);
+      if (at >= 0) return refusal(400, `strokes.${at}.contrastDb: contrastDb above 60 dB is not plausible.`);
+      return Response.json({ accepted: batch.length, duplicates: 0 }, { status: 201 });
+    };
+    net.script.push(judge, judge, judge, judge);
+    const report = await box.flush();
+    expect(report).toMatchObject({ sent: 2, pending: 0 });
+    expect(report.refused).toHaveLength(1);
+    const kept = await box.all();
+    expect(kept.map((op) => (op.kind === "stroke" ? op.stroke.clientId : null))).toEqual([bad]);
+    expect(kept[0]!.failed).toMatch(/contrastDb/);
+  });
+
+  it("sends a recording as its own body and type", async () => {
+    const net = scriptedNetwork();
+    const box = newOutbox(net);
+    const seat = randomUUID();
+    const sessionId = randomUUID();
+    await box.add({ kind: "recording", seatId: seat, sessionId, type: "audio/ogg", blob: new Blob(["OggS-bytes"], { type: "audio/ogg" }) });
+    await box.flush();
+    expect(net.calls).toEqual([{ url: `/api/sessions/${sessionId}/recording`, method: "PUT", body: "OggS-bytes", contentType: "audio/ogg" }]);
+  });
+
+  it("concurrent flushes share one run and send each op once", async () => {
+    const net = scriptedNetwork();
+    const box = newOutbox(net);
+    const { ops } = sessionOps(randomUUID(), [5, 4, 3]);
+    await addAll(box, ops);
+    const [a, b, c] = [box.flush(), box.flush(), box.flush()];
+    expect(b).toBe(a);
+    expect(c).toBe(a);
+    expect((await a).sent).toBe(4);
+    expect(net.calls).toHaveLength(2);
+    // Once finished, a new flush is a new run.
+    await box.add(sessionOps(randomUUID(), []).ops[0]!);
+    const next = box.flush();
+    expect(next).not.toBe(a);
+    expect((await next).sent).toBe(1);
+  });
+
+  it("lists a seat's pending strokes only, across reopening the store", async () => {
+    const net = scriptedNetwork();
+    const name = `outbox-test-${randomUUID()}`;
+    const box = new Outbox(name, net.fetchFn);
+    const mine = sessionOps("seat-a", [5, 4]);
+    const other = sessionOps("seat-b", [3]);
+    await addAll(box, [...mine.ops, ...other.ops]);
+    // A reload: a new Outbox on the same store still has them.
+    const reopened = new Outbox(name, net.fetchFn);
+    expect((await reopened.pendingStrokes("seat-a")).map((p) => p.stroke.clientId)).toEqual(mine.strokes.map((s) => s.clientId));
+    expect(await reopened.count()).toBe(5);
+  });
+});
