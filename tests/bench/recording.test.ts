@@ -1,0 +1,150 @@
+// The session recording upload: who may upload, which types and sizes are refused, and that an
+// accepted WAV lands in storage byte for byte with the session pointing at it.
+import fs from "node:fs";
+import os from "node:os";
+import path from "node:path";
+import { eq } from "drizzle-orm";
+import { NextRequest } from "next/server";
+import { afterAll, beforeAll, describe, expect, it, vi } from "vitest";
+import { encodeWav } from "@/lib/audio";
+import { lappingSessions } from "@/db/schema";
+import type { TestDatabase } from "../helpers/db";
+import { BASE_URL, bodyOf, jsonRequest, seatId as findSeat, sessionBody, userIds } from "./helpers";
+
+const state = vi.hoisted(() => ({ session: null as null | { user: { id: string } }, t: null as TestDatabase | null }));
+// Storage reads its directory on first use; this test gets one of its own.
+const dataDir = fs.mkdtempSync(path.join(os.tmpdir(), "grindfade-recording-"));
+process.env.GRINDFADE_DATA_DIR = dataDir;
+
+vi.mock("next-auth", async (orig) => ({
+  ...(await orig<typeof import("next-auth")>()),
+  getServerSession: async () => state.session,
+}));
+vi.mock("next/cache", () => ({ revalidatePath: () => {} }));
+vi.mock("@/db/client", async (orig) => ({
+  ...(await orig<typeof import("@/db/client")>()),
+  getDb: async () => state.t!.db,
+}));
+
+const { freshPglite } = await import("../helpers/db");
+const { seedDemoShop } = await import("@/db/seed");
+const { resetServerEnvCache } = await import("@/lib/env");
+const sessionsRoute = await import("@/app/api/seats/[seatId]/sessions/route");
+const recordingRoute = await import("@/app/api/sessions/[sessionId]/recording/route");
+
+let ids: Map<string, string>;
+let sessionId: string;
+const db = () => state.t!.db;
+const signInAs = (email: string | null) => {
+  state.session = email ? { user: { id: ids.get(email)! } } : null;
+};
+
+beforeAll(async () => {
+  resetServerEnvCache();
+  state.t = await freshPglite();
+  await seedDemoShop(state.t.db);
+  ids = await userIds(state.t.db);
+  signInAs("ines@millrace.example");
+  const seat = await findSeat(state.t.db, "MHW-0141", "4I1");
+  const body = sessionBody("coarse", "phone-ines-1");
+  const res = await sessionsRoute.POST(jsonRequest(`/api/seats/${seat}/sessions`, body), { params: Promise.resolve({ seatId: seat }) });
+  expect(res.status).toBe(201);
+  sessionId = body.sessionId;
+});
+afterAll(async () => {
+  await state.t?.cleanup();
+  fs.rmSync(dataDir, { recursive: true, force: true });
+});
+
+function upload(body: Uint8Array | null, headers: Record<string, string>) {
+  const req = new NextRequest(`${BASE_URL}/api/sessions/${sessionId}/recording`, {
+    method: "PUT",
+    headers,
+    body: body ? Buffer.from(body) : null,
+  });
+  return recordingRoute.PUT(req, { params: Promise.resolve({ sessionId }) });
+}
+
+// A tenth of a second of a 1 kHz tone, 16-bit mono at 8 kHz.
+const wav = encodeWav([Float32Array.from({ length: 800 }, (_, i) => 0.3 * Math.sin((2 * Math.PI * 1000 * i) / 8000))], 8000);
+const storedFile = (ext: string) => path.join(dataDir, "blobs", "recordings", `${sessionId}.${ext}`);
+const sessionRow = async () => (await db().select().from(lappingSessions).where(eq(lappingSessions.id, sessionId)))[0]!;
+
+describe("recording upload", () => {
+  it("refuses anonymous callers with 401 and another technician with 403, storing nothing", async () => {
+    signInAs(null);
+    expect((await upload(wav, { "content-type": "audio/wav" })).status).toBe(401);
+    signInAs("dov@millrace.example");
+    expect((await upload(wav, { "content-type": "audio/wav" })).status).toBe(403);
+    signInAs("admin@millrace.example");
+    expect((await upload(wav, { "content-type": "audio/wav" })).status).toBe(403);
+    expect(fs.existsSync(storedFile("wav"))).toBe(false);
+    expect((await sessionRow()).recordingKey).toBeNull();
+  });
+
+  it("refuses a body that is not audio with 415", async () => {
+    signInAs("ines@millrace.example");
+    const res = await upload(new TextEncoder().encode("hello"), { "content-type": "text/plain" });
+    expect(res.status).toBe(415);
+    expect(await bodyOf(res)).toMatchObject({ error: "unsupported_media_type", message: expect.stringMatching(/WebM, Ogg, MP4 or WAV/) });
+  });
+
+  it("refuses a declared size over the limit with 413 before reading the body", async () => {
+    signInAs("ines@millrace.example");
+    // 64 MB: the route's limit for one session's recording.
+    const res = await upload(wav, { "content-type": "audio/webm", "content-length": String(64 * 1024 * 1024 + 1) });
+    expect(res.status).toBe(413);
+    expect(await bodyOf(res)).toMatchObject({ error: "too_large", message: expect.stringMatching(/64 MB/) });
+    expect(fs.existsSync(storedFile("webm"))).toBe(false);
+  });
+
+  it("refuses an undeclared body that grows past the limit with 413, keeping no part of it", async () => {
+    signInAs("ines@millrace.example");
+    const chunk = new Uint8Array(1024 * 1024);
+    let sent = 0;
+    // One byte more than the route's 64 MB limit, in 1 MB pieces, with no content-length.
+    const stream = new ReadableStream<Uint8Array>({
+      pull(controller) {
+        if (sent > 64) return controller.close();
+        controller.enqueue(sent === 64 ? chunk.subarray(0, 1) : chunk);
+        sent++;
+      },
+    });
+    const req = new NextRequest(`${BASE_URL}/api/sessions/${sessionId}/recording`, {
+      method: "PUT",
+      headers: { "content-type": "audio/ogg" },
+      body: stream,
+      duplex: "half",
+    } as ConstructorParameters<typeof NextRequest>[1]);
+    const res = await recordingRoute.PUT(req, { params: Promise.resolve({ sessionId }) });
+    expect(res.status).toBe(413);
+    expect(fs.existsSync(storedFile("ogg"))).toBe(false);
+    expect(fs.readdirSync(path.dirname(storedFile("ogg"))).filter((f) => f.includes(".part-"))).toEqual([]);
+  });
+
+  it("refuses an empty recording with 400", async () => {
+    signInAs("ines@millrace.example");
+    const res = await upload(new Uint8Array(0), { "content-type": "audio/wav" });
+    expect(res.status).toBe(400);
+    expect((await sessionRow()).recordingKey).toBeNull();
+    expect(fs.existsSync(storedFile("wav"))).toBe(false);
+  });
+
+  it("stores a WAV byte for byte and points the session at it", async () => {
+    signInAs("ines@millrace.example");
+    const res = await upload(wav, { "content-type": "audio/wav" });
+    expect(res.status).toBe(201);
+    expect(await bodyOf(res)).toEqual({ ok: true, bytes: wav.byteLength });
+    expect(new Uint8Array(fs.readFileSync(storedFile("wav")))).toEqual(wav);
+    expect(await sessionRow()).toMatchObject({ recordingKey: `recordings/${sessionId}.wav`, recordingType: "audio/wav", recordingBytes: wav.byteLength });
+    // A supervisor may upload for any job of the shop; the upload replaces the earlier one.
+    signInAs("rhea@millrace.example");
+    const again = await upload(wav.slice(0, 100), { "content-type": "audio/wav; codecs=1" });
+    expect(again.status).toBe(201);
+    expect(fs.statSync(storedFile("wav")).size).toBe(100);
+    expect((await sessionRow()).recordingBytes).toBe(100);
+    // An empty resend is refused and leaves the kept recording as it was.
+    expect((await upload(new Uint8Array(0), { "content-type": "audio/wav" })).status).toBe(400);
+    expect(new Uint8Array(fs.readFileSync(storedFile("wav")))).toEqual(wav.slice(0, 100));
+  });
+});
