@@ -291,6 +291,16 @@ describe("resends are harmless", () => {
     expect(stored.map((s) => s.clientId).sort()).toEqual([...batch, next!].map((s) => s.clientId).sort());
   });
 
+  it("the same batch sent twice at once is stored once", async () => {
+    const { sessionId } = await openSession("1I1");
+    const batch = strokeInputs([8, 7, 6, 5]);
+    const answers = await Promise.all([postStrokes(sessionId, { strokes: batch }), postStrokes(sessionId, { strokes: batch })]);
+    const bodies = await Promise.all(answers.map(bodyOf));
+    expect(bodies.map((b) => b.accepted).sort()).toEqual([0, batch.length]);
+    expect(bodies.map((b) => b.duplicates).sort()).toEqual([0, batch.length]);
+    expect(await strokesOfSession(db(), sessionId)).toHaveLength(batch.length);
+  });
+
   it("the same clientId twice in one batch is stored once", async () => {
     const { sessionId } = await openSession("2E2");
     const [s] = strokeInputs([5]);

@@ -1,0 +1,84 @@
+// The bench's zod schemas and readJson: the edges of a plausible stroke and session start, and
+// messages that name the field that is wrong.
+import { describe, expect, it } from "vitest";
+import { BadRequestError } from "@/lib/errors";
+import { readJson } from "@/lib/http";
+import { startSessionSchema, strokeBatchSchema, strokeInputSchema } from "@/lib/validations/bench";
+import { sessionBody, strokeInputs } from "./helpers";
+
+const stroke = (over: Record<string, unknown> = {}) => ({ ...strokeInputs([4])[0]!, ...over });
+const firstPath = (input: unknown) => {
+  const r = strokeInputSchema.safeParse(input);
+  return r.success ? null : r.error.issues.map((i) => i.path.join("."));
+};
+
+describe("strokeInputSchema", () => {
+  it("accepts a stroke at the edges of the plausible ranges and defaults its flags", () => {
+    const noFlags: Record<string, unknown> = stroke();
+    delete noFlags.flags;
+    expect(strokeInputSchema.parse(noFlags).flags).toEqual([]);
+    // ±60 dB contrast and 0 s start are the schema's own inclusive bounds.
+    for (const contrastDb of [-60, 60]) expect(strokeInputSchema.safeParse(stroke({ contrastDb })).success).toBe(true);
+    expect(strokeInputSchema.safeParse(stroke({ startS: 0, endS: 0.5 })).success).toBe(true);
+  });
+
+  it("refuses each implausible value on its own field", () => {
+    expect(firstPath(stroke({ contrastDb: 60.5 }))).toEqual(["contrastDb"]);
+    expect(firstPath(stroke({ contrastDb: Number.NaN }))).toEqual(["contrastDb"]);
+    expect(firstPath(stroke({ startS: -1, endS: 1 }))).toEqual(["startS"]);
+    expect(firstPath(stroke({ startS: 3, endS: 3 }))).toEqual(["endS"]);
+    expect(firstPath(stroke({ index: 0 }))).toEqual(["index"]);
+    expect(firstPath(stroke({ index: 1.5 }))).toEqual(["index"]);
+    expect(firstPath(stroke({ onsetDb: -201 }))).toEqual(["onsetDb"]);
+    expect(firstPath(stroke({ bodyDb: "loud" }))).toEqual(["bodyDb"]);
+    expect(firstPath(stroke({ clientId: "1234" }))).toEqual(["clientId"]);
+    expect(firstPath(stroke({ flags: ["clipping", "too-quiet", "speech-nearby", "clipping"] }))).toEqual(["flags"]);
+  });
+
+  it("limits a batch to between 1 and 500 strokes", () => {
+    expect(strokeBatchSchema.safeParse({ strokes: [] }).success).toBe(false);
+    expect(strokeBatchSchema.safeParse({ strokes: strokeInputs(Array.from({ length: 500 }, () => 3)) }).success).toBe(true);
+    expect(strokeBatchSchema.safeParse({ strokes: strokeInputs(Array.from({ length: 501 }, () => 3)) }).success).toBe(false);
+  });
+});
+
+describe("startSessionSchema", () => {
+  it("accepts a session start without the optional measurements", () => {
+    const plain: Record<string, unknown> = sessionBody("fine", "phone-1234");
+    delete plain.sampleRateHz;
+    delete plain.noiseFloorDb;
+    expect(startSessionSchema.parse(plain)).toEqual(plain);
+  });
+
+  it("refuses a short device id, a sample rate out of range and a noise floor above full scale", () => {
+    const paths = (o: Record<string, unknown>) => {
+      const r = startSessionSchema.safeParse({ ...sessionBody("coarse", "phone-1234"), ...o });
+      return r.success ? [] : r.error.issues.map((i) => i.path.join("."));
+    };
+    expect(paths({ deviceId: "   abc   " })).toEqual(["deviceId"]);
+    expect(paths({ sampleRateHz: 4000 })).toEqual(["sampleRateHz"]);
+    expect(paths({ noiseFloorDb: 3 })).toEqual(["noiseFloorDb"]);
+  });
+});
+
+describe("readJson", () => {
+  const req = (body: string) => new Request("http://grindfade.test/x", { method: "POST", body });
+
+  it("returns the parsed value", async () => {
+    const s = stroke();
+    expect(await readJson(req(JSON.stringify({ strokes: [s] })), strokeBatchSchema)).toEqual({ strokes: [s] });
+  });
+
+  it("names the first field that is wrong and lists every field error", async () => {
+    const bad = [stroke(), stroke({ contrastDb: 500, clientId: "x" })];
+    const err = await readJson(req(JSON.stringify({ strokes: bad })), strokeBatchSchema).catch((e: unknown) => e);
+    expect(err).toBeInstanceOf(BadRequestError);
+    const e = err as BadRequestError;
+    expect(e.message).toMatch(/^strokes\.1\.(clientId|contrastDb): /);
+    expect(Object.keys(e.fieldErrors).sort()).toEqual(["strokes.1.clientId", "strokes.1.contrastDb"]);
+  });
+
+  it("says so when the body is not JSON", async () => {
+    await expect(readJson(req("strokes=1"), strokeBatchSchema)).rejects.toThrow("The request body must be JSON.");
+  });
+});
