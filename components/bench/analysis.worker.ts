@@ -29,7 +29,10 @@ function handle(msg: ToWorker) {
         const events = analyzer.push(msg.samples);
         busyMs += performance.now() - t0;
         blocks += msg.samples.length / 128;
-        for (const ev of events) post(ev);
+        for (const ev of events) {
+          if (ev.type === "stroke") post({ ...ev, detectionMs: (analyzer.timeS - ev.stroke.endS) * 1000 });
+          else post(ev);
+        }
         if (blocks >= 375) {
           // Roughly once a second at 48 kHz: cost per 128-sample block, for the speed check.
           post({ type: "level", timeS: analyzer.timeS, blockMicros: (busyMs * 1000) / blocks });
@@ -39,7 +42,11 @@ function handle(msg: ToWorker) {
         return;
       }
       case "flush":
-        if (analyzer) for (const ev of analyzer.flush()) post(ev);
+        if (analyzer) {
+          for (const ev of analyzer.flush()) {
+            post(ev.type === "stroke" ? { ...ev, detectionMs: (analyzer.timeS - ev.stroke.endS) * 1000 } : ev);
+          }
+        }
         return;
     }
   } catch (err) {

@@ -1,6 +1,5 @@
 "use client";
 
-import { useQuery, useQueryClient } from "@tanstack/react-query";
 import Link from "next/link";
 import { useCallback, useEffect, useMemo, useRef, useState } from "react";
 import type { Stroke } from "@/lib/audio/analyzer";
@@ -60,9 +59,16 @@ function playTone() {
 
 export function BenchScreen({ initial, initialStage }: { initial: SeatReport; initialStage?: Stage }) {
   const seatId = initial.seat.id;
-  const queryClient = useQueryClient();
-  const seatQuery = useQuery({ queryKey: ["seat", seatId], queryFn: () => fetchSeat(seatId), initialData: initial });
-  const report = seatQuery.data;
+  // The server's copy of the seat; refreshed after every save it confirms. Plain fetch keeps the
+  // bench screen's first load small.
+  const [report, setReport] = useState<SeatReport>(initial);
+  const refresh = useCallback(async () => {
+    try {
+      setReport(await fetchSeat(seatId));
+    } catch {
+      /* keep showing the last copy; the sync note says what is pending */
+    }
+  }, [seatId]);
   const defaultStage: Stage = report.stages.coarse.verdict.state === "settled" ? "fine" : "coarse";
   const [stage, setStageState] = useState<Stage>(initialStage ?? defaultStage);
   // The stage lives in the address too, so a reload comes back to the same curve.
@@ -105,10 +111,10 @@ export function BenchScreen({ initial, initialStage }: { initial: SeatReport; in
     );
     if (report.sent > 0) {
       const pending = await outbox().pendingStrokes(seatId);
-      await queryClient.invalidateQueries({ queryKey: ["seat", seatId] });
+      await refresh();
       setLocal((l) => l.filter((x) => pending.some((p) => p.stroke.clientId === x.stroke.clientId)));
     }
-  }, [outbox, queryClient, seatId]);
+  }, [outbox, refresh, seatId]);
 
   // Strokes still in the outbox from before a reload belong on the curve too.
   useEffect(() => {
@@ -136,9 +142,11 @@ export function BenchScreen({ initial, initialStage }: { initial: SeatReport; in
 
   const listener = useListener({
     onCalibrated: () => {},
-    onStroke: (s: Stroke) => {
+    onStroke: (s: Stroke, detectionMs: number) => {
       const sessionId = sessionRef.current;
       if (!sessionId) return;
+      // User Timing marks, read by the bench benchmark: stroke closed → point on the curve.
+      performance.mark("grindfade:stroke-received", { detail: { detectionMs } });
       strokeCounter.current += 1;
       const stroke: StrokeInput = {
         clientId: crypto.randomUUID(),
@@ -191,6 +199,18 @@ export function BenchScreen({ initial, initialStage }: { initial: SeatReport; in
     () => judgeSeat(combined.all.map((s) => ({ contrastDb: s.contrastDb, index: s.n, flags: s.flags, startS: s.startS }))),
     [combined.all],
   );
+  // Runs after the curve has been committed with the new point.
+  const drawn = combined.all.length;
+  useEffect(() => {
+    const received = performance.getEntriesByName("grindfade:stroke-received", "mark").at(-1) as PerformanceMark | undefined;
+    if (!received || drawn === 0) return;
+    const detectionMs = (received.detail as { detectionMs?: number } | null)?.detectionMs ?? 0;
+    requestAnimationFrame(() =>
+      performance.measure("grindfade:stroke-to-curve", { start: received.startTime, end: performance.now(), detail: { detectionMs, strokes: drawn } }),
+    );
+    performance.clearMarks("grindfade:stroke-received");
+  }, [drawn]);
+
   const waitingToSync = combined.pending > 0 || pendingCount > 0;
   const verdict: SeatVerdict = combined.pending > 0 ? preview : serverStage.verdict;
   const last = combined.all[combined.all.length - 1];
@@ -257,7 +277,12 @@ export function BenchScreen({ initial, initialStage }: { initial: SeatReport; in
   const busyRefusal = refusals.find((r) => /busy/i.test(r));
 
   return (
-    <div className="mx-auto flex min-h-dvh max-w-3xl flex-col gap-3 p-3 pb-8 sm:p-4" data-testid="bench">
+    <div
+      className="mx-auto flex min-h-dvh max-w-3xl flex-col gap-3 p-3 pb-8 sm:p-4"
+      data-testid="bench"
+      data-block-us={listener.blockMicros?.toFixed(2)}
+      data-sample-rate={listener.sampleRate ?? undefined}
+    >
       <header className="flex items-start justify-between gap-3">
         <div>
           <Link href={`/jobs/${report.job.id}`} className="text-sm font-semibold text-brass-dark underline-offset-2 hover:underline">

@@ -10,7 +10,7 @@ import type { FromWorker, ToWorker } from "@/lib/bench/worker-protocol";
 export type ListenerPhase = "idle" | "starting" | "calibrating" | "listening" | "stopping";
 
 export interface ListenerCallbacks {
-  onStroke(stroke: Stroke): void;
+  onStroke(stroke: Stroke, detectionMs: number): void;
   onRejected(sound: RejectedSound): void;
   onCalibrated(noiseFloorDbfs: number): void;
   onRecording(blob: Blob, type: string): void;
@@ -107,7 +107,8 @@ export function useListener(callbacks: ListenerCallbacks) {
       const node = new AudioWorkletNode(ctx, "grindfade-capture", {
         numberOfInputs: 1,
         numberOfOutputs: 1,
-        processorOptions: { blockSize: 1024 },
+        // Small blocks keep the stroke-to-curve delay short; 256 samples is about 5 ms.
+        processorOptions: { blockSize: 256 },
       });
       const mute = ctx.createGain();
       mute.gain.value = 0;
@@ -119,7 +120,7 @@ export function useListener(callbacks: ListenerCallbacks) {
         if (m.type === "calibrated") {
           setPhase("listening");
           cb.current.onCalibrated(m.noiseFloorDbfs);
-        } else if (m.type === "stroke") cb.current.onStroke(m.stroke);
+        } else if (m.type === "stroke") cb.current.onStroke(m.stroke, m.detectionMs);
         else if (m.type === "rejected") cb.current.onRejected(m.sound);
         else if (m.type === "level") setBlockMicros(m.blockMicros);
         else if (m.type === "error") setError(`Analysis stopped: ${m.message}`);

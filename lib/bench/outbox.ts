@@ -51,6 +51,7 @@ async function send(fetchFn: Fetch, url: string, init: RequestInit): Promise<Sen
 export class Outbox {
   private dbp: Promise<IDBPDatabase<OutboxSchema>>;
   private flushing: Promise<FlushReport> | null = null;
+  private rerun = false;
 
   constructor(
     name = "grindfade-outbox",
@@ -89,7 +90,28 @@ export class Outbox {
 
   /** Sends everything in order; concurrent calls share one run. */
   flush(): Promise<FlushReport> {
-    this.flushing ??= this.run().finally(() => {
+    if (this.flushing) {
+      // Something was added while a run is going: one more pass picks it up at once, rather
+      // than at the next timer tick.
+      this.rerun = true;
+      return this.flushing;
+    }
+    this.flushing = (async () => {
+      let total: FlushReport | null = null;
+      do {
+        this.rerun = false;
+        const pass = await this.run();
+        total = total
+          ? {
+              ...pass,
+              sent: total.sent + pass.sent,
+              refused: [...total.refused, ...pass.refused],
+              lastBody: pass.lastBody ?? total.lastBody,
+            }
+          : pass;
+      } while (this.rerun && total.stoppedBy === "done");
+      return total;
+    })().finally(() => {
       this.flushing = null;
     });
     return this.flushing;

@@ -12,7 +12,8 @@ export type ToWorker =
 export type FromWorker =
   | { type: "ready"; sampleRate: number }
   | { type: "calibrated"; noiseFloorDbfs: number; atS: number }
-  | { type: "stroke"; stroke: Stroke }
+  // detectionMs: audio already analysed past the stroke's end when it was closed (the lift).
+  | { type: "stroke"; stroke: Stroke; detectionMs: number }
   | { type: "rejected"; sound: RejectedSound }
   | { type: "level"; timeS: number; blockMicros: number }
   | { type: "error"; message: string };

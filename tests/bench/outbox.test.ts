@@ -272,6 +272,23 @@ describe("Outbox", () => {
     expect((await next).sent).toBe(1);
   });
 
+  it("an op added while a flush runs goes out in the same flush, not at the next tick", async () => {
+    const net = scriptedNetwork();
+    const box = newOutbox(net);
+    const first = sessionOps(randomUUID(), [5]);
+    await addAll(box, first.ops);
+    const running = box.flush();
+    // Added after the run read its list: only a second pass can send it.
+    const late = sessionOps(randomUUID(), [2]);
+    await addAll(box, late.ops);
+    const again = box.flush();
+    expect(again).toBe(running);
+    const report = await running;
+    expect(report.sent).toBe(first.ops.length + late.ops.length);
+    expect(report.pending).toBe(0);
+    expect(await box.count()).toBe(0);
+  });
+
   it("lists a seat's pending strokes only, across reopening the store", async () => {
     const net = scriptedNetwork();
     const name = `outbox-test-${randomUUID()}`;

@@ -15,11 +15,9 @@ export default async function BenchPage({ params, searchParams }: PageProps<"/be
   const { stage } = await searchParams;
   const initialStage = stage === "coarse" || stage === "fine" ? stage : undefined;
   if (!z.string().uuid().safeParse(seatId).success) notFound();
-  try {
-    const report = await getSeatReport(await getDb(), actor, seatId);
-    return <BenchScreen key={seatId} initial={report} initialStage={initialStage} />;
-  } catch (err) {
+  const report = await getSeatReport(await getDb(), actor, seatId).catch((err: unknown) => {
     if (err instanceof NotFoundError) notFound();
     throw err;
-  }
+  });
+  return <BenchScreen key={seatId} initial={report} initialStage={initialStage} />;
 }
