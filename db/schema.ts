@@ -2,6 +2,7 @@
 // PostgreSQL server, so only portable pg-core features are used here.
 import { sql } from "drizzle-orm";
 import {
+  type AnyPgColumn,
   bigserial,
   boolean,
   check,
@@ -43,6 +44,10 @@ export const seatState = pgEnum("seat_state", [
 ]);
 
 export const lappingStage = pgEnum("lapping_stage", ["coarse", "fine"]);
+
+// Where a specification value came from: the engine's library entry, an override on the job,
+// or typed in with the reading.
+export const specSource = pgEnum("spec_source", ["library", "job_override", "entered"]);
 
 export const measurementKind = pgEnum("measurement_kind", [
   "journal_clearance",
@@ -123,6 +128,7 @@ export const jobs = pgTable(
     }),
     promisedOn: date("promised_on"),
     notes: text("notes"),
+    engineSpecId: uuid("engine_spec_id").references((): AnyPgColumn => engineSpecs.id, { onDelete: "set null" }),
     ...timestamps,
   },
   (t) => [
@@ -230,6 +236,9 @@ export const valves = pgTable(
     tag: text("tag").notNull(),
     partNumber: text("part_number"),
     serial: text("serial"),
+    // Set at the first stroke lapped with this valve in place: from then on it belongs to that
+    // seat and no other (a lapped valve goes back into the seat it was lapped in).
+    lappedInSeatId: uuid("lapped_in_seat_id").references(() => seats.id, { onDelete: "set null" }),
     ...timestamps,
   },
   (t) => [
@@ -318,6 +327,11 @@ export const measurements = pgTable(
     specMax: real("spec_max"),
     serviceLimit: real("service_limit"),
     method: text("method"),
+    // For gauge-strip readings, the strip used; for diameters, the two readings (mm).
+    stripId: text("strip_id"),
+    boreMm: real("bore_mm"),
+    journalMm: real("journal_mm"),
+    specSource: specSource("spec_source"),
     note: text("note"),
     recordedById: uuid("recorded_by_id")
       .notNull()
@@ -331,6 +345,120 @@ export const measurements = pgTable(
       "measurements_spec_order",
       sql`${t.specMin} is null or ${t.specMax} is null or ${t.specMin} <= ${t.specMax}`,
     ),
+  ],
+);
+
+// The specifications library: an engine's figures, saved once and used by every job on it.
+export const engineSpecs = pgTable(
+  "engine_specs",
+  {
+    id: uuid("id").primaryKey().defaultRandom(),
+    shopId: uuid("shop_id")
+      .notNull()
+      .references(() => shops.id, { onDelete: "restrict" }),
+    name: text("name").notNull(),
+    source: text("source"),
+    ...timestamps,
+  },
+  (t) => [unique("engine_specs_shop_name_unique").on(t.shopId, t.name)],
+);
+
+/** One figure of an engine: a range (min/max), a service limit, or a single nominal value. */
+const specColumns = {
+  key: text("key").notNull(),
+  minValue: real("min_value"),
+  maxValue: real("max_value"),
+  limitValue: real("limit_value"),
+  nominalValue: real("nominal_value"),
+  // SI base unit of the key's quantity: "mm", "N·m" or "N".
+  unit: text("unit").notNull(),
+  note: text("note"),
+};
+
+export const specValues = pgTable(
+  "spec_values",
+  {
+    id: uuid("id").primaryKey().defaultRandom(),
+    engineSpecId: uuid("engine_spec_id")
+      .notNull()
+      .references(() => engineSpecs.id, { onDelete: "cascade" }),
+    ...specColumns,
+    ...timestamps,
+  },
+  (t) => [
+    unique("spec_values_spec_key_unique").on(t.engineSpecId, t.key),
+    check("spec_values_order", sql`${t.minValue} is null or ${t.maxValue} is null or ${t.minValue} <= ${t.maxValue}`),
+    check("spec_values_unit", sql`${t.unit} in ('mm', 'N·m', 'N')`),
+  ],
+);
+
+export const jobSpecOverrides = pgTable(
+  "job_spec_overrides",
+  {
+    id: uuid("id").primaryKey().defaultRandom(),
+    jobId: uuid("job_id")
+      .notNull()
+      .references(() => jobs.id, { onDelete: "cascade" }),
+    ...specColumns,
+    reason: text("reason").notNull(),
+    ...timestamps,
+  },
+  (t) => [
+    unique("job_spec_overrides_job_key_unique").on(t.jobId, t.key),
+    check("job_spec_overrides_order", sql`${t.minValue} is null or ${t.maxValue} is null or ${t.minValue} <= ${t.maxValue}`),
+    check("job_spec_overrides_unit", sql`${t.unit} in ('mm', 'N·m', 'N')`),
+  ],
+);
+
+// A camshaft's cap torque sheet: the bolt order and the stages, then one tick per bolt and stage.
+export const torqueSheets = pgTable(
+  "torque_sheets",
+  {
+    id: uuid("id").primaryKey().defaultRandom(),
+    headId: uuid("head_id")
+      .notNull()
+      .references(() => heads.id, { onDelete: "cascade" }),
+    camshaftId: uuid("camshaft_id")
+      .notNull()
+      .references(() => camshafts.id, { onDelete: "cascade" }),
+    capCount: integer("cap_count").notNull(),
+    boltsPerCap: integer("bolts_per_cap").notNull(),
+    boltOrder: text("bolt_order").array().notNull(),
+    orderSource: text("order_source").notNull(),
+    finalNm: real("final_nm").notNull(),
+    stageFractions: real("stage_fractions").array().notNull(),
+    specSource: specSource("spec_source").notNull().default("entered"),
+    createdById: uuid("created_by_id")
+      .notNull()
+      .references(() => users.id, { onDelete: "restrict" }),
+    ...timestamps,
+  },
+  (t) => [
+    unique("torque_sheets_camshaft_unique").on(t.camshaftId),
+    check("torque_sheets_caps_range", sql`${t.capCount} between 1 and 12`),
+    check("torque_sheets_bolts_range", sql`${t.boltsPerCap} between 1 and 2`),
+    check("torque_sheets_final_range", sql`${t.finalNm} > 0 and ${t.finalNm} <= 200`),
+    check("torque_sheets_order_source", sql`${t.orderSource} in ('centre-out', 'maker')`),
+  ],
+);
+
+export const torqueTicks = pgTable(
+  "torque_ticks",
+  {
+    id: uuid("id").primaryKey().defaultRandom(),
+    sheetId: uuid("sheet_id")
+      .notNull()
+      .references(() => torqueSheets.id, { onDelete: "cascade" }),
+    stage: integer("stage").notNull(),
+    boltId: text("bolt_id").notNull(),
+    tickedById: uuid("ticked_by_id")
+      .notNull()
+      .references(() => users.id, { onDelete: "restrict" }),
+    tickedAt: timestamp("ticked_at", { withTimezone: true }).notNull().defaultNow(),
+  },
+  (t) => [
+    unique("torque_ticks_sheet_stage_bolt_unique").on(t.sheetId, t.stage, t.boltId),
+    check("torque_ticks_stage_range", sql`${t.stage} >= 1`),
   ],
 );
 
@@ -372,6 +500,11 @@ export type Stroke = typeof strokes.$inferSelect;
 export type NewStroke = typeof strokes.$inferInsert;
 export type Measurement = typeof measurements.$inferSelect;
 export type AuditEntry = typeof auditEntries.$inferSelect;
+export type EngineSpec = typeof engineSpecs.$inferSelect;
+export type SpecValue = typeof specValues.$inferSelect;
+export type JobSpecOverride = typeof jobSpecOverrides.$inferSelect;
+export type TorqueSheet = typeof torqueSheets.$inferSelect;
+export type TorqueTick = typeof torqueTicks.$inferSelect;
 export type UserRole = (typeof userRole.enumValues)[number];
 export type JobStatus = (typeof jobStatus.enumValues)[number];
 export type SeatState = (typeof seatState.enumValues)[number];

@@ -7,7 +7,9 @@ import type { Db } from "./client";
 import {
   auditEntries,
   camshafts,
+  engineSpecs,
   lappingSessions,
+  specValues,
   strokes,
   customers,
   heads,
@@ -41,6 +43,7 @@ export const DEMO_USERS: ReadonlyArray<{
 
 interface DemoJob {
   number: string;
+  spec?: string;
   customer: string;
   engine: string;
   status: JobStatus;
@@ -51,6 +54,42 @@ interface DemoJob {
   seatStates?: (code: string) => SeatState;
 }
 
+/**
+ * Invented figures for the invented engines, in the range such engines commonly have; they are
+ * demo data, not any maker's specification.
+ */
+const DEMO_SPECS: Array<{
+  name: string;
+  values: Array<{ key: string; min?: number; max?: number; limit?: number; nominal?: number; unit: "mm" | "N·m" | "N" }>;
+}> = [
+  {
+    name: "Varda VX18 1.8 16V",
+    values: [
+      { key: "journal_clearance", min: 0.035, max: 0.072, limit: 0.1, unit: "mm" },
+      { key: "cap_bolt_torque", nominal: 10, unit: "N·m" },
+      { key: "seat_contact_width_intake", min: 1.0, max: 1.4, unit: "mm" },
+      { key: "seat_contact_width_exhaust", min: 1.2, max: 1.6, unit: "mm" },
+      { key: "valve_stem_diameter_intake", min: 5.465, max: 5.48, unit: "mm" },
+      { key: "valve_stem_diameter_exhaust", min: 5.45, max: 5.465, unit: "mm" },
+      { key: "stem_guide_clearance_intake", min: 0.02, max: 0.05, limit: 0.08, unit: "mm" },
+      { key: "stem_guide_clearance_exhaust", min: 0.035, max: 0.065, limit: 0.1, unit: "mm" },
+      { key: "installed_spring_height", min: 34.5, max: 35.5, unit: "mm" },
+      { key: "spring_load", min: 180, max: 210, unit: "N" },
+      { key: "deck_flatness", max: 0.05, limit: 0.1, unit: "mm" },
+    ],
+  },
+  {
+    name: "Halden HV30 3.0 V6 24V",
+    values: [
+      { key: "journal_clearance", min: 0.04, max: 0.08, limit: 0.12, unit: "mm" },
+      { key: "cap_bolt_torque", nominal: 11, unit: "N·m" },
+      { key: "seat_contact_width_intake", min: 1.1, max: 1.5, unit: "mm" },
+      { key: "seat_contact_width_exhaust", min: 1.4, max: 1.9, unit: "mm" },
+      { key: "deck_flatness", max: 0.05, limit: 0.1, unit: "mm" },
+    ],
+  },
+];
+
 const DEMO_CUSTOMERS = [
   { name: "Corrin Vale Fleet Services", email: "workshop@corrinvale.example", phone: "0161 555 0142" },
   { name: "Juniper Oyelaran", email: "juniper.o@mail.example", phone: "07700 900 318" },
@@ -60,6 +99,7 @@ const DEMO_CUSTOMERS = [
 const DEMO_JOBS: DemoJob[] = [
   {
     number: "MHW-0141",
+    spec: "Varda VX18 1.8 16V",
     customer: "Corrin Vale Fleet Services",
     engine: "Varda VX18 1.8 inline-4, twin cam, 16 valves (van, 212,000 km)",
     status: "at_bench",
@@ -80,6 +120,7 @@ const DEMO_JOBS: DemoJob[] = [
   },
   {
     number: "MHW-0142",
+    spec: "Halden HV30 3.0 V6 24V",
     customer: "Juniper Oyelaran",
     engine: "Halden HV30 3.0 V6, four cams, 24 valves (saloon, overheated once)",
     status: "queued",
@@ -166,6 +207,26 @@ export async function seedDemoShop(db: Db): Promise<boolean> {
       .returning();
     const customerByName = new Map(insertedCustomers.map((c) => [c.name, c]));
 
+    const specByName = new Map<string, string>();
+    for (const spec of DEMO_SPECS) {
+      const [row] = await tx
+        .insert(engineSpecs)
+        .values({ shopId: shop.id, name: spec.name, source: "Demo figures (invented)" })
+        .returning();
+      specByName.set(spec.name, row!.id);
+      await tx.insert(specValues).values(
+        spec.values.map((v) => ({
+          engineSpecId: row!.id,
+          key: v.key,
+          minValue: v.min ?? null,
+          maxValue: v.max ?? null,
+          limitValue: v.limit ?? null,
+          nominalValue: v.nominal ?? null,
+          unit: v.unit,
+        })),
+      );
+    }
+
     for (const j of DEMO_JOBS) {
       const [job] = await tx
         .insert(jobs)
@@ -178,6 +239,7 @@ export async function seedDemoShop(db: Db): Promise<boolean> {
           assignedTechnicianId: j.technician ? userByEmail.get(j.technician)!.id : null,
           promisedOn: isoDateInDays(j.promisedInDays),
           notes: j.notes,
+          engineSpecId: j.spec ? specByName.get(j.spec)! : null,
         })
         .returning();
       const { label, ...layout } = j.head;
@@ -220,6 +282,7 @@ export async function seedDemoShop(db: Db): Promise<boolean> {
         insertedSeats.map((s, k) => ({
           headId: head!.id,
           seatId: s.id,
+          lappedInSeatId: j.technician && (s.state === "settled" || s.state === "lapping") ? s.id : null,
           tag: seatCode(s),
           partNumber: s.kind === "intake" ? "VI-3301" : "VE-3302",
           serial: `${j.number.slice(-4)}-${String(k + 1).padStart(2, "0")}`,

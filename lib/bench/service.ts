@@ -324,6 +324,13 @@ export async function saveStrokes(db: Db, actor: Actor, sessionId: string, input
       .onConflictDoNothing({ target: [strokes.sessionId, strokes.clientId] })
       .returning({ id: strokes.id });
     await tx.update(lappingSessions).set({ lastSeenAt: new Date() }).where(eq(lappingSessions.id, sessionId));
+    if (inserted.length > 0) {
+      // The valve in this seat is now lapped into it, and stays with it.
+      await tx
+        .update(valves)
+        .set({ lappedInSeatId: ctx.seat.id, updatedAt: new Date() })
+        .where(and(eq(valves.seatId, ctx.seat.id), isNull(valves.lappedInSeatId)));
+    }
     const stage = ctx.session.stage;
     const current = await stageRecord(tx, ctx.seat.id, stage);
     const fine = stage === "fine" ? current : await stageRecord(tx, ctx.seat.id, "fine");
