@@ -102,6 +102,7 @@ export interface JobDetail {
   engineDescription: string;
   promisedOn: string | null;
   notes: string | null;
+  engineSpecId: string | null;
   customer: { id: string; name: string; email: string | null; phone: string | null };
   technician: { id: string; name: string } | null;
   heads: Array<
@@ -157,6 +158,7 @@ export async function getJob(db: Db, shopId: string, jobId: string): Promise<Job
     engineDescription: row.job.engineDescription,
     promisedOn: row.job.promisedOn,
     notes: row.job.notes,
+    engineSpecId: row.job.engineSpecId,
     customer: { id: row.customer.id, name: row.customer.name, email: row.customer.email, phone: row.customer.phone },
     technician: row.job.assignedTechnicianId && row.techName ? { id: row.job.assignedTechnicianId, name: row.techName } : null,
     heads: result,

@@ -35,6 +35,10 @@ export function forbiddenMessage(permission: Permission): string {
       return "Only a supervisor can audit and sign off work.";
     case "jobs:work":
       return "Only technicians and supervisors can record work on a job.";
+    case "jobs:manage":
+      return "Only a supervisor or an admin can book in and edit jobs.";
+    case "specs:manage":
+      return "Only a supervisor or an admin can change the specifications library.";
     default:
       return "Your role does not allow this.";
   }

@@ -6,12 +6,14 @@ export type Permission =
   | "jobs:read"
   | "jobs:work"
   | "jobs:audit"
+  | "jobs:manage"
+  | "specs:manage"
   | "users:manage";
 
 const GRANTS: Record<UserRole, readonly Permission[]> = {
   technician: ["jobs:read", "jobs:work"],
-  supervisor: ["jobs:read", "jobs:work", "jobs:audit"],
-  admin: ["jobs:read", "jobs:audit", "users:manage"],
+  supervisor: ["jobs:read", "jobs:work", "jobs:audit", "jobs:manage", "specs:manage"],
+  admin: ["jobs:read", "jobs:audit", "jobs:manage", "specs:manage", "users:manage"],
 };
 
 export function can(role: UserRole, permission: Permission): boolean {
