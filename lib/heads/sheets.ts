@@ -1,0 +1,592 @@
+// The head's sheets on the server: journal oil clearance readings, cap torque sequences, the
+// other head measurements and valve identity. Every write checks the shop, the role, that the
+// head is not signed off, and lands together with its audit entry.
+import { and, asc, eq, inArray } from "drizzle-orm";
+import type { Db } from "@/db/client";
+import {
+  camshafts,
+  heads,
+  jobs,
+  journals,
+  measurements,
+  seats,
+  torqueSheets,
+  torqueTicks,
+  valves,
+  type Job,
+} from "@/db/schema";
+import type { Actor } from "@/lib/auth/guard";
+import { assertCanWorkOn } from "@/lib/auth/job-access";
+import { recordAudit } from "@/lib/audit";
+import { BadRequestError, ConflictError, NotFoundError } from "@/lib/errors";
+import { isClosed } from "@/lib/jobs/lifecycle";
+import { judgeClearance, stripCheck, type ClearanceVerdict, type StripCheck, type StripId } from "@/lib/measure/clearance";
+import { judgeRange, MEASUREMENT_KINDS, type MeasurementKind, type RangeVerdict } from "@/lib/measure/results";
+import {
+  centreOutwardOrder,
+  checkTick,
+  nextExpectedTick,
+  stagesFor,
+  validateOrder,
+  type BoltsPerCap,
+  type Tick,
+  type TighteningStage,
+} from "@/lib/measure/torque";
+import { effectiveSpec, effectiveSpecs, type EffectiveSpec } from "@/lib/specs/effective";
+import type { SpecKey } from "@/lib/specs/keys";
+import { seatCode } from "./layout";
+
+type Reader = Pick<Db, "select">;
+
+function assertEditable(actor: Actor, job: Job): void {
+  assertCanWorkOn(actor, job);
+  if (isClosed(job.status)) {
+    throw new ConflictError(`Job ${job.number} is signed off: its sheets are read-only until a supervisor reopens it.`);
+  }
+}
+
+async function headOfJob(db: Reader, shopId: string, jobId: string) {
+  const [row] = await db
+    .select({ head: heads, job: jobs })
+    .from(heads)
+    .innerJoin(jobs, eq(jobs.id, heads.jobId))
+    .where(and(eq(jobs.id, jobId), eq(jobs.shopId, shopId)))
+    .limit(1);
+  if (!row) throw new NotFoundError("That job has no head in your shop.");
+  return row;
+}
+
+// ---------------------------------------------------------------- journal clearance
+
+export interface ClearanceInput {
+  journalId: string;
+  clearanceMm: number;
+  method: "strip" | "diameters";
+  stripId: StripId | null;
+  boreMm: number | null;
+  journalMm: number | null;
+  enteredUnit: string;
+  spec: { minMm: number; maxMm: number; serviceLimitMm: number | null } | null;
+}
+
+export interface ClearanceResult {
+  verdict: ClearanceVerdict | null;
+  strip: StripCheck | null;
+  specSource: "library" | "job_override" | "entered" | null;
+}
+
+function clearanceSpecFrom(spec: EffectiveSpec | null) {
+  if (!spec || spec.min === null || spec.max === null) return null;
+  return { minMm: spec.min, maxMm: spec.max, serviceLimitMm: spec.limit };
+}
+
+export async function recordJournalClearance(db: Db, actor: Actor, input: ClearanceInput): Promise<ClearanceResult> {
+  const [row] = await db
+    .select({ journal: journals, camshaft: camshafts, head: heads, job: jobs })
+    .from(journals)
+    .innerJoin(camshafts, eq(camshafts.id, journals.camshaftId))
+    .innerJoin(heads, eq(heads.id, camshafts.headId))
+    .innerJoin(jobs, eq(jobs.id, heads.jobId))
+    .where(and(eq(journals.id, input.journalId), eq(jobs.shopId, actor.shopId)))
+    .limit(1);
+  if (!row) throw new BadRequestError("That journal does not exist on this head.", { journalId: ["No such journal."] });
+  assertEditable(actor, row.job);
+  const library = input.spec ? null : await effectiveSpec(db, row.job.id, "journal_clearance");
+  const spec = input.spec ?? clearanceSpecFrom(library);
+  const specSource: "entered" | "library" | "job_override" | null = input.spec ? "entered" : spec ? library!.source : null;
+  const verdict = spec ? judgeClearance(input.clearanceMm, spec) : null;
+  const strip = input.method === "strip" && input.stripId ? stripCheck(input.clearanceMm, input.stripId) : null;
+  await db.transaction(async (tx) => {
+    const [before] = await tx
+      .select()
+      .from(measurements)
+      .where(and(eq(measurements.journalId, input.journalId), eq(measurements.kind, "journal_clearance")))
+      .for("update");
+    const values = {
+      headId: row.head.id,
+      kind: "journal_clearance" as const,
+      journalId: input.journalId,
+      value: input.clearanceMm,
+      enteredUnit: input.enteredUnit,
+      method: input.method,
+      stripId: input.stripId,
+      boreMm: input.boreMm,
+      journalMm: input.journalMm,
+      specMin: spec?.minMm ?? null,
+      specMax: spec?.maxMm ?? null,
+      serviceLimit: spec?.serviceLimitMm ?? null,
+      specSource,
+      recordedById: actor.id,
+      updatedAt: new Date(),
+    };
+    let id: string;
+    if (before) {
+      await tx.update(measurements).set(values).where(eq(measurements.id, before.id));
+      id = before.id;
+    } else {
+      const [created] = await tx.insert(measurements).values(values).returning({ id: measurements.id });
+      id = created!.id;
+    }
+    await recordAudit(tx, {
+      actorId: actor.id,
+      action: before ? "measurement.edited" : "measurement.recorded",
+      entityType: "measurement",
+      entityId: id,
+      jobId: row.job.id,
+      before: before ? { valueMm: before.value, method: before.method } : null,
+      after: {
+        kind: "journal_clearance",
+        camshaft: row.camshaft.label,
+        journal: row.journal.position,
+        valueMm: input.clearanceMm,
+        method: input.method,
+        verdict,
+      },
+    });
+  });
+  return { verdict, strip, specSource };
+}
+
+export interface ClearanceSheet {
+  jobId: string;
+  jobNumber: string;
+  closed: boolean;
+  spec: EffectiveSpec | null;
+  camshafts: Array<{
+    id: string;
+    label: string;
+    journals: Array<{
+      id: string;
+      position: number;
+      reading: null | {
+        clearanceMm: number;
+        method: string | null;
+        stripId: string | null;
+        boreMm: number | null;
+        journalMm: number | null;
+        enteredUnit: string;
+        verdict: ClearanceVerdict | null;
+        strip: StripCheck | null;
+        specSource: string | null;
+        spec: { minMm: number | null; maxMm: number | null; serviceLimitMm: number | null };
+      };
+    }>;
+  }>;
+}
+
+export async function getClearanceSheet(db: Db, shopId: string, jobId: string): Promise<ClearanceSheet> {
+  const { head, job } = await headOfJob(db, shopId, jobId);
+  const cams = await db.select().from(camshafts).where(eq(camshafts.headId, head.id)).orderBy(asc(camshafts.position));
+  const js = cams.length
+    ? await db.select().from(journals).where(inArray(journals.camshaftId, cams.map((c) => c.id))).orderBy(asc(journals.position))
+    : [];
+  const readings = await db
+    .select()
+    .from(measurements)
+    .where(and(eq(measurements.headId, head.id), eq(measurements.kind, "journal_clearance")));
+  const byJournal = new Map(readings.map((r) => [r.journalId, r]));
+  return {
+    jobId: job.id,
+    jobNumber: job.number,
+    closed: isClosed(job.status),
+    spec: await effectiveSpec(db, job.id, "journal_clearance"),
+    camshafts: cams.map((c) => ({
+      id: c.id,
+      label: c.label,
+      journals: js
+        .filter((j) => j.camshaftId === c.id)
+        .map((j) => {
+          const r = byJournal.get(j.id);
+          const spec = r && r.specMin !== null && r.specMax !== null ? { minMm: r.specMin, maxMm: r.specMax, serviceLimitMm: r.serviceLimit } : null;
+          return {
+            id: j.id,
+            position: j.position,
+            reading: r
+              ? {
+                  clearanceMm: r.value,
+                  method: r.method,
+                  stripId: r.stripId,
+                  boreMm: r.boreMm,
+                  journalMm: r.journalMm,
+                  enteredUnit: r.enteredUnit,
+                  verdict: spec ? judgeClearance(r.value, spec) : null,
+                  strip: r.method === "strip" && r.stripId ? stripCheck(r.value, r.stripId as StripId) : null,
+                  specSource: r.specSource,
+                  spec: { minMm: r.specMin, maxMm: r.specMax, serviceLimitMm: r.serviceLimit },
+                }
+              : null,
+          };
+        }),
+    })),
+  };
+}
+
+// ---------------------------------------------------------------- cap torque
+
+export interface TorqueSetupInput {
+  camshaftId: string;
+  capCount: number;
+  boltsPerCap: BoltsPerCap;
+  order: "centre-out" | string[];
+  finalNm: number | null;
+  stageFractions: number[];
+}
+
+export async function setUpTorqueSheet(db: Db, actor: Actor, input: TorqueSetupInput): Promise<string> {
+  const [row] = await db
+    .select({ camshaft: camshafts, head: heads, job: jobs })
+    .from(camshafts)
+    .innerJoin(heads, eq(heads.id, camshafts.headId))
+    .innerJoin(jobs, eq(jobs.id, heads.jobId))
+    .where(and(eq(camshafts.id, input.camshaftId), eq(jobs.shopId, actor.shopId)))
+    .limit(1);
+  if (!row) throw new BadRequestError("That camshaft does not exist on this head.", { camshaftId: ["No such camshaft."] });
+  assertEditable(actor, row.job);
+  const order = input.order === "centre-out" ? centreOutwardOrder(input.capCount, input.boltsPerCap) : input.order;
+  const orderErrors = validateOrder(order, input.capCount, input.boltsPerCap);
+  if (orderErrors.length) throw new BadRequestError(orderErrors[0]!, { order: orderErrors });
+  let finalNm = input.finalNm;
+  let specSource: "entered" | "library" | "job_override" = "entered";
+  if (finalNm === null) {
+    const spec = await effectiveSpec(db, row.job.id, "cap_bolt_torque");
+    if (!spec?.nominal) {
+      throw new BadRequestError("Enter the final torque: the engine's specification has none.", { finalTorque: ["Enter the engine maker's figure."] });
+    }
+    finalNm = spec.nominal;
+    specSource = spec.source;
+  }
+  stagesFor(finalNm, input.stageFractions);
+  return db.transaction(async (tx) => {
+    const [existing] = await tx.select().from(torqueSheets).where(eq(torqueSheets.camshaftId, input.camshaftId)).for("update");
+    if (existing) {
+      const ticked = await tx.select({ id: torqueTicks.id }).from(torqueTicks).where(eq(torqueTicks.sheetId, existing.id)).limit(1);
+      if (ticked.length) throw new ConflictError("Bolts are already ticked on this sheet; its order and torque can no longer change.");
+      await tx.delete(torqueSheets).where(eq(torqueSheets.id, existing.id));
+    }
+    const [sheet] = await tx
+      .insert(torqueSheets)
+      .values({
+        headId: row.head.id,
+        camshaftId: input.camshaftId,
+        capCount: input.capCount,
+        boltsPerCap: input.boltsPerCap,
+        boltOrder: order,
+        orderSource: input.order === "centre-out" ? "centre-out" : "maker",
+        finalNm: finalNm!,
+        stageFractions: input.stageFractions,
+        specSource,
+        createdById: actor.id,
+      })
+      .returning({ id: torqueSheets.id });
+    await recordAudit(tx, {
+      actorId: actor.id,
+      action: "torque_sheet.set_up",
+      entityType: "torque_sheet",
+      entityId: sheet!.id,
+      jobId: row.job.id,
+      after: { camshaft: row.camshaft.label, order, finalNm, stageFractions: input.stageFractions, specSource },
+    });
+    return sheet!.id;
+  });
+}
+
+export interface TorqueSheetView {
+  id: string;
+  camshaftId: string;
+  camshaftLabel: string;
+  capCount: number;
+  boltsPerCap: number;
+  order: string[];
+  orderSource: string;
+  finalNm: number;
+  specSource: string;
+  stages: TighteningStage[];
+  ticks: Tick[];
+  next: Tick | null;
+}
+
+export async function getTorqueSheets(db: Db, shopId: string, jobId: string) {
+  const { head, job } = await headOfJob(db, shopId, jobId);
+  const cams = await db.select().from(camshafts).where(eq(camshafts.headId, head.id)).orderBy(asc(camshafts.position));
+  const sheets = await db.select().from(torqueSheets).where(eq(torqueSheets.headId, head.id));
+  const ticks = sheets.length
+    ? await db.select().from(torqueTicks).where(inArray(torqueTicks.sheetId, sheets.map((s) => s.id))).orderBy(asc(torqueTicks.tickedAt))
+    : [];
+  const views: TorqueSheetView[] = sheets.map((s) => {
+    const stages = stagesFor(s.finalNm, s.stageFractions);
+    const mine = ticks.filter((t) => t.sheetId === s.id).map((t) => ({ stage: t.stage, boltId: t.boltId }));
+    return {
+      id: s.id,
+      camshaftId: s.camshaftId,
+      camshaftLabel: cams.find((c) => c.id === s.camshaftId)?.label ?? "Camshaft",
+      capCount: s.capCount,
+      boltsPerCap: s.boltsPerCap,
+      order: s.boltOrder,
+      orderSource: s.orderSource,
+      finalNm: s.finalNm,
+      specSource: s.specSource,
+      stages,
+      ticks: mine,
+      next: nextExpectedTick(s.boltOrder, stages, mine),
+    };
+  });
+  return {
+    jobId: job.id,
+    jobNumber: job.number,
+    closed: isClosed(job.status),
+    torqueSpec: await effectiveSpec(db, job.id, "cap_bolt_torque"),
+    camshafts: cams.map((c) => ({ id: c.id, label: c.label, journalCount: c.journalCount, sheet: views.find((v) => v.camshaftId === c.id) ?? null })),
+  };
+}
+
+export async function tickBolt(db: Db, actor: Actor, input: { sheetId: string; stage: number; boltId: string }): Promise<Tick | null> {
+  const [row] = await db
+    .select({ sheet: torqueSheets, job: jobs })
+    .from(torqueSheets)
+    .innerJoin(heads, eq(heads.id, torqueSheets.headId))
+    .innerJoin(jobs, eq(jobs.id, heads.jobId))
+    .where(and(eq(torqueSheets.id, input.sheetId), eq(jobs.shopId, actor.shopId)))
+    .limit(1);
+  if (!row) throw new NotFoundError("That torque sheet does not exist in your shop.");
+  assertEditable(actor, row.job);
+  const stages = stagesFor(row.sheet.finalNm, row.sheet.stageFractions);
+  return db.transaction(async (tx) => {
+    // Lock the sheet so two phones ticking at once are checked one after the other.
+    await tx.select({ id: torqueSheets.id }).from(torqueSheets).where(eq(torqueSheets.id, input.sheetId)).for("update");
+    const done = (await tx.select().from(torqueTicks).where(eq(torqueTicks.sheetId, input.sheetId))).map((t) => ({ stage: t.stage, boltId: t.boltId }));
+    const check = checkTick(row.sheet.boltOrder, stages, done, { stage: input.stage, boltId: input.boltId });
+    if (!check.ok) throw new ConflictError(check.message);
+    await tx.insert(torqueTicks).values({ sheetId: input.sheetId, stage: input.stage, boltId: input.boltId, tickedById: actor.id });
+    const stage = stages.find((s) => s.stage === input.stage)!;
+    await recordAudit(tx, {
+      actorId: actor.id,
+      action: "torque.ticked",
+      entityType: "torque_sheet",
+      entityId: input.sheetId,
+      jobId: row.job.id,
+      after: { bolt: input.boltId, stage: input.stage, nm: stage.nm },
+    });
+    return nextExpectedTick(row.sheet.boltOrder, stages, [...done, { stage: input.stage, boltId: input.boltId }]);
+  });
+}
+
+// ---------------------------------------------------------------- other measurements
+
+export interface MeasurementInput {
+  jobId: string;
+  kind: Exclude<MeasurementKind, "journal_clearance">;
+  seatId: string | null;
+  valueSi: number;
+  enteredUnit: string;
+  method: string | null;
+  spec: { min: number | null; max: number | null } | null;
+  note: string | null;
+}
+
+/** Which library figure applies to a measurement; per-seat figures differ for intake and exhaust. */
+export function specKeyFor(kind: MeasurementInput["kind"], seatKind: "intake" | "exhaust" | null): SpecKey | null {
+  switch (kind) {
+    case "seat_contact_width":
+      return seatKind ? `seat_contact_width_${seatKind}` : null;
+    case "valve_stem_diameter":
+      return seatKind ? `valve_stem_diameter_${seatKind}` : null;
+    case "stem_guide_clearance":
+      return seatKind ? `stem_guide_clearance_${seatKind}` : null;
+    case "installed_spring_height":
+      return "installed_spring_height";
+    case "spring_load":
+      return "spring_load";
+    case "deck_flatness":
+      return "deck_flatness";
+  }
+}
+
+export async function recordMeasurement(db: Db, actor: Actor, input: MeasurementInput) {
+  const { head, job } = await headOfJob(db, actor.shopId, input.jobId);
+  assertEditable(actor, job);
+  const info = MEASUREMENT_KINDS[input.kind];
+  let seatKind: "intake" | "exhaust" | null = null;
+  if (info.scope === "seat") {
+    if (!input.seatId) throw new BadRequestError("Choose the seat this was measured on.", { seatId: ["Choose a seat."] });
+    const [seat] = await db.select().from(seats).where(and(eq(seats.id, input.seatId), eq(seats.headId, head.id)));
+    if (!seat) throw new BadRequestError("That seat is not on this head.", { seatId: ["No such seat."] });
+    seatKind = seat.kind;
+  }
+  const key = specKeyFor(input.kind, seatKind);
+  const library = !input.spec && key ? await effectiveSpec(db, job.id, key) : null;
+  const spec = input.spec ?? (library ? { min: library.min, max: library.max } : null);
+  const specSource: "entered" | "library" | "job_override" | null = input.spec ? "entered" : library ? library.source : null;
+  const verdict: RangeVerdict | null = spec && (spec.min !== null || spec.max !== null) ? judgeRange(input.valueSi, { min: spec.min ?? undefined, max: spec.max ?? undefined }) : null;
+  const id = await db.transaction(async (tx) => {
+    const [created] = await tx
+      .insert(measurements)
+      .values({
+        headId: head.id,
+        kind: input.kind,
+        seatId: info.scope === "seat" ? input.seatId : null,
+        value: input.valueSi,
+        enteredUnit: input.enteredUnit,
+        method: input.method,
+        specMin: spec?.min ?? null,
+        specMax: spec?.max ?? null,
+        serviceLimit: library?.limit ?? null,
+        specSource,
+        note: input.note,
+        recordedById: actor.id,
+      })
+      .returning({ id: measurements.id });
+    await recordAudit(tx, {
+      actorId: actor.id,
+      action: "measurement.recorded",
+      entityType: "measurement",
+      entityId: created!.id,
+      jobId: job.id,
+      after: { kind: input.kind, valueSi: input.valueSi, method: input.method, verdict, specSource },
+    });
+    return created!.id;
+  });
+  return { id, verdict, specSource };
+}
+
+export interface MeasurementRow {
+  id: string;
+  kind: MeasurementKind;
+  label: string;
+  where: string;
+  valueSi: number;
+  enteredUnit: string;
+  method: string | null;
+  specMin: number | null;
+  specMax: number | null;
+  serviceLimit: number | null;
+  specSource: string | null;
+  verdict: string | null;
+  recordedAt: string;
+}
+
+export async function listMeasurements(db: Db, shopId: string, jobId: string): Promise<MeasurementRow[]> {
+  const { head } = await headOfJob(db, shopId, jobId);
+  const rows = await db
+    .select({ m: measurements, seat: seats, journal: journals, camshaft: camshafts })
+    .from(measurements)
+    .leftJoin(seats, eq(seats.id, measurements.seatId))
+    .leftJoin(journals, eq(journals.id, measurements.journalId))
+    .leftJoin(camshafts, eq(camshafts.id, journals.camshaftId))
+    .where(eq(measurements.headId, head.id))
+    .orderBy(asc(measurements.kind), asc(measurements.createdAt));
+  // Torque lives on its own sheet; measurements of other kinds are listed here.
+  return rows.flatMap(({ m, seat, journal, camshaft }) => {
+    if (m.kind === "cap_torque") return [];
+    const kind = m.kind;
+    const spec = { min: m.specMin ?? undefined, max: m.specMax ?? undefined };
+    const verdict =
+      m.kind === "journal_clearance"
+        ? m.specMin !== null && m.specMax !== null
+          ? judgeClearance(m.value, { minMm: m.specMin, maxMm: m.specMax, serviceLimitMm: m.serviceLimit })
+          : null
+        : m.specMin !== null || m.specMax !== null
+          ? judgeRange(m.value, spec)
+          : null;
+    return {
+      id: m.id,
+      kind,
+      label: MEASUREMENT_KINDS[kind].label,
+      where: seat ? seatCode(seat) : journal && camshaft ? `${camshaft.label}, journal ${journal.position}` : "Head",
+      valueSi: m.value,
+      enteredUnit: m.enteredUnit,
+      method: m.method,
+      specMin: m.specMin,
+      specMax: m.specMax,
+      serviceLimit: m.serviceLimit,
+      specSource: m.specSource,
+      verdict,
+      recordedAt: m.createdAt.toISOString(),
+    } satisfies MeasurementRow;
+  });
+}
+
+export { effectiveSpecs };
+
+// ---------------------------------------------------------------- valves
+
+export async function updateValveIdentity(
+  db: Db,
+  actor: Actor,
+  input: { valveId: string; tag: string; partNumber: string | null; serial: string | null },
+) {
+  const [row] = await db
+    .select({ valve: valves, job: jobs })
+    .from(valves)
+    .innerJoin(heads, eq(heads.id, valves.headId))
+    .innerJoin(jobs, eq(jobs.id, heads.jobId))
+    .where(and(eq(valves.id, input.valveId), eq(jobs.shopId, actor.shopId)))
+    .limit(1);
+  if (!row) throw new NotFoundError("That valve does not exist in your shop.");
+  assertEditable(actor, row.job);
+  await db.transaction(async (tx) => {
+    await tx
+      .update(valves)
+      .set({ tag: input.tag, partNumber: input.partNumber, serial: input.serial, updatedAt: new Date() })
+      .where(eq(valves.id, input.valveId));
+    await recordAudit(tx, {
+      actorId: actor.id,
+      action: "valve.identified",
+      entityType: "valve",
+      entityId: input.valveId,
+      jobId: row.job.id,
+      before: { tag: row.valve.tag, partNumber: row.valve.partNumber, serial: row.valve.serial },
+      after: { tag: input.tag, partNumber: input.partNumber, serial: input.serial },
+    });
+  });
+}
+
+/**
+ * Puts a valve in another seat. A valve lapped into a seat stays with it (service manuals: a
+ * valve goes back into the seat it was lapped in); before lapping, valves may be swapped, and
+ * the swap is recorded.
+ */
+export async function moveValve(db: Db, actor: Actor, input: { valveId: string; toSeatId: string }) {
+  const [row] = await db
+    .select({ valve: valves, job: jobs })
+    .from(valves)
+    .innerJoin(heads, eq(heads.id, valves.headId))
+    .innerJoin(jobs, eq(jobs.id, heads.jobId))
+    .where(and(eq(valves.id, input.valveId), eq(jobs.shopId, actor.shopId)))
+    .limit(1);
+  if (!row) throw new NotFoundError("That valve does not exist in your shop.");
+  assertEditable(actor, row.job);
+  const [target] = await db.select().from(seats).where(and(eq(seats.id, input.toSeatId), eq(seats.headId, row.valve.headId)));
+  if (!target) throw new BadRequestError("That seat is not on this head.", { toSeatId: ["Choose a seat of this head."] });
+  if (row.valve.seatId === target.id) return;
+  const [from] = row.valve.seatId ? await db.select().from(seats).where(eq(seats.id, row.valve.seatId)) : [];
+  if (row.valve.lappedInSeatId && row.valve.lappedInSeatId !== target.id) {
+    const [home] = await db.select().from(seats).where(eq(seats.id, row.valve.lappedInSeatId));
+    throw new ConflictError(
+      `Valve ${row.valve.tag} was lapped into seat ${home ? seatCode(home) : "its seat"} and must go back into that seat: a lapped valve only seals the seat it was lapped in.`,
+    );
+  }
+  if (target.kind !== (from?.kind ?? target.kind)) {
+    throw new BadRequestError(`Valve ${row.valve.tag} is an ${from?.kind} valve; seat ${seatCode(target)} is ${target.kind}.`, {
+      toSeatId: ["Choose a seat of the same kind."],
+    });
+  }
+  await db.transaction(async (tx) => {
+    const [occupant] = await tx.select().from(valves).where(eq(valves.seatId, target.id)).for("update");
+    if (occupant?.lappedInSeatId) {
+      throw new ConflictError(`Seat ${seatCode(target)} already holds valve ${occupant.tag}, lapped into it; it cannot be swapped out.`);
+    }
+    // Free the target first: one valve per seat is a unique constraint.
+    if (occupant) await tx.update(valves).set({ seatId: null }).where(eq(valves.id, occupant.id));
+    await tx.update(valves).set({ seatId: target.id, updatedAt: new Date() }).where(eq(valves.id, row.valve.id));
+    if (occupant) await tx.update(valves).set({ seatId: row.valve.seatId, updatedAt: new Date() }).where(eq(valves.id, occupant.id));
+    await recordAudit(tx, {
+      actorId: actor.id,
+      action: occupant ? "valve.swapped" : "valve.moved",
+      entityType: "valve",
+      entityId: row.valve.id,
+      jobId: row.job.id,
+      before: { valve: row.valve.tag, seat: from ? seatCode(from) : null },
+      after: { valve: row.valve.tag, seat: seatCode(target), swappedWith: occupant?.tag ?? null },
+    });
+  });
+}
