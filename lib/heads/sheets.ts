@@ -247,6 +247,9 @@ export async function setUpTorqueSheet(db: Db, actor: Actor, input: TorqueSetupI
   if (orderErrors.length) throw new BadRequestError(orderErrors[0]!, { order: orderErrors });
   let finalNm = input.finalNm;
   let specSource: "entered" | "library" | "job_override" = "entered";
+  const torqueSpec = await effectiveSpec(db, row.job.id, "cap_bolt_torque");
+  // A figure typed in that equals the specification's is the specification's.
+  if (finalNm !== null && torqueSpec?.nominal != null && Math.abs(torqueSpec.nominal - finalNm) < 0.05) specSource = torqueSpec.source;
   if (finalNm === null) {
     const spec = await effectiveSpec(db, row.job.id, "cap_bolt_torque");
     if (!spec?.nominal) {

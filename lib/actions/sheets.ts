@@ -1,0 +1,183 @@
+"use server";
+
+// Server actions for the head's sheets. Each checks the session and role first, validates with
+// the shared zod schemas, and leaves the database unchanged when it refuses.
+import { revalidatePath } from "next/cache";
+import { z } from "zod";
+import { getDb } from "@/db/client";
+import { requireActor } from "@/lib/auth/guard";
+import { moveValve, recordJournalClearance, recordMeasurement, setUpTorqueSheet, tickBolt, updateValveIdentity } from "@/lib/heads/sheets";
+import { CLEARANCE_VERDICT_LABELS } from "@/lib/measure/clearance";
+import { RANGE_VERDICT_LABELS } from "@/lib/measure/results";
+import { toMm } from "@/lib/measure/units";
+import {
+  clearanceMmOf,
+  clearanceSpecMm,
+  clearanceSpecSchema,
+  finalTorqueNmOf,
+  journalClearanceReadingSchema,
+  measurementSchema,
+  measurementSi,
+  tickSchema,
+  torqueSheetSetupSchema,
+} from "@/lib/validations/measurements";
+import { actionFailure, type ActionState } from "./state";
+
+const text = (f: FormData, k: string) => {
+  const v = f.get(k);
+  return typeof v === "string" ? v : undefined;
+};
+
+function done(jobId: string, sub: string, message: string): ActionState {
+  revalidatePath(`/jobs/${jobId}`);
+  revalidatePath(`/jobs/${jobId}/${sub}`);
+  return { ok: true, message, fieldErrors: {} };
+}
+
+const jobIdSchema = z.string().uuid("Unknown job.");
+
+export async function saveClearanceReading(_prev: ActionState, f: FormData): Promise<ActionState> {
+  try {
+    const actor = await requireActor("jobs:work");
+    const jobId = jobIdSchema.parse(text(f, "jobId"));
+    const method = text(f, "method");
+    const reading = journalClearanceReadingSchema.parse(
+      method === "diameters"
+        ? { journalId: text(f, "journalId"), method, boreValue: text(f, "boreValue"), journalValue: text(f, "journalValue"), unit: text(f, "unit") }
+        : { journalId: text(f, "journalId"), method: "strip", stripId: text(f, "stripId"), value: text(f, "value"), unit: text(f, "unit") },
+    );
+    const hasSpec = [text(f, "specMin"), text(f, "specMax")].some((v) => v && v.trim() !== "");
+    const spec = hasSpec
+      ? clearanceSpecMm(clearanceSpecSchema.parse({ min: text(f, "specMin"), max: text(f, "specMax"), serviceLimit: text(f, "specLimit"), unit: reading.unit }))
+      : null;
+    const clearanceMm = clearanceMmOf(reading);
+    const result = await recordJournalClearance(await getDb(), actor, {
+      journalId: reading.journalId,
+      clearanceMm,
+      method: reading.method,
+      stripId: reading.method === "strip" ? reading.stripId : null,
+      boreMm: reading.method === "diameters" ? toMm(reading.boreValue, reading.unit) : null,
+      journalMm: reading.method === "diameters" ? toMm(reading.journalValue, reading.unit) : null,
+      enteredUnit: reading.unit,
+      spec: spec ? { minMm: spec.minMm, maxMm: spec.maxMm, serviceLimitMm: spec.serviceLimitMm ?? null } : null,
+    });
+    const verdict = result.verdict ? CLEARANCE_VERDICT_LABELS[result.verdict] : "no specification to judge against";
+    const strip = result.strip && !result.strip.ok ? ` ${result.strip.message}` : "";
+    return done(jobId, "clearance", `${clearanceMm.toFixed(3)} mm — ${verdict}.${strip}`);
+  } catch (err) {
+    return actionFailure(err);
+  }
+}
+
+export async function saveTorqueSetup(_prev: ActionState, f: FormData): Promise<ActionState> {
+  try {
+    const actor = await requireActor("jobs:work");
+    const jobId = jobIdSchema.parse(text(f, "jobId"));
+    const setup = torqueSheetSetupSchema.parse({
+      camshaftId: text(f, "camshaftId"),
+      capCount: text(f, "capCount"),
+      boltsPerCap: text(f, "boltsPerCap"),
+      order: text(f, "orderMode") === "maker" ? (text(f, "order") ?? "") : "centre-out",
+      finalTorque: { value: text(f, "finalTorque"), unit: text(f, "finalTorqueUnit") },
+      stageFractions: text(f, "stageFractions"),
+    });
+    await setUpTorqueSheet(await getDb(), actor, {
+      camshaftId: setup.camshaftId,
+      capCount: setup.capCount,
+      boltsPerCap: setup.boltsPerCap,
+      order: setup.order,
+      finalNm: finalTorqueNmOf(setup),
+      stageFractions: setup.stageFractions,
+    });
+    return done(jobId, "torque", "Torque sheet ready: tick each bolt as you tighten it.");
+  } catch (err) {
+    return actionFailure(err);
+  }
+}
+
+export async function saveTick(_prev: ActionState, f: FormData): Promise<ActionState> {
+  try {
+    const actor = await requireActor("jobs:work");
+    const jobId = jobIdSchema.parse(text(f, "jobId"));
+    const tick = tickSchema.parse({ sheetId: text(f, "sheetId"), stage: text(f, "stage"), boltId: text(f, "boltId") });
+    const next = await tickBolt(await getDb(), actor, tick);
+    return done(jobId, "torque", next ? `${tick.boltId} done. Next: ${next.boltId} at stage ${next.stage}.` : "Every bolt is tightened at every stage.");
+  } catch (err) {
+    return actionFailure(err);
+  }
+}
+
+export async function saveMeasurement(_prev: ActionState, f: FormData): Promise<ActionState> {
+  try {
+    const actor = await requireActor("jobs:work");
+    const jobId = jobIdSchema.parse(text(f, "jobId"));
+    const m = measurementSchema.parse({
+      kind: text(f, "kind"),
+      seatId: text(f, "seatId"),
+      journalId: text(f, "journalId"),
+      value: text(f, "value"),
+      unit: text(f, "unit"),
+      spec: { min: text(f, "specMin"), max: text(f, "specMax") },
+      method: text(f, "method"),
+    });
+    if (m.kind === "journal_clearance") {
+      return { ok: false, message: "Record journal clearances on the clearance sheet.", fieldErrors: { kind: ["Use the clearance sheet."] } };
+    }
+    const si = measurementSi(m);
+    const result = await recordMeasurement(await getDb(), actor, {
+      jobId,
+      kind: m.kind,
+      seatId: m.seatId ?? null,
+      valueSi: si.value,
+      enteredUnit: m.unit,
+      method: m.method ?? null,
+      spec: si.min !== null || si.max !== null ? { min: si.min, max: si.max } : null,
+      note: text(f, "note")?.trim() || null,
+    });
+    return done(jobId, "measurements", result.verdict ? `Saved — ${RANGE_VERDICT_LABELS[result.verdict]}.` : "Saved (no specification to judge against).");
+  } catch (err) {
+    return actionFailure(err);
+  }
+}
+
+const valveIdentitySchema = z.object({
+  jobId: z.string().uuid(),
+  valveId: z.string().uuid("Unknown valve."),
+  tag: z.string().trim().min(1, "Give the valve a tag.").max(20, "Keep the tag under 20 characters."),
+  partNumber: z.string().trim().max(40, "Keep the part number under 40 characters.").transform((v) => v || null),
+  serial: z.string().trim().max(40, "Keep the serial under 40 characters.").transform((v) => v || null),
+});
+
+export async function saveValveIdentity(_prev: ActionState, f: FormData): Promise<ActionState> {
+  try {
+    const actor = await requireActor("jobs:work");
+    const v = valveIdentitySchema.parse({
+      jobId: text(f, "jobId"),
+      valveId: text(f, "valveId"),
+      tag: text(f, "tag") ?? "",
+      partNumber: text(f, "partNumber") ?? "",
+      serial: text(f, "serial") ?? "",
+    });
+    await updateValveIdentity(await getDb(), actor, v);
+    return done(v.jobId, "valves", `Valve ${v.tag} saved.`);
+  } catch (err) {
+    const e = err as { code?: string; cause?: { code?: string } };
+    if (e?.code === "23505" || e?.cause?.code === "23505") {
+      return { ok: false, message: "Another valve of this head has that tag.", fieldErrors: { tag: ["Already used on this head."] } };
+    }
+    return actionFailure(err);
+  }
+}
+
+const moveSchema = z.object({ jobId: z.string().uuid(), valveId: z.string().uuid("Unknown valve."), toSeatId: z.string().uuid("Choose a seat.") });
+
+export async function saveValveMove(_prev: ActionState, f: FormData): Promise<ActionState> {
+  try {
+    const actor = await requireActor("jobs:work");
+    const v = moveSchema.parse({ jobId: text(f, "jobId"), valveId: text(f, "valveId"), toSeatId: text(f, "toSeatId") });
+    await moveValve(await getDb(), actor, v);
+    return done(v.jobId, "valves", "Valve moved; the swap is recorded.");
+  } catch (err) {
+    return actionFailure(err);
+  }
+}
