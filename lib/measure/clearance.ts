@@ -53,13 +53,20 @@ const STRIP_READING_SLACK_MM = 0.0005;
 
 export type StripCheck =
   | { ok: true }
-  | { ok: false; reason: "below-range" | "above-range"; message: string; suggestedStripId: StripId | null };
+  | {
+      ok: false;
+      reason: "below-range" | "above-range";
+      message: string;
+      suggestedStripId: StripId | null;
+    };
 
 export function stripCheck(clearanceMm: number, stripId: StripId): StripCheck {
-  if (!Number.isFinite(clearanceMm)) throw new RangeError(`Clearance must be a finite number, got ${clearanceMm}.`);
+  if (!Number.isFinite(clearanceMm))
+    throw new RangeError(`Clearance must be a finite number, got ${clearanceMm}.`);
   const strip = gaugeStrip(stripId);
   const covers = (s: GaugeStrip) =>
-    clearanceMm >= s.minMm - STRIP_READING_SLACK_MM && clearanceMm <= s.maxMm + STRIP_READING_SLACK_MM;
+    clearanceMm >= s.minMm - STRIP_READING_SLACK_MM &&
+    clearanceMm <= s.maxMm + STRIP_READING_SLACK_MM;
   if (covers(strip)) return { ok: true };
 
   const below = clearanceMm < strip.minMm;
@@ -86,7 +93,8 @@ export const PLAUSIBLE_JOURNAL_DIAMETER_MM = { min: 10, max: 80 } as const;
  * only to drop floating-point noise (26.000 − 25.949 is 0.05100000000000193 in binary).
  */
 export function clearanceFromDiameters(boreMm: number, journalMm: number): number {
-  if (!Number.isFinite(boreMm) || boreMm <= 0) throw new RangeError(`Bore diameter must be a positive number, got ${boreMm}.`);
+  if (!Number.isFinite(boreMm) || boreMm <= 0)
+    throw new RangeError(`Bore diameter must be a positive number, got ${boreMm}.`);
   if (!Number.isFinite(journalMm) || journalMm <= 0)
     throw new RangeError(`Journal diameter must be a positive number, got ${journalMm}.`);
   if (journalMm > boreMm) {
@@ -118,12 +126,18 @@ const COMPARE_EPS_MM = 1e-9;
  * - above max but below the limit is loose; below min is tight.
  */
 export function judgeClearance(clearanceMm: number, spec: ClearanceSpec): ClearanceVerdict {
-  if (!Number.isFinite(clearanceMm)) throw new RangeError(`Clearance must be a finite number, got ${clearanceMm}.`);
+  if (!Number.isFinite(clearanceMm))
+    throw new RangeError(`Clearance must be a finite number, got ${clearanceMm}.`);
   const { minMm, maxMm } = spec;
   const limit = spec.serviceLimitMm ?? null;
-  if (!(minMm <= maxMm)) throw new RangeError(`The specification's minimum (${minMm} mm) is above its maximum (${maxMm} mm).`);
+  if (!(minMm <= maxMm))
+    throw new RangeError(
+      `The specification's minimum (${minMm} mm) is above its maximum (${maxMm} mm).`,
+    );
   if (limit !== null && !(limit >= maxMm))
-    throw new RangeError(`The service limit (${limit} mm) is below the specification's maximum (${maxMm} mm).`);
+    throw new RangeError(
+      `The service limit (${limit} mm) is below the specification's maximum (${maxMm} mm).`,
+    );
 
   if (limit !== null && clearanceMm >= limit - COMPARE_EPS_MM) return "beyond_limit";
   if (clearanceMm > maxMm + COMPARE_EPS_MM) return "loose";

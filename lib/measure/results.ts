@@ -105,7 +105,8 @@ export type StemGuideMethod = (typeof STEM_GUIDE_METHODS)[number];
 
 export const STEM_GUIDE_METHOD_LABELS: Record<StemGuideMethod, string> = {
   direct: "Direct: guide bore gauge minus stem diameter",
-  rocking: "Rocking: dial indicator on the valve rocked in its guide (reads larger; use a rocking specification)",
+  rocking:
+    "Rocking: dial indicator on the valve rocked in its guide (reads larger; use a rocking specification)",
 };
 
 export const RANGE_VERDICTS = ["within_spec", "below", "above"] as const;
@@ -125,7 +126,8 @@ const COMPARE_EPS = 1e-9;
  * has only a maximum warp, a spring only a minimum load.
  */
 export function judgeRange(value: number, spec: RangeSpec): RangeVerdict {
-  if (!Number.isFinite(value)) throw new RangeError(`A measurement must be a finite number, got ${value}.`);
+  if (!Number.isFinite(value))
+    throw new RangeError(`A measurement must be a finite number, got ${value}.`);
   const min = spec.min ?? null;
   const max = spec.max ?? null;
   if (min !== null && max !== null && min > max)

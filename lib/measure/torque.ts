@@ -22,16 +22,19 @@ export const PLAUSIBLE_CAP_TORQUE_NM = { min: 1, max: 150 } as const;
 function checkLayout(capCount: number, boltsPerCap: number): asserts boltsPerCap is BoltsPerCap {
   if (!Number.isInteger(capCount) || capCount < 1 || capCount > MAX_CAPS)
     throw new RangeError(`A camshaft has between 1 and ${MAX_CAPS} caps, got ${capCount}.`);
-  if (boltsPerCap !== 1 && boltsPerCap !== 2) throw new RangeError(`A cap has 1 or 2 bolts, got ${boltsPerCap}.`);
+  if (boltsPerCap !== 1 && boltsPerCap !== 2)
+    throw new RangeError(`A cap has 1 or 2 bolts, got ${boltsPerCap}.`);
 }
 
-export const boltId = (cap: number, side: BoltSide | null): string => (side ? `C${cap}-${side}` : `C${cap}`);
+export const boltId = (cap: number, side: BoltSide | null): string =>
+  side ? `C${cap}-${side}` : `C${cap}`;
 
 export function boltLayout(capCount: number, boltsPerCap: BoltsPerCap): Bolt[] {
   checkLayout(capCount, boltsPerCap);
   const sides: (BoltSide | null)[] = boltsPerCap === 2 ? ["L", "R"] : [null];
   const out: Bolt[] = [];
-  for (let cap = 1; cap <= capCount; cap++) for (const side of sides) out.push({ id: boltId(cap, side), cap, side });
+  for (let cap = 1; cap <= capCount; cap++)
+    for (const side of sides) out.push({ id: boltId(cap, side), cap, side });
   return out;
 }
 
@@ -61,7 +64,11 @@ export function centreOutwardOrder(capCount: number, boltsPerCap: BoltsPerCap): 
 }
 
 /** Everything wrong with an entered order, one sentence per bolt; empty when it is usable. */
-export function validateOrder(order: readonly string[], capCount: number, boltsPerCap: BoltsPerCap): string[] {
+export function validateOrder(
+  order: readonly string[],
+  capCount: number,
+  boltsPerCap: BoltsPerCap,
+): string[] {
   checkLayout(capCount, boltsPerCap);
   const layout = boltLayout(capCount, boltsPerCap);
   const known = new Set(layout.map((b) => b.id));
@@ -69,13 +76,20 @@ export function validateOrder(order: readonly string[], capCount: number, boltsP
   order.forEach((id, i) => positions.set(id, [...(positions.get(id) ?? []), i + 1]));
 
   const describe =
-    boltsPerCap === 2 ? `caps C1–C${capCount} with a left and a right bolt (C1-L, C1-R…)` : `caps C1–C${capCount}, one bolt each`;
+    boltsPerCap === 2
+      ? `caps C1–C${capCount} with a left and a right bolt (C1-L, C1-R…)`
+      : `caps C1–C${capCount}, one bolt each`;
   const errors: string[] = [];
   for (const [id, at] of positions) {
-    if (!known.has(id)) errors.push(`${id || "(blank)"} is not a bolt on this camshaft (${describe}).`);
-    else if (at.length > 1) errors.push(`${id} appears ${at.length} times in the order (positions ${at.join(", ")}); list it once.`);
+    if (!known.has(id))
+      errors.push(`${id || "(blank)"} is not a bolt on this camshaft (${describe}).`);
+    else if (at.length > 1)
+      errors.push(
+        `${id} appears ${at.length} times in the order (positions ${at.join(", ")}); list it once.`,
+      );
   }
-  for (const bolt of layout) if (!positions.has(bolt.id)) errors.push(`${bolt.id} is missing from the order.`);
+  for (const bolt of layout)
+    if (!positions.has(bolt.id)) errors.push(`${bolt.id} is missing from the order.`);
   return errors;
 }
 
@@ -102,25 +116,38 @@ function stageName(index: number, count: number, fraction: number): string {
 
 /** Why a list of stage fractions is unusable, or null. Shared with the form schema. */
 export function stageFractionsProblem(fractions: readonly number[]): string | null {
-  if (fractions.length < 1 || fractions.length > MAX_STAGES) return `Use between 1 and ${MAX_STAGES} stages.`;
+  if (fractions.length < 1 || fractions.length > MAX_STAGES)
+    return `Use between 1 and ${MAX_STAGES} stages.`;
   if (fractions.some((f) => !Number.isFinite(f) || f <= 0 || f > 1))
     return "Each stage is a share of the final torque above 0 and at most 100%.";
   for (let i = 1; i < fractions.length; i++)
-    if (!(fractions[i]! > fractions[i - 1]!)) return "Each stage must be tighter than the one before.";
+    if (!(fractions[i]! > fractions[i - 1]!))
+      return "Each stage must be tighter than the one before.";
   // A sheet that never reaches the specified torque would let a head be signed off under-tightened.
-  if (Math.abs(fractions[fractions.length - 1]! - 1) > 1e-9) return "The last stage must be the full specified torque (100%).";
+  if (Math.abs(fractions[fractions.length - 1]! - 1) > 1e-9)
+    return "The last stage must be the full specified torque (100%).";
   return null;
 }
 
 function buildStages(finalNm: number, fractions: readonly number[]): TighteningStage[] {
   return fractions.map((fraction, i) => {
     const name = stageName(i, fractions.length, fraction);
-    return { stage: i + 1, name, label: `${name} (${Math.round(fraction * 100)}%)`, fraction, nm: finalNm * fraction };
+    return {
+      stage: i + 1,
+      name,
+      label: `${name} (${Math.round(fraction * 100)}%)`,
+      fraction,
+      nm: finalNm * fraction,
+    };
   });
 }
 
-export function stagesFor(finalNm: number, fractions: readonly number[] = DEFAULT_STAGE_FRACTIONS): TighteningStage[] {
-  if (!Number.isFinite(finalNm) || finalNm <= 0) throw new RangeError(`The final torque must be above 0 N·m, got ${finalNm}.`);
+export function stagesFor(
+  finalNm: number,
+  fractions: readonly number[] = DEFAULT_STAGE_FRACTIONS,
+): TighteningStage[] {
+  if (!Number.isFinite(finalNm) || finalNm <= 0)
+    throw new RangeError(`The final torque must be above 0 N·m, got ${finalNm}.`);
   const problem = stageFractionsProblem(fractions);
   if (problem) throw new RangeError(problem);
   return buildStages(finalNm, fractions.length ? [...fractions.slice(0, -1), 1] : fractions);
@@ -128,12 +155,18 @@ export function stagesFor(finalNm: number, fractions: readonly number[] = DEFAUL
 
 /** Stages given as torques (as some makers print them, e.g. 4 then 10 N·m); the last is the final torque. */
 export function explicitStages(torquesNm: readonly number[]): TighteningStage[] {
-  if (torquesNm.length < 1 || torquesNm.length > MAX_STAGES) throw new RangeError(`Use between 1 and ${MAX_STAGES} stages.`);
-  if (torquesNm.some((t) => !Number.isFinite(t) || t <= 0)) throw new RangeError("Every stage needs a torque above 0 N·m.");
+  if (torquesNm.length < 1 || torquesNm.length > MAX_STAGES)
+    throw new RangeError(`Use between 1 and ${MAX_STAGES} stages.`);
+  if (torquesNm.some((t) => !Number.isFinite(t) || t <= 0))
+    throw new RangeError("Every stage needs a torque above 0 N·m.");
   for (let i = 1; i < torquesNm.length; i++)
-    if (!(torquesNm[i]! > torquesNm[i - 1]!)) throw new RangeError("Each stage must be tighter than the one before.");
+    if (!(torquesNm[i]! > torquesNm[i - 1]!))
+      throw new RangeError("Each stage must be tighter than the one before.");
   const finalNm = torquesNm[torquesNm.length - 1]!;
-  return buildStages(finalNm, torquesNm.map((t) => t / finalNm)).map((s, i) => ({ ...s, nm: torquesNm[i]! }));
+  return buildStages(
+    finalNm,
+    torquesNm.map((t) => t / finalNm),
+  ).map((s, i) => ({ ...s, nm: torquesNm[i]! }));
 }
 
 export interface Tick {
@@ -184,7 +217,12 @@ export function checkTick(
   const expected = nextExpectedTick(order, stages, ticks);
   const stageOf = (n: number) => stages.find((s) => s.stage === n);
   if (!order.includes(attempted.boltId))
-    return { ok: false, reason: "unknown-bolt", expected, message: `${attempted.boltId} is not a bolt on this sheet.` };
+    return {
+      ok: false,
+      reason: "unknown-bolt",
+      expected,
+      message: `${attempted.boltId} is not a bolt on this sheet.`,
+    };
   if (!stageOf(attempted.stage))
     return {
       ok: false,
@@ -193,7 +231,12 @@ export function checkTick(
       message: `This sheet has stages 1 to ${stages.length}; there is no stage ${attempted.stage}.`,
     };
   if (!expected)
-    return { ok: false, reason: "complete", expected: null, message: "Every bolt is already ticked at every stage." };
+    return {
+      ok: false,
+      reason: "complete",
+      expected: null,
+      message: "Every bolt is already ticked at every stage.",
+    };
   if (ticks.some((t) => tickKey(t) === tickKey(attempted)))
     return {
       ok: false,

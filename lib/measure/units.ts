@@ -11,7 +11,9 @@ export type TorqueUnit = (typeof TORQUE_UNITS)[number];
 export type ForceUnit = (typeof FORCE_UNITS)[number];
 
 export const lengthUnitSchema = z.enum(LENGTH_UNITS, { error: "Choose a unit: mm, in or µm." });
-export const torqueUnitSchema = z.enum(TORQUE_UNITS, { error: "Choose a unit: N·m, lbf·ft, lbf·in or kgf·m." });
+export const torqueUnitSchema = z.enum(TORQUE_UNITS, {
+  error: "Choose a unit: N·m, lbf·ft, lbf·in or kgf·m.",
+});
 export const forceUnitSchema = z.enum(FORCE_UNITS, { error: "Choose a unit: N, lbf or kgf." });
 
 /** How each unit is written on screen; "um" is the id because "µ" is awkward in forms and URLs. */
@@ -49,20 +51,26 @@ const N_PER: Record<ForceUnit, number> = {
 
 function finite(value: number, what: string): number {
   // A NaN slipping through a conversion would silently poison every verdict after it.
-  if (!Number.isFinite(value)) throw new RangeError(`${what} must be a finite number, got ${value}.`);
+  if (!Number.isFinite(value))
+    throw new RangeError(`${what} must be a finite number, got ${value}.`);
   return value;
 }
 
-export const toMm = (value: number, unit: LengthUnit): number => finite(value, "Length") * MM_PER[unit];
+export const toMm = (value: number, unit: LengthUnit): number =>
+  finite(value, "Length") * MM_PER[unit];
 export const fromMm = (mm: number, unit: LengthUnit): number => finite(mm, "Length") / MM_PER[unit];
-export const toNm = (value: number, unit: TorqueUnit): number => finite(value, "Torque") * NM_PER[unit];
+export const toNm = (value: number, unit: TorqueUnit): number =>
+  finite(value, "Torque") * NM_PER[unit];
 export const fromNm = (nm: number, unit: TorqueUnit): number => finite(nm, "Torque") / NM_PER[unit];
 export const toN = (value: number, unit: ForceUnit): number => finite(value, "Force") * N_PER[unit];
 export const fromN = (n: number, unit: ForceUnit): number => finite(n, "Force") / N_PER[unit];
 
-export const isLengthUnit = (u: string): u is LengthUnit => (LENGTH_UNITS as readonly string[]).includes(u);
-export const isTorqueUnit = (u: string): u is TorqueUnit => (TORQUE_UNITS as readonly string[]).includes(u);
-export const isForceUnit = (u: string): u is ForceUnit => (FORCE_UNITS as readonly string[]).includes(u);
+export const isLengthUnit = (u: string): u is LengthUnit =>
+  (LENGTH_UNITS as readonly string[]).includes(u);
+export const isTorqueUnit = (u: string): u is TorqueUnit =>
+  (TORQUE_UNITS as readonly string[]).includes(u);
+export const isForceUnit = (u: string): u is ForceUnit =>
+  (FORCE_UNITS as readonly string[]).includes(u);
 
 /** Rounds half away from zero at a decimal step; Math.round alone would send -0.05 to -0.0. */
 export function roundTo(value: number, decimals: number): number {

@@ -2,7 +2,12 @@
 // clearance readings, clearance specifications, the other head measurements, the cap torque sheet
 // and its ticks. Forms send strings, so number fields parse text themselves and say what is wrong.
 import { z } from "zod";
-import { clearanceFromDiameters, PLAUSIBLE_JOURNAL_DIAMETER_MM, STRIP_IDS, type ClearanceSpec } from "@/lib/measure/clearance";
+import {
+  clearanceFromDiameters,
+  PLAUSIBLE_JOURNAL_DIAMETER_MM,
+  STRIP_IDS,
+  type ClearanceSpec,
+} from "@/lib/measure/clearance";
 import {
   MEASUREMENT_KIND_IDS,
   MEASUREMENT_KINDS,
@@ -45,19 +50,26 @@ function numberFromInput(v: unknown): unknown {
   return DECIMAL_TEXT.test(t) ? Number(t.replace(",", ".")) : Number.NaN;
 }
 
-const blankToUndefined = (v: unknown) => (v === null || (typeof v === "string" && v.trim() === "") ? undefined : v);
+const blankToUndefined = (v: unknown) =>
+  v === null || (typeof v === "string" && v.trim() === "") ? undefined : v;
 
 const numberError = (what: string) => (iss: { input?: unknown }) =>
   iss.input === undefined ? `Enter ${what}.` : "Enter a number, like 0.051.";
 
 /** A measured value: a number, zero or more. */
 const measuredNumber = (what: string) =>
-  z.preprocess(numberFromInput, z.number({ error: numberError(what) }).min(0, "A measurement cannot be negative."));
+  z.preprocess(
+    numberFromInput,
+    z.number({ error: numberError(what) }).min(0, "A measurement cannot be negative."),
+  );
 
 const optionalMeasuredNumber = (what: string) =>
   z.preprocess(
     numberFromInput,
-    z.number({ error: numberError(what) }).min(0, "A measurement cannot be negative.").optional(),
+    z
+      .number({ error: numberError(what) })
+      .min(0, "A measurement cannot be negative.")
+      .optional(),
   );
 
 const wholeNumber = (what: string, min: number, max: number, range: string) =>
@@ -73,7 +85,8 @@ const wholeNumber = (what: string, min: number, max: number, range: string) =>
 const uuidField = (what: string) =>
   z.string({ error: `Choose ${what}.` }).uuid(`Unknown ${what.replace(/^(the|a) /, "")}.`);
 
-const optionalUuidField = (what: string) => z.preprocess(blankToUndefined, uuidField(what).optional());
+const optionalUuidField = (what: string) =>
+  z.preprocess(blankToUndefined, uuidField(what).optional());
 
 const fmt = (n: number) => String(Number(n.toPrecision(6)));
 
@@ -83,7 +96,12 @@ const whenValid =
   (payload: z.core.ParsePayload) =>
     !payload.issues.some((i) => !i.path?.length || keys.includes(String(i.path[0])));
 
-function plausibility(kind: MeasurementKind, valueSi: number, typed: number, unit: string): string | null {
+function plausibility(
+  kind: MeasurementKind,
+  valueSi: number,
+  typed: number,
+  unit: string,
+): string | null {
   const info = MEASUREMENT_KINDS[kind];
   const { min, max } = info.plausibleSi;
   if (valueSi >= min && valueSi <= max) return null;
@@ -91,7 +109,9 @@ function plausibility(kind: MeasurementKind, valueSi: number, typed: number, uni
   return `${fmt(typed)} ${UNIT_LABELS[unit as LengthUnit | ForceUnit] ?? unit} is not a plausible ${info.label.toLowerCase()} (${fmt(min)}–${fmt(max)} ${si}): check the value and its unit.`;
 }
 
-export const stripIdSchema = z.enum(STRIP_IDS, { error: "Choose the gauge strip used: narrow or wide." });
+export const stripIdSchema = z.enum(STRIP_IDS, {
+  error: "Choose the gauge strip used: narrow or wide.",
+});
 
 // ——— Journal clearance reading ———
 
@@ -145,7 +165,8 @@ export const journalClearanceReadingSchema = z
         ctx.addIssue({
           code: "custom",
           path: ["journalValue"],
-          message: "The journal cannot be larger than its bore: re-measure both, on the same journal.",
+          message:
+            "The journal cannot be larger than its bore: re-measure both, on the same journal.",
         });
         return;
       }
@@ -168,7 +189,10 @@ export type JournalClearanceReadingForm = z.input<typeof journalClearanceReading
 export function clearanceMmOf(reading: JournalClearanceReading): number {
   return reading.method === "strip"
     ? toMm(reading.value, reading.unit)
-    : clearanceFromDiameters(toMm(reading.boreValue, reading.unit), toMm(reading.journalValue, reading.unit));
+    : clearanceFromDiameters(
+        toMm(reading.boreValue, reading.unit),
+        toMm(reading.journalValue, reading.unit),
+      );
 }
 
 // ——— Clearance specification ———
@@ -189,12 +213,17 @@ export const clearanceSpecSchema = z
         if (problem) ctx.addIssue({ code: "custom", path: [key], message: problem });
       }
       if (s.min > s.max)
-        ctx.addIssue({ code: "custom", path: ["max"], message: "The maximum is below the minimum: check the two values." });
+        ctx.addIssue({
+          code: "custom",
+          path: ["max"],
+          message: "The maximum is below the minimum: check the two values.",
+        });
       if (s.serviceLimit !== undefined && s.serviceLimit < s.max)
         ctx.addIssue({
           code: "custom",
           path: ["serviceLimit"],
-          message: "The service limit must be at or above the maximum: it is the wear at which the part is replaced.",
+          message:
+            "The service limit must be at or above the maximum: it is the wear at which the part is replaced.",
         });
     },
     { when: whenValid("min", "max", "serviceLimit", "unit") },
@@ -225,7 +254,10 @@ export const measurementSchema = z
     /** The unit of the value and of the specification. */
     unit: measurementUnitSchema,
     spec: z
-      .object({ min: optionalMeasuredNumber("the minimum"), max: optionalMeasuredNumber("the maximum") })
+      .object({
+        min: optionalMeasuredNumber("the minimum"),
+        max: optionalMeasuredNumber("the maximum"),
+      })
       // A form sends both ends blank for "no specification": that is no spec, not an empty one.
       .transform((s) => (s.min === undefined && s.max === undefined ? undefined : s))
       .optional(),
@@ -237,17 +269,25 @@ export const measurementSchema = z
   .superRefine(
     (m, ctx) => {
       const info = MEASUREMENT_KINDS[m.kind];
-      const issue = (path: string, message: string) => ctx.addIssue({ code: "custom", path: [path], message });
+      const issue = (path: string, message: string) =>
+        ctx.addIssue({ code: "custom", path: [path], message });
 
-      if (info.scope === "seat" && !m.seatId) issue("seatId", `Choose the seat this ${info.label.toLowerCase()} belongs to.`);
-      if (info.scope !== "seat" && m.seatId) issue("seatId", `${info.label} is not recorded per seat.`);
+      if (info.scope === "seat" && !m.seatId)
+        issue("seatId", `Choose the seat this ${info.label.toLowerCase()} belongs to.`);
+      if (info.scope !== "seat" && m.seatId)
+        issue("seatId", `${info.label} is not recorded per seat.`);
       if (info.scope === "journal" && !m.journalId) issue("journalId", "Choose the journal.");
-      if (info.scope !== "journal" && m.journalId) issue("journalId", `${info.label} is not recorded per journal.`);
+      if (info.scope !== "journal" && m.journalId)
+        issue("journalId", `${info.label} is not recorded per journal.`);
 
       // The rocking method reads larger than the direct one, so a value without its method cannot be judged.
       if (m.kind === "stem_guide_clearance" && !m.method)
-        issue("method", "Choose how it was measured: direct (bore gauge minus stem) or rocking (dial indicator).");
-      if (m.kind !== "stem_guide_clearance" && m.method) issue("method", `${info.label} has no method to choose.`);
+        issue(
+          "method",
+          "Choose how it was measured: direct (bore gauge minus stem) or rocking (dial indicator).",
+        );
+      if (m.kind !== "stem_guide_clearance" && m.method)
+        issue("method", `${info.label} has no method to choose.`);
 
       const toSi = (v: number): number | null =>
         info.quantity === "length"
@@ -277,7 +317,11 @@ export const measurementSchema = z
           if (p) ctx.addIssue({ code: "custom", path: ["spec", key], message: p });
         }
         if (m.spec.min !== undefined && m.spec.max !== undefined && m.spec.min > m.spec.max)
-          ctx.addIssue({ code: "custom", path: ["spec", "max"], message: "The maximum is below the minimum: check the two values." });
+          ctx.addIssue({
+            code: "custom",
+            path: ["spec", "max"],
+            message: "The maximum is below the minimum: check the two values.",
+          });
       }
     },
     { when: whenValid("kind", "seatId", "journalId", "value", "unit", "spec", "method") },
@@ -287,8 +331,13 @@ export type MeasurementInput = z.infer<typeof measurementSchema>;
 export type MeasurementForm = z.input<typeof measurementSchema>;
 
 /** A measurement's value, and its spec ends, in SI (mm or N) for judging and storing. */
-export function measurementSi(m: MeasurementInput): { value: number; min: number | null; max: number | null } {
-  const conv = (v: number) => (isLengthUnit(m.unit) ? toMm(v, m.unit) : toN(v, m.unit as ForceUnit));
+export function measurementSi(m: MeasurementInput): {
+  value: number;
+  min: number | null;
+  max: number | null;
+} {
+  const conv = (v: number) =>
+    isLengthUnit(m.unit) ? toMm(v, m.unit) : toN(v, m.unit as ForceUnit);
   return {
     value: conv(m.value),
     min: m.spec?.min === undefined ? null : conv(m.spec.min),
@@ -320,7 +369,12 @@ function fractionsFromInput(v: unknown): unknown {
 export const torqueSheetSetupSchema = z
   .object({
     camshaftId: uuidField("the camshaft"),
-    capCount: wholeNumber("the number of caps", 1, MAX_CAPS, `A camshaft has between 1 and ${MAX_CAPS} caps.`),
+    capCount: wholeNumber(
+      "the number of caps",
+      1,
+      MAX_CAPS,
+      `A camshaft has between 1 and ${MAX_CAPS} caps.`,
+    ),
     boltsPerCap: z.preprocess(
       numberFromInput,
       z.union([z.literal(1), z.literal(2)], { error: "A cap has 1 or 2 bolts." }),
@@ -334,14 +388,21 @@ export const torqueSheetSetupSchema = z
     finalTorque: z.object({
       value: z.preprocess(
         numberFromInput,
-        z.number({ error: numberError("the final torque") }).positive("The final torque must be above zero."),
+        z
+          .number({ error: numberError("the final torque") })
+          .positive("The final torque must be above zero."),
       ),
       unit: torqueUnitSchema,
     }),
     stageFractions: z.preprocess(
       fractionsFromInput,
       z
-        .array(z.preprocess(numberFromInput, z.number({ error: "Each stage is a number, like 0.3 for 30%." })))
+        .array(
+          z.preprocess(
+            numberFromInput,
+            z.number({ error: "Each stage is a number, like 0.3 for 30%." }),
+          ),
+        )
         .default([...DEFAULT_STAGE_FRACTIONS]),
     ),
   })
@@ -380,7 +441,10 @@ export const tickSchema = z.object({
     z
       .string({ error: "Choose the bolt." })
       .regex(BOLT_ID, "Unknown bolt: bolts are named like C3-L, C3-R or C3.")
-      .refine((id) => Number(BOLT_ID.exec(id)?.[1]) <= MAX_CAPS, `A camshaft has at most ${MAX_CAPS} caps.`),
+      .refine(
+        (id) => Number(BOLT_ID.exec(id)?.[1]) <= MAX_CAPS,
+        `A camshaft has at most ${MAX_CAPS} caps.`,
+      ),
   ),
 });
 

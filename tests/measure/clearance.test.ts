@@ -55,15 +55,17 @@ describe("gauge strips", () => {
   it("points a narrow-strip reading above its range to the wide strip", () => {
     const r = stripCheck(0.09, "narrow");
     expect(r).toMatchObject({ ok: false, reason: "above-range", suggestedStripId: "wide" });
-    if (!r.ok) expect(r.message).toContain("use the next wider strip (the wide strip, 0.051–0.152 mm)");
+    if (!r.ok)
+      expect(r.message).toContain("use the next wider strip (the wide strip, 0.051–0.152 mm)");
   });
 
   it("points a wide-strip reading below its range to the narrow strip", () => {
     const r = stripCheck(0.03, "wide");
     expect(r).toMatchObject({ ok: false, reason: "below-range", suggestedStripId: "narrow" });
-    if (!r.ok) expect(r.message).toBe(
-      "0.030 mm is below the wide strip's range (0.051–0.152 mm): use the next narrower strip (the narrow strip, 0.025–0.076 mm).",
-    );
+    if (!r.ok)
+      expect(r.message).toBe(
+        "0.030 mm is below the wide strip's range (0.051–0.152 mm): use the next narrower strip (the narrow strip, 0.025–0.076 mm).",
+      );
   });
 
   it("flags a reading below the narrow strip without pointing to a strip that cannot read it", () => {
@@ -73,7 +75,11 @@ describe("gauge strips", () => {
   });
 
   it("does not suggest a strip that would also be out of range", () => {
-    expect(stripCheck(0.2, "narrow")).toMatchObject({ ok: false, reason: "above-range", suggestedStripId: null });
+    expect(stripCheck(0.2, "narrow")).toMatchObject({
+      ok: false,
+      reason: "above-range",
+      suggestedStripId: null,
+    });
   });
 
   it("refuses unknown strips and NaN", () => {
@@ -83,7 +89,8 @@ describe("gauge strips", () => {
 
   it("states the usage rules (manufacturers' service manuals)", () => {
     const text = GAUGE_RULES.join(" ").toLowerCase();
-    for (const word of ["dry", "oil hole", "torque", "never turn", "widest", "every trace"]) expect(text).toContain(word);
+    for (const word of ["dry", "oil hole", "torque", "never turn", "widest", "every trace"])
+      expect(text).toContain(word);
   });
 });
 
@@ -98,7 +105,9 @@ describe("clearance from diameters", () => {
 
   it("gives zero for equal diameters and refuses a journal larger than its bore", () => {
     expect(clearanceFromDiameters(26, 26)).toBe(0);
-    expect(() => clearanceFromDiameters(26.0, 26.01)).toThrow(/journal \(26\.010 mm\) is larger than its bore \(26\.000 mm\)/);
+    expect(() => clearanceFromDiameters(26.0, 26.01)).toThrow(
+      /journal \(26\.010 mm\) is larger than its bore \(26\.000 mm\)/,
+    );
   });
 
   it("refuses non-positive or non-numeric diameters", () => {
@@ -134,13 +143,19 @@ describe("judgeClearance", () => {
   });
 
   it("compares a spec and a reading both typed in inches as equal at the boundary", () => {
-    const inchSpec = { minMm: toMm(0.0015, "in"), maxMm: toMm(0.003, "in"), serviceLimitMm: toMm(0.0045, "in") };
+    const inchSpec = {
+      minMm: toMm(0.0015, "in"),
+      maxMm: toMm(0.003, "in"),
+      serviceLimitMm: toMm(0.0045, "in"),
+    };
     expect(judgeClearance(toMm(0.003, "in"), inchSpec)).toBe("within_spec");
     expect(judgeClearance(toMm(0.0045, "in"), inchSpec)).toBe("beyond_limit");
   });
 
   it("refuses a specification that contradicts itself", () => {
     expect(() => judgeClearance(0.05, { minMm: 0.08, maxMm: 0.04 })).toThrow(/minimum/);
-    expect(() => judgeClearance(0.05, { minMm: 0.04, maxMm: 0.08, serviceLimitMm: 0.06 })).toThrow(/service limit/);
+    expect(() => judgeClearance(0.05, { minMm: 0.04, maxMm: 0.08, serviceLimitMm: 0.06 })).toThrow(
+      /service limit/,
+    );
   });
 });
