@@ -86,6 +86,7 @@ export function BenchScreen({ initial, initialStage }: { initial: SeatReport; in
   const sessionRef = useRef<string | null>(null);
   const cueShown = useRef<{ settled: boolean; notSettling: boolean }>({ settled: false, notSettling: false });
   const outboxRef = useRef<Outbox | null>(null);
+  const stopRef = useRef<(() => Promise<void>) | null>(null);
   const strokeCounter = useRef(0);
 
   const outbox = useCallback(() => (outboxRef.current ??= new Outbox()), []);
@@ -100,6 +101,11 @@ export function BenchScreen({ initial, initialStage }: { initial: SeatReport; in
     }
     setPendingCount(report.pending);
     if (report.refused.length) setRefusals((r) => [...r, ...report.refused.map((x) => x.message)]);
+    // The server refused this phone's session (seat busy, signed off, not yours): stop listening
+    // rather than gather strokes that will never count.
+    if (report.refused.some((x) => x.op.kind === "session" && x.op.body.sessionId === sessionRef.current)) {
+      void stopRef.current?.();
+    }
     setSyncNote(
       report.stoppedBy === "offline"
         ? "No network: strokes are kept on this phone and sent when it returns."
@@ -217,6 +223,9 @@ export function BenchScreen({ initial, initialStage }: { initial: SeatReport; in
   const lastFlags = last?.flags ?? [];
 
   const stopListening = listener.stop;
+  useEffect(() => {
+    stopRef.current = stopListening;
+  }, [stopListening]);
   // The settled cue: full screen, vibration, and a tone once listening has stopped (so the
   // microphone does not hear it).
   useEffect(() => {

@@ -8,7 +8,9 @@ import {
   heads,
   jobs,
   journals,
+  lappingSessions,
   seats,
+  strokes,
   users,
   valves,
   type Head,
@@ -108,7 +110,7 @@ export interface JobDetail {
   heads: Array<
     Head & {
       camshafts: Array<{ id: string; position: number; label: string; journalCount: number }>;
-      seats: Array<Seat & { valve: Pick<Valve, "id" | "tag" | "partNumber" | "serial"> | null }>;
+      seats: Array<Seat & { valve: Pick<Valve, "id" | "tag" | "partNumber" | "serial" | "lappedInSeatId"> | null }>;
     }
   >;
 }
@@ -139,7 +141,10 @@ export async function getJob(db: Db, shopId: string, jobId: string): Promise<Job
       .groupBy(camshafts.id)
       .orderBy(asc(camshafts.position));
     const seatRows = await db
-      .select({ seat: seats, valve: { id: valves.id, tag: valves.tag, partNumber: valves.partNumber, serial: valves.serial } })
+      .select({
+        seat: seats,
+        valve: { id: valves.id, tag: valves.tag, partNumber: valves.partNumber, serial: valves.serial, lappedInSeatId: valves.lappedInSeatId },
+      })
       .from(seats)
       .leftJoin(valves, eq(valves.seatId, seats.id))
       .where(eq(seats.headId, h.id))
@@ -163,4 +168,26 @@ export async function getJob(db: Db, shopId: string, jobId: string): Promise<Job
     technician: row.job.assignedTechnicianId && row.techName ? { id: row.job.assignedTechnicianId, name: row.techName } : null,
     heads: result,
   };
+}
+
+/** Each seat's latest stage's onset contrasts in stroke order (fine once fine has strokes). */
+export async function seatCurves(db: Db, headId: string): Promise<Map<string, number[]>> {
+  const rows = await db
+    .select({
+      seatId: lappingSessions.seatId,
+      stage: lappingSessions.stage,
+      contrastDb: strokes.contrastDb,
+    })
+    .from(strokes)
+    .innerJoin(lappingSessions, eq(lappingSessions.id, strokes.sessionId))
+    .innerJoin(seats, eq(seats.id, lappingSessions.seatId))
+    .where(eq(seats.headId, headId))
+    .orderBy(asc(lappingSessions.startedAt), asc(lappingSessions.id), asc(strokes.startS), asc(strokes.index));
+  const bySeat = new Map<string, { coarse: number[]; fine: number[] }>();
+  for (const r of rows) {
+    const entry = bySeat.get(r.seatId) ?? { coarse: [], fine: [] };
+    entry[r.stage].push(r.contrastDb);
+    bySeat.set(r.seatId, entry);
+  }
+  return new Map([...bySeat].map(([id, c]) => [id, c.fine.length ? c.fine : c.coarse]));
 }

@@ -183,10 +183,9 @@ describe("API and pages answer for themselves", () => {
     const { jobs } = (await res.json()) as { jobs: Array<{ id: string; seatCount: number }> };
     const v6 = jobs.find((j) => j.seatCount === 24)!;
     await page.goto(`${baseURL}/jobs/${v6.id}`);
-    const seats = page.getByTestId("seat-list");
-    await seats.first().waitFor();
-    expect(await page.locator("[data-testid=seat-list] li li").count()).toBe(24);
-    await page.getByText("bank B", { exact: false }).first().waitFor();
+    await page.getByTestId("seat-map").waitFor();
+    expect(await page.locator('[data-testid=seat-map] a[href^="/bench/"]').count()).toBe(24);
+    await page.getByText("Bank B", { exact: false }).first().waitFor();
     await context.close();
   });
 });

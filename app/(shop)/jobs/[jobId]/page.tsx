@@ -3,11 +3,16 @@ import Link from "next/link";
 import { notFound } from "next/navigation";
 import { z } from "zod";
 import { getDb } from "@/db/client";
-import { getJob } from "@/db/queries/jobs";
-import { headSummary } from "@/db/queries/jobs";
+import { getJob, headSummary, seatCurves } from "@/db/queries/jobs";
+import { SeatMap } from "@/components/heads/seat-map";
+import { JobStatusActions } from "@/components/jobs/job-status-actions";
+import { ValveList, type ValveRow } from "@/components/jobs/valve-list";
+import { Cautions } from "@/components/sheets/cautions";
 import { requireActor } from "@/lib/auth/guard";
-import { bankOf, seatCode } from "@/lib/heads/layout";
-import { JOB_STATUS_LABELS, JOB_STATUS_TONES, SEAT_STATE_LABELS, SEAT_STATE_TONES } from "@/lib/labels";
+import { can } from "@/lib/auth/roles";
+import { seatCode } from "@/lib/heads/layout";
+import { JOB_STATUS_LABELS, JOB_STATUS_TONES } from "@/lib/labels";
+import { allowedMoves, isClosed } from "@/lib/jobs/lifecycle";
 
 export const metadata: Metadata = { title: "Job" };
 
@@ -15,8 +20,12 @@ export default async function JobPage({ params }: PageProps<"/jobs/[jobId]">) {
   const actor = await requireActor("jobs:read");
   const { jobId } = await params;
   if (!z.string().uuid().safeParse(jobId).success) notFound();
-  const job = await getJob(await getDb(), actor.shopId, jobId);
+  const db = await getDb();
+  const job = await getJob(db, actor.shopId, jobId);
   if (!job) notFound();
+  const closed = isClosed(job.status);
+  const curves = new Map<string, number[]>();
+  for (const h of job.heads) for (const [k, v] of await seatCurves(db, h.id)) curves.set(k, v);
 
   return (
     <article className="flex flex-col gap-6">
@@ -28,9 +37,14 @@ export default async function JobPage({ params }: PageProps<"/jobs/[jobId]">) {
       <header className="flex flex-col gap-2 rounded-xl border border-stone-300 bg-white p-4 sm:p-6">
         <div className="flex flex-wrap items-center gap-3">
           <h1 className="figure text-3xl font-bold">{job.number}</h1>
-          <span className={`rounded-full px-3 py-1 text-sm font-semibold ${JOB_STATUS_TONES[job.status]}`}>
+          <span className={`rounded-full px-3 py-1 text-sm font-semibold ${JOB_STATUS_TONES[job.status]}`} data-testid="job-status">
             {JOB_STATUS_LABELS[job.status]}
           </span>
+          {can(actor.role, "jobs:manage") && !closed ? (
+            <Link href={`/jobs/${job.id}/edit`} className="ml-auto inline-flex min-h-12 items-center rounded-lg border border-stone-500 px-4 font-semibold">
+              Edit job
+            </Link>
+          ) : null}
         </div>
         <p className="text-lg font-semibold">{job.customer.name}</p>
         <p className="text-stone-700">{job.engineDescription}</p>
@@ -49,67 +63,85 @@ export default async function JobPage({ params }: PageProps<"/jobs/[jobId]">) {
           </div>
         </dl>
         {job.notes ? <p className="mt-2 rounded-lg bg-amber-50 p-3 text-sm">{job.notes}</p> : null}
+        <JobStatusActions jobId={job.id} moves={allowedMoves(job.status, actor.role).map((m) => ({ to: m.to, label: m.label }))} />
       </header>
 
       {job.heads.length === 0 ? (
-        <p className="rounded-xl border border-dashed border-stone-400 p-6 text-center text-stone-600">
-          No head has been recorded for this job yet.
-        </p>
+        <p className="rounded-xl border border-dashed border-stone-400 p-6 text-center text-stone-600">No head has been recorded for this job yet.</p>
       ) : (
         job.heads.map((head) => {
-          const cylinders = [...new Set(head.seats.map((s) => s.cylinder))];
+          const valves: ValveRow[] = head.seats.flatMap((s) =>
+            s.valve
+              ? [
+                  {
+                    valveId: s.valve.id,
+                    tag: s.valve.tag,
+                    partNumber: s.valve.partNumber,
+                    serial: s.valve.serial,
+                    seatId: s.id,
+                    seatCode: seatCode(s),
+                    kind: s.kind,
+                    lappedInCode: s.valve.lappedInSeatId ? seatCode(head.seats.find((x) => x.id === s.valve!.lappedInSeatId) ?? s) : null,
+                  },
+                ]
+              : [],
+          );
           return (
-            <section key={head.id} aria-labelledby={`head-${head.id}`} className="flex flex-col gap-3">
+            <section key={head.id} aria-labelledby={`head-${head.id}`} className="flex flex-col gap-4">
               <div>
                 <h2 id={`head-${head.id}`} className="text-xl font-bold">
                   {head.label}
                 </h2>
                 <p className="text-stone-600">
                   {headSummary(head)} · numbered from the timing end
-                  {head.camshafts.length
-                    ? ` · ${head.camshafts.map((c) => `${c.label} (${c.journalCount} journals)`).join(", ")}`
-                    : ""}
+                  {head.camshafts.length ? ` · ${head.camshafts.map((c) => `${c.label} (${c.journalCount} journals)`).join(", ")}` : ""}
                 </p>
               </div>
-              <ol className="grid grid-cols-1 gap-3 sm:grid-cols-2 lg:grid-cols-3" data-testid="seat-list">
-                {cylinders.map((cyl) => (
-                  <li key={cyl} className="rounded-xl border border-stone-300 bg-white p-3">
-                    <h3 className="mb-2 font-semibold">
-                      Cylinder <span className="figure">{cyl}</span>
-                      {bankOf(head, cyl) ? <span className="text-stone-500"> · bank {bankOf(head, cyl)}</span> : null}
-                    </h3>
-                    <ul className="flex flex-col gap-2">
-                      {head.seats
-                        .filter((s) => s.cylinder === cyl)
-                        .map((s) => (
-                          <li key={s.id}>
-                            <Link
-                              href={`/bench/${s.id}`}
-                              className={`flex min-h-14 items-center justify-between gap-2 rounded-lg px-3 py-2 ring-1 ${SEAT_STATE_TONES[s.state]}`}
-                            >
-                            <span>
-                              <span className="figure font-bold">{seatCode(s)}</span>{" "}
-                              <span className="text-sm">
-                                {s.kind === "intake" ? "Intake" : "Exhaust"} {s.position}
-                              </span>
-                            </span>
-                            <span className="text-right text-sm">
-                              <span className="block font-semibold">{SEAT_STATE_LABELS[s.state]}</span>
-                              <span className="figure block text-xs opacity-80">
-                                {s.valve ? `valve ${s.valve.tag}${s.valve.serial ? ` · ${s.valve.serial}` : ""}` : "no valve"}
-                              </span>
-                            </span>
-                            </Link>
-                          </li>
-                        ))}
-                    </ul>
-                  </li>
+              <nav aria-label="Sheets" className="grid grid-cols-2 gap-2 sm:grid-cols-4">
+                {[
+                  { href: `/jobs/${job.id}/clearance`, label: "Journal clearance" },
+                  { href: `/jobs/${job.id}/torque`, label: "Cap torque" },
+                  { href: `/jobs/${job.id}/measurements`, label: "Measurements" },
+                  { href: `/api/heads/${head.id}/sheets`, label: "Export CSV" },
+                ].map((l) => (
+                  <a key={l.href} href={l.href} className="flex min-h-14 items-center justify-center rounded-xl border-2 border-ink bg-white px-3 text-center font-semibold">
+                    {l.label}
+                  </a>
                 ))}
-              </ol>
+              </nav>
+              <div className="rounded-xl border border-stone-300 bg-white p-3" data-testid="seat-map">
+                <h3 className="mb-2 font-semibold">Seat map — tap a seat to lap it</h3>
+                <SeatMap
+                  label={`Seat map of the ${head.label.toLowerCase()}`}
+                  arrangement={head.arrangement}
+                  cylinderCount={head.cylinderCount}
+                  intakeValvesPerCylinder={head.intakeValvesPerCylinder}
+                  exhaustValvesPerCylinder={head.exhaustValvesPerCylinder}
+                  camshaftCount={head.camshaftCount}
+                  seats={head.seats.map((s) => ({
+                    id: s.id,
+                    cylinder: s.cylinder,
+                    kind: s.kind,
+                    position: s.position,
+                    state: s.state,
+                    contrastsDb: curves.get(s.id) ?? [],
+                    valveTag: s.valve?.tag ?? null,
+                  }))}
+                />
+              </div>
+              <details className="rounded-xl border border-stone-300 bg-white p-3">
+                <summary className="min-h-10 cursor-pointer font-semibold">Valves and their seats</summary>
+                <p className="my-2 text-sm text-stone-600">
+                  Each valve goes back into the seat it was lapped in (service manuals). Before lapping, valves may be swapped; every move is
+                  recorded.
+                </p>
+                <ValveList jobId={job.id} valves={valves} seats={head.seats.map((s) => ({ id: s.id, code: seatCode(s), kind: s.kind }))} closed={closed} />
+              </details>
             </section>
           );
         })
       )}
+      <Cautions />
     </article>
   );
 }
