@@ -109,7 +109,7 @@ export default async function JobPage({ params }: PageProps<"/jobs/[jobId]">) {
                   </a>
                 ))}
               </nav>
-              <div className="rounded-xl border border-stone-300 bg-white p-3" data-testid="seat-map">
+              <div className="rounded-xl border border-stone-300 bg-white p-3">
                 <h3 className="mb-2 font-semibold">Seat map — tap a seat to lap it</h3>
                 <SeatMap
                   label={`Seat map of the ${head.label.toLowerCase()}`}
