@@ -11,9 +11,10 @@ const BOARD: NavItem = { href: "/jobs", label: "Jobs board" };
 const MY_WORK: NavItem = { href: "/jobs?mine=1", label: "My work" };
 const AUDIT: NavItem = { href: "/jobs?status=awaiting_audit", label: "Awaiting audit" };
 const PEOPLE: NavItem = { href: "/admin/people", label: "People" };
+const SPECS: NavItem = { href: "/specs", label: "Specifications" };
 
 export const NAVIGATION: Record<UserRole, readonly NavItem[]> = {
   technician: [BOARD, MY_WORK],
-  supervisor: [BOARD, AUDIT, MY_WORK],
-  admin: [BOARD, AUDIT, PEOPLE],
+  supervisor: [BOARD, AUDIT, MY_WORK, SPECS],
+  admin: [BOARD, AUDIT, SPECS, PEOPLE],
 };

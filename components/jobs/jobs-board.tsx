@@ -93,7 +93,7 @@ const columns = [
   }),
 ];
 
-export function JobsBoard({ actorId }: { actorId: string }) {
+export function JobsBoard({ actorId, canBookIn = false }: { actorId: string; canBookIn?: boolean }) {
   const router = useRouter();
   const pathname = usePathname();
   const params = useSearchParams();
@@ -152,6 +152,11 @@ export function JobsBoard({ actorId }: { actorId: string }) {
           </h1>
           <p className="text-stone-600">Every head in the shop, soonest promised first.</p>
         </div>
+        {canBookIn ? (
+          <Link href="/jobs/new" className="inline-flex min-h-12 items-center rounded-lg bg-ink px-5 font-semibold text-white">
+            Book in a job
+          </Link>
+        ) : null}
       </div>
 
       <div className="grid grid-cols-1 gap-3 rounded-xl border border-stone-300 bg-white p-3 sm:grid-cols-3">

@@ -8,6 +8,9 @@ import { SeatMap } from "@/components/heads/seat-map";
 import { JobStatusActions } from "@/components/jobs/job-status-actions";
 import { ValveList, type ValveRow } from "@/components/jobs/valve-list";
 import { Cautions } from "@/components/sheets/cautions";
+import { SpecFigureForm } from "@/components/specs/spec-forms";
+import { effectiveSpecs } from "@/lib/specs/effective";
+import { SPEC_KEYS } from "@/lib/specs/keys";
 import { requireActor } from "@/lib/auth/guard";
 import { can } from "@/lib/auth/roles";
 import { seatCode } from "@/lib/heads/layout";
@@ -24,6 +27,11 @@ export default async function JobPage({ params }: PageProps<"/jobs/[jobId]">) {
   const job = await getJob(db, actor.shopId, jobId);
   if (!job) notFound();
   const closed = isClosed(job.status);
+  const specs = [...(await effectiveSpecs(db, job.id)).values()];
+  const range = (v: { min: number | null; max: number | null; limit: number | null; nominal: number | null }) =>
+    [v.nominal !== null ? `${v.nominal}` : null, v.min !== null || v.max !== null ? `${v.min ?? "…"}–${v.max ?? "…"}` : null, v.limit !== null ? `limit ${v.limit}` : null]
+      .filter(Boolean)
+      .join(", ");
   const curves = new Map<string, number[]>();
   for (const h of job.heads) for (const [k, v] of await seatCurves(db, h.id)) curves.set(k, v);
 
@@ -141,6 +149,34 @@ export default async function JobPage({ params }: PageProps<"/jobs/[jobId]">) {
           );
         })
       )}
+      <section aria-labelledby="job-specs" className="rounded-xl border border-stone-300 bg-white p-4">
+        <h2 id="job-specs" className="mb-2 text-lg font-semibold">
+          Specifications for this job
+        </h2>
+        {specs.length === 0 ? (
+          <p className="text-stone-600">No figures on file: choose an engine from the specifications library when editing the job, or enter figures with each reading.</p>
+        ) : (
+          <ul className="grid grid-cols-1 gap-1 text-sm sm:grid-cols-2" data-testid="job-specs">
+            {specs.map((sp) => (
+              <li key={sp.key} className="flex justify-between gap-2 border-b border-stone-100 py-1">
+                <span>{SPEC_KEYS[sp.key]?.label ?? sp.key}</span>
+                <span className="figure text-right">
+                  {range(sp)} {sp.unit}
+                  <span className={`ml-2 rounded px-1.5 text-xs ${sp.source === "job_override" ? "bg-amber-200" : "bg-stone-100"}`}>
+                    {sp.source === "job_override" ? `override: ${sp.note ?? ""}` : "library"}
+                  </span>
+                </span>
+              </li>
+            ))}
+          </ul>
+        )}
+        {can(actor.role, "specs:manage") && !closed ? (
+          <details className="mt-2">
+            <summary className="min-h-10 cursor-pointer font-semibold">Override a figure on this job</summary>
+            <SpecFigureForm target={{ kind: "job", jobId: job.id }} />
+          </details>
+        ) : null}
+      </section>
       <Cautions />
     </article>
   );
