@@ -33,12 +33,15 @@ export function JobForm({
     handleSubmit,
     setError,
     watch,
+    getValues,
     formState: { errors },
   } = useForm<JobFormInput, unknown, JobFormValues>({ resolver: zodResolver(jobFormSchema), defaultValues: defaults });
 
-  const onSubmit = handleSubmit((values) =>
+  // The server parses the same raw form values with the same schema, so it gets what was typed.
+  const onSubmit = handleSubmit(() =>
     startTransition(async () => {
-      const state = jobId ? await updateJob(jobId, values) : await createJob(values);
+      const raw = getValues();
+      const state = jobId ? await updateJob(jobId, raw) : await createJob(raw);
       for (const [key, msgs] of Object.entries(state.fieldErrors)) setError(key as FieldPath<JobFormInput>, { message: msgs[0] });
       setMessage(state.message ? { ok: state.ok, text: state.message } : null);
       if (state.ok && state.jobId) router.push(`/jobs/${state.jobId}`);
