@@ -146,5 +146,13 @@ describe("bench screen with a fake microphone", () => {
     await error.waitFor({ timeout: 15_000 });
     expect(await error.innerText()).toMatch(/microphone/i);
     expect(await page.getByTestId("start-listening").innerText()).toMatch(/try again/i);
+
+    // Turned sideways on the bench: still no sideways scrolling, seat and button on screen.
+    await page.setViewportSize({ width: 844, height: 390 });
+    expect(await page.evaluate(() => document.documentElement.scrollWidth - window.innerWidth)).toBeLessThanOrEqual(0);
+    expect(await page.getByTestId("seat-heading").isVisible()).toBe(true);
+    const button = await page.getByTestId("start-listening").boundingBox();
+    expect(button!.height).toBeGreaterThanOrEqual(48); // a gloved thumb needs a large target (common practice: ≥ 48 px)
+    await page.screenshot({ path: path.join(ARTIFACTS, "bench-landscape.png") });
   });
 });
