@@ -5,12 +5,20 @@ import { revalidatePath } from "next/cache";
 import { getDb } from "@/db/client";
 import { customers, heads, jobs, lappingSessions, measurements, seats, shops, strokes, users, torqueSheets } from "@/db/schema";
 import { requireActor } from "@/lib/auth/guard";
+import { assertCanWorkOn } from "@/lib/auth/job-access";
 import { recordAudit } from "@/lib/audit";
 import { BadRequestError, ConflictError, NotFoundError } from "@/lib/errors";
 import { createHeadWithSeats } from "@/lib/heads/create";
 import { canMove, isClosed } from "@/lib/jobs/lifecycle";
 import { jobFormSchema, jobStatusChangeSchema, type JobFormValues } from "@/lib/validations/jobs";
-import { actionFailure, type ActionState } from "./state";
+import { actionFailure as baseFailure, type ActionState } from "./state";
+
+/** The shared failure state, keeping the field messages a domain error carries for the form. */
+function actionFailure(err: unknown): ActionState {
+  const state = baseFailure(err);
+  return err instanceof BadRequestError && Object.keys(err.fieldErrors).length ? { ...state, fieldErrors: err.fieldErrors } : state;
+}
+
 
 export type JobActionState = ActionState & { jobId?: string };
 
@@ -174,6 +182,8 @@ export async function changeJobStatus(_prev: ActionState, formData: FormData): P
     await db.transaction(async (tx) => {
       const [job] = await tx.select().from(jobs).where(and(eq(jobs.id, jobId), eq(jobs.shopId, actor.shopId))).for("update");
       if (!job) throw new NotFoundError("That job does not exist in your shop.");
+      // A technician moves only the jobs they may work on (assigned to them, or to nobody).
+      if (actor.role === "technician") assertCanWorkOn(actor, job);
       if (!canMove(job.status, to, actor.role)) {
         throw new ConflictError(`A ${actor.role} cannot move job ${job.number} from ${job.status.replace("_", " ")} to ${to.replace("_", " ")}.`);
       }

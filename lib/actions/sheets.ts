@@ -21,7 +21,15 @@ import {
   tickSchema,
   torqueSheetSetupSchema,
 } from "@/lib/validations/measurements";
-import { actionFailure, type ActionState } from "./state";
+import { BadRequestError } from "@/lib/errors";
+import { actionFailure as baseFailure, type ActionState } from "./state";
+
+/** The shared failure state, keeping the field messages a domain error carries for the form. */
+function actionFailure(err: unknown): ActionState {
+  const state = baseFailure(err);
+  return err instanceof BadRequestError && Object.keys(err.fieldErrors).length ? { ...state, fieldErrors: err.fieldErrors } : state;
+}
+
 
 const text = (f: FormData, k: string) => {
   const v = f.get(k);
@@ -52,6 +60,7 @@ export async function saveClearanceReading(_prev: ActionState, f: FormData): Pro
       : null;
     const clearanceMm = clearanceMmOf(reading);
     const result = await recordJournalClearance(await getDb(), actor, {
+      jobId,
       journalId: reading.journalId,
       clearanceMm,
       method: reading.method,
@@ -82,6 +91,7 @@ export async function saveTorqueSetup(_prev: ActionState, f: FormData): Promise<
       stageFractions: text(f, "stageFractions"),
     });
     await setUpTorqueSheet(await getDb(), actor, {
+      jobId,
       camshaftId: setup.camshaftId,
       capCount: setup.capCount,
       boltsPerCap: setup.boltsPerCap,
@@ -100,7 +110,7 @@ export async function saveTick(_prev: ActionState, f: FormData): Promise<ActionS
     const actor = await requireActor("jobs:work");
     const jobId = jobIdSchema.parse(text(f, "jobId"));
     const tick = tickSchema.parse({ sheetId: text(f, "sheetId"), stage: text(f, "stage"), boltId: text(f, "boltId") });
-    const next = await tickBolt(await getDb(), actor, tick);
+    const next = await tickBolt(await getDb(), actor, { jobId, ...tick });
     return done(jobId, "torque", next ? `${tick.boltId} done. Next: ${next.boltId} at stage ${next.stage}.` : "Every bolt is tightened at every stage.");
   } catch (err) {
     return actionFailure(err);

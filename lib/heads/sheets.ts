@@ -45,6 +45,14 @@ function assertEditable(actor: Actor, job: Job): void {
   }
 }
 
+/**
+ * The form names the job it was opened on; a journal, camshaft, sheet or valve of another head is
+ * refused like one that does not exist, so a write never lands on a head the sheet is not showing.
+ */
+function assertOnJob(expectedJobId: string | undefined, job: Job, message: string, fieldErrors: Record<string, string[]>): void {
+  if (expectedJobId !== undefined && expectedJobId !== job.id) throw new BadRequestError(message, fieldErrors);
+}
+
 async function headOfJob(db: Reader, shopId: string, jobId: string) {
   const [row] = await db
     .select({ head: heads, job: jobs })
@@ -59,6 +67,8 @@ async function headOfJob(db: Reader, shopId: string, jobId: string) {
 // ---------------------------------------------------------------- journal clearance
 
 export interface ClearanceInput {
+  /** The job whose sheet the reading was typed on; the journal must be on its head. */
+  jobId?: string;
   journalId: string;
   clearanceMm: number;
   method: "strip" | "diameters";
@@ -90,6 +100,7 @@ export async function recordJournalClearance(db: Db, actor: Actor, input: Cleara
     .where(and(eq(journals.id, input.journalId), eq(jobs.shopId, actor.shopId)))
     .limit(1);
   if (!row) throw new BadRequestError("That journal does not exist on this head.", { journalId: ["No such journal."] });
+  assertOnJob(input.jobId, row.job, "That journal does not exist on this head.", { journalId: ["No such journal."] });
   assertEditable(actor, row.job);
   const library = input.spec ? null : await effectiveSpec(db, row.job.id, "journal_clearance");
   const spec = input.spec ?? clearanceSpecFrom(library);
@@ -224,6 +235,7 @@ export async function getClearanceSheet(db: Db, shopId: string, jobId: string): 
 // ---------------------------------------------------------------- cap torque
 
 export interface TorqueSetupInput {
+  jobId?: string;
   camshaftId: string;
   capCount: number;
   boltsPerCap: BoltsPerCap;
@@ -241,6 +253,7 @@ export async function setUpTorqueSheet(db: Db, actor: Actor, input: TorqueSetupI
     .where(and(eq(camshafts.id, input.camshaftId), eq(jobs.shopId, actor.shopId)))
     .limit(1);
   if (!row) throw new BadRequestError("That camshaft does not exist on this head.", { camshaftId: ["No such camshaft."] });
+  assertOnJob(input.jobId, row.job, "That camshaft does not exist on this head.", { camshaftId: ["No such camshaft."] });
   assertEditable(actor, row.job);
   const order = input.order === "centre-out" ? centreOutwardOrder(input.capCount, input.boltsPerCap) : input.order;
   const orderErrors = validateOrder(order, input.capCount, input.boltsPerCap);
@@ -342,7 +355,7 @@ export async function getTorqueSheets(db: Db, shopId: string, jobId: string) {
   };
 }
 
-export async function tickBolt(db: Db, actor: Actor, input: { sheetId: string; stage: number; boltId: string }): Promise<Tick | null> {
+export async function tickBolt(db: Db, actor: Actor, input: { jobId?: string; sheetId: string; stage: number; boltId: string }): Promise<Tick | null> {
   const [row] = await db
     .select({ sheet: torqueSheets, job: jobs })
     .from(torqueSheets)
@@ -351,6 +364,7 @@ export async function tickBolt(db: Db, actor: Actor, input: { sheetId: string; s
     .where(and(eq(torqueSheets.id, input.sheetId), eq(jobs.shopId, actor.shopId)))
     .limit(1);
   if (!row) throw new NotFoundError("That torque sheet does not exist in your shop.");
+  assertOnJob(input.jobId, row.job, "That torque sheet is not on this head.", { sheetId: ["No such torque sheet."] });
   assertEditable(actor, row.job);
   const stages = stagesFor(row.sheet.finalNm, row.sheet.stageFractions);
   return db.transaction(async (tx) => {
@@ -515,7 +529,7 @@ export { effectiveSpecs };
 export async function updateValveIdentity(
   db: Db,
   actor: Actor,
-  input: { valveId: string; tag: string; partNumber: string | null; serial: string | null },
+  input: { jobId?: string; valveId: string; tag: string; partNumber: string | null; serial: string | null },
 ) {
   const [row] = await db
     .select({ valve: valves, job: jobs })
@@ -525,6 +539,7 @@ export async function updateValveIdentity(
     .where(and(eq(valves.id, input.valveId), eq(jobs.shopId, actor.shopId)))
     .limit(1);
   if (!row) throw new NotFoundError("That valve does not exist in your shop.");
+  assertOnJob(input.jobId, row.job, "That valve is not on this head.", { valveId: ["No such valve."] });
   assertEditable(actor, row.job);
   await db.transaction(async (tx) => {
     await tx
@@ -548,7 +563,7 @@ export async function updateValveIdentity(
  * valve goes back into the seat it was lapped in); before lapping, valves may be swapped, and
  * the swap is recorded.
  */
-export async function moveValve(db: Db, actor: Actor, input: { valveId: string; toSeatId: string }) {
+export async function moveValve(db: Db, actor: Actor, input: { jobId?: string; valveId: string; toSeatId: string }) {
   const [row] = await db
     .select({ valve: valves, job: jobs })
     .from(valves)
@@ -557,6 +572,7 @@ export async function moveValve(db: Db, actor: Actor, input: { valveId: string; 
     .where(and(eq(valves.id, input.valveId), eq(jobs.shopId, actor.shopId)))
     .limit(1);
   if (!row) throw new NotFoundError("That valve does not exist in your shop.");
+  assertOnJob(input.jobId, row.job, "That valve is not on this head.", { valveId: ["No such valve."] });
   assertEditable(actor, row.job);
   const [target] = await db.select().from(seats).where(and(eq(seats.id, input.toSeatId), eq(seats.headId, row.valve.headId)));
   if (!target) throw new BadRequestError("That seat is not on this head.", { toSeatId: ["Choose a seat of this head."] });

@@ -25,10 +25,12 @@ export const jobFormSchema = z
       .min(3, "Describe the engine (make, size, valves).")
       .max(200, "Keep the description under 200 characters."),
     engineSpecId: optionalUuid,
+    // Nullable like the ids: the form sends its parsed values (no date is null) to the action, which parses them again.
     promisedOn: z
       .string()
       .trim()
-      .refine((v) => v === "" || /^\d{4}-\d{2}-\d{2}$/.test(v), "Use a date like 2026-12-24.")
+      .nullable()
+      .refine((v) => v === null || v === "" || /^\d{4}-\d{2}-\d{2}$/.test(v), "Use a date like 2026-12-24.")
       .transform((v) => (v === "" ? null : v)),
     assignedTechnicianId: optionalUuid,
     notes: z.string().trim().max(2000, "Keep notes under 2000 characters.").default(""),

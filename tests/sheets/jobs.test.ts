@@ -64,8 +64,8 @@ describe("createJob", () => {
     expect(await layoutOf(v6.jobId!)).toMatchObject({ seats: 24, valves: 24, emptySeats: 0, camshafts: 4, journals: 16 });
   });
 
-  it("accepts the values the job form has already parsed (no promised date is null)", async () => {
-    // The form runs jobFormSchema in the browser and sends its output; the action parses it again.
+  it("accepts values jobFormSchema has already parsed (no promised date is null)", async () => {
+    // The schema's output parses again: a caller that validated in the browser and sent the result is not refused.
     const parsed = jobFormSchema.parse(h.jobForm({ promisedOn: "" }));
     expect(parsed.promisedOn).toBeNull();
     expect(await createJob(parsed)).toMatchObject({ ok: true });
