@@ -1,6 +1,6 @@
 // The shape every server action returns to its form.
 import { ZodError } from "zod";
-import { AppError, fieldErrorsOf } from "@/lib/errors";
+import { AppError, BadRequestError, fieldErrorsOf } from "@/lib/errors";
 
 export interface ActionState {
   ok: boolean;
@@ -14,6 +14,7 @@ export function actionFailure(err: unknown): ActionState {
   if (err instanceof ZodError) {
     return { ok: false, message: "Check the highlighted fields.", fieldErrors: fieldErrorsOf(err) };
   }
+  if (err instanceof BadRequestError) return { ok: false, message: err.message, fieldErrors: err.fieldErrors };
   if (err instanceof AppError) return { ok: false, message: err.message, fieldErrors: {} };
   console.error(err);
   return { ok: false, message: "The change could not be saved. Nothing was changed; try again.", fieldErrors: {} };
