@@ -526,21 +526,27 @@ export { effectiveSpecs };
 
 // ---------------------------------------------------------------- valves
 
-export async function updateValveIdentity(
-  db: Db,
-  actor: Actor,
-  input: { jobId?: string; valveId: string; tag: string; partNumber: string | null; serial: string | null },
-) {
+/** The valve with its job, refused unless it is in the caller's shop, on this job, and editable. */
+async function loadValveForEdit(db: Db, actor: Actor, valveId: string, jobId: string | undefined) {
   const [row] = await db
     .select({ valve: valves, job: jobs })
     .from(valves)
     .innerJoin(heads, eq(heads.id, valves.headId))
     .innerJoin(jobs, eq(jobs.id, heads.jobId))
-    .where(and(eq(valves.id, input.valveId), eq(jobs.shopId, actor.shopId)))
+    .where(and(eq(valves.id, valveId), eq(jobs.shopId, actor.shopId)))
     .limit(1);
   if (!row) throw new NotFoundError("That valve does not exist in your shop.");
-  assertOnJob(input.jobId, row.job, "That valve is not on this head.", { valveId: ["No such valve."] });
+  assertOnJob(jobId, row.job, "That valve is not on this head.", { valveId: ["No such valve."] });
   assertEditable(actor, row.job);
+  return row;
+}
+
+export async function updateValveIdentity(
+  db: Db,
+  actor: Actor,
+  input: { jobId?: string; valveId: string; tag: string; partNumber: string | null; serial: string | null },
+) {
+  const row = await loadValveForEdit(db, actor, input.valveId, input.jobId);
   await db.transaction(async (tx) => {
     await tx
       .update(valves)
@@ -564,16 +570,7 @@ export async function updateValveIdentity(
  * the swap is recorded.
  */
 export async function moveValve(db: Db, actor: Actor, input: { jobId?: string; valveId: string; toSeatId: string }) {
-  const [row] = await db
-    .select({ valve: valves, job: jobs })
-    .from(valves)
-    .innerJoin(heads, eq(heads.id, valves.headId))
-    .innerJoin(jobs, eq(jobs.id, heads.jobId))
-    .where(and(eq(valves.id, input.valveId), eq(jobs.shopId, actor.shopId)))
-    .limit(1);
-  if (!row) throw new NotFoundError("That valve does not exist in your shop.");
-  assertOnJob(input.jobId, row.job, "That valve is not on this head.", { valveId: ["No such valve."] });
-  assertEditable(actor, row.job);
+  const row = await loadValveForEdit(db, actor, input.valveId, input.jobId);
   const [target] = await db.select().from(seats).where(and(eq(seats.id, input.toSeatId), eq(seats.headId, row.valve.headId)));
   if (!target) throw new BadRequestError("That seat is not on this head.", { toSeatId: ["Choose a seat of this head."] });
   if (row.valve.seatId === target.id) return;
