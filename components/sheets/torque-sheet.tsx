@@ -136,7 +136,7 @@ export function TorqueTickList({ jobId, sheet, closed }: { jobId: string; sheet:
           <h4 className="mb-2 text-sm font-semibold">
             Stage {st.stage}: {st.label} — <TorqueFigures nm={st.nm} />
           </h4>
-          <div className="grid grid-cols-4 gap-2 sm:grid-cols-6">
+          <div className="grid grid-cols-3 gap-2 sm:grid-cols-6">
             {sheet.order.map((boltId, k) =>
               done.has(`${st.stage}|${boltId}`) ? (
                 <span key={boltId} className="figure flex min-h-12 items-center justify-center rounded-lg bg-emerald-600 font-bold text-white" data-testid={`done-${st.stage}-${boltId}`}>

@@ -2,7 +2,7 @@
 import { z } from "zod";
 
 const optionalUuid = z
-  .string()
+  .string({ error: "Choose from the list." })
   .trim()
   .transform((v) => (v === "" ? null : v))
   .nullable()
@@ -27,9 +27,10 @@ export const jobFormSchema = z
     engineSpecId: optionalUuid,
     // Nullable like the ids: the form sends its parsed values (no date is null) to the action, which parses them again.
     promisedOn: z
-      .string()
+      .string({ error: "Use a date like 2026-12-24, or leave it blank." })
       .trim()
       .nullable()
+      .default("")
       .refine((v) => v === null || v === "" || /^\d{4}-\d{2}-\d{2}$/.test(v), "Use a date like 2026-12-24.")
       .transform((v) => (v === "" ? null : v)),
     assignedTechnicianId: optionalUuid,
