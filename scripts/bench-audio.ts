@@ -1,7 +1,8 @@
 // Speed benchmark of the acoustic engine (figures, not a pass/fail test):
 // decode and analysis of a ten-minute 48 kHz mono recording, the whole
 // command-line analyzer process against Debian's aubioonset on the same file,
-// and the cost of one 128-sample block in the live analyzer.
+// and the cost of a 128-sample block in the live analyzer, on average and in
+// the worst block (the live goal is about every block, not just the mean).
 // Usage: npm run bench:audio
 
 import { execFileSync, spawnSync } from "node:child_process";
@@ -9,7 +10,7 @@ import { mkdtempSync, readFileSync, rmSync, writeFileSync } from "node:fs";
 import { tmpdir } from "node:os";
 import { join } from "node:path";
 import { analyzeRecording, analyzeWavBytes } from "../lib/audio/analyzer";
-import { createLiveAnalyzer } from "../lib/audio/live";
+import { createLiveAnalyzer, SPECTRA_PER_128_SAMPLES } from "../lib/audio/live";
 import { synthesizeSession } from "../lib/audio/synth";
 import { decodeWavMono, encodeWav } from "../lib/audio/wav";
 
@@ -68,23 +69,49 @@ function main(): void {
       `decode + analysis from the file's bytes in chunks (the command line's path), median of 3: ${median(chunked.map((c) => c.ms)).toFixed(1)} ms`,
     );
 
-    const live = createLiveAnalyzer({ sampleRate: SAMPLE_RATE });
+    // The live path, 128 samples at a time as an AudioWorklet delivers them.
+    // One run's slowest block is mostly the machine's doing (the process
+    // descheduled, a collection of the whole heap), not the analyzer's; the
+    // analyzer's own slowest block is the one whose best time over several
+    // runs is highest, since its work is the same in every run.
     const block = 128;
     const blocks = Math.floor(samples.length / block);
-    const t0 = performance.now();
-    let worst = 0;
-    for (let b = 0; b < blocks; b++) {
-      const t = performance.now();
-      live.push(samples.subarray(b * block, (b + 1) * block));
-      const dt = performance.now() - t;
-      if (dt > worst) worst = dt;
+    const liveRuns = 5;
+    const bestMs = new Float64Array(blocks).fill(Infinity);
+    const averagesUs: number[] = [];
+    let rawWorstMs = 0;
+    let mostSpectra = 0;
+    let liveStrokes = 0;
+    for (let run = 0; run < liveRuns; run++) {
+      const live = createLiveAnalyzer({ sampleRate: SAMPLE_RATE });
+      const t0 = performance.now();
+      for (let b = 0; b < blocks; b++) {
+        const t = performance.now();
+        live.push(samples.subarray(b * block, (b + 1) * block));
+        const dt = performance.now() - t;
+        if (dt < bestMs[b]) bestMs[b] = dt;
+        if (run === 0 && dt > rawWorstMs) rawWorstMs = dt;
+        if (live.lastPushSpectra > mostSpectra) mostSpectra = live.lastPushSpectra;
+      }
+      live.flush();
+      averagesUs.push(((performance.now() - t0) * 1000) / blocks);
+      liveStrokes = live.strokes.length;
     }
-    live.flush();
-    const perBlockUs = ((performance.now() - t0) * 1000) / blocks;
+    let worstUs = 0;
+    for (let b = 0; b < blocks; b++) worstUs = Math.max(worstUs, bestMs[b] * 1000);
+    const perBlockUs = median(averagesUs);
     const blockUs = (block / SAMPLE_RATE) * 1e6;
+    const goalShare = 0.1;
+    const share = (us: number) => `${((100 * us) / blockUs).toFixed(2)}%`;
+    const verdict = (us: number) => (us < goalShare * blockUs ? "met" : "NOT met");
     console.log(
-      `live: ${perBlockUs.toFixed(1)} µs per 128-sample block on average (${((100 * perBlockUs) / blockUs).toFixed(2)}% of its ${blockUs.toFixed(0)} µs), ` +
-        `worst block ${(worst * 1000).toFixed(0)} µs (a stroke being judged); ${live.strokes.length} strokes; goal < 10%`,
+      `live: ${perBlockUs.toFixed(1)} µs per 128-sample block on average (${share(perBlockUs)} of its ${blockUs.toFixed(0)} µs; median of ${liveRuns} runs), ` +
+        `worst block ${worstUs.toFixed(0)} µs (${share(worstUs)}; best of ${liveRuns} runs per block); ${liveStrokes} strokes; ` +
+        `goal < ${100 * goalShare}% (${(goalShare * blockUs).toFixed(0)} µs): average ${verdict(perBlockUs)}, worst block ${verdict(worstUs)}`,
+    );
+    console.log(
+      `live: at most ${mostSpectra} spectra in one block (budget ${SPECTRA_PER_128_SAMPLES} per 128 samples); ` +
+        `slowest block of the first run, scheduling and collections included: ${(rawWorstMs * 1000).toFixed(0)} µs (${share(rawWorstMs * 1000)})`,
     );
 
     const hasAubio = spawnSync("aubioonset", ["--help"], { stdio: "ignore" }).error === undefined;

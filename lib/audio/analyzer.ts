@@ -3,7 +3,7 @@
 // (live.ts) — envelope, segmentation, judging each burst on its own samples —
 // so both report the same strokes for the same audio.
 
-import { highBandHz, measureStroke } from "./contrast";
+import { highBandHz, measureStroke, type StrokeMeasures } from "./contrast";
 import { frameSizeFor, hopSizeFor, SpectrumFrame } from "./frames";
 import { LevelMeter, levelSeries, noiseFloorDbfs } from "./level";
 import { LiveAnalyzer, type LiveEvent } from "./live";
@@ -98,8 +98,19 @@ export class StrokeJudge {
     if (reason || !strokeSamples) {
       return { kind: "rejected", sound: { startS, endS, reason: reason ?? "too-long", flatness: null } };
     }
-    const len = strokeSamples.length;
-    const { flatness, bodyLevelDbfs, ...contrast } = measureStroke(strokeSamples, 0, len, this.frame, sr, o);
+    return this.judgeMeasured(c, measureStroke(strokeSamples, 0, strokeSamples.length, this.frame, sr, o), floorDbfs, clipped);
+  }
+
+  /**
+   * The judgement from the stroke's measures, however they were computed:
+   * the live analyzer gathers them frame by frame while the stroke sounds
+   * (`measureStroke` over the stroke's own samples, `planStroke(0, length)`).
+   */
+  judgeMeasured(c: Candidate, measures: StrokeMeasures, floorDbfs: number, clipped: boolean): Judgement {
+    const o = this.options;
+    const startS = (c.startHop * this.hopSize) / this.sampleRate;
+    const endS = (c.endHop * this.hopSize) / this.sampleRate;
+    const { flatness, bodyLevelDbfs, ...contrast } = measures;
     if (flatness < o.minFlatness) {
       return { kind: "rejected", sound: { startS, endS, reason: "not-noise-like", flatness } };
     }

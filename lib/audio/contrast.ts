@@ -50,12 +50,131 @@ export interface StrokeMeasures extends StrokeContrast {
   bodyLevelDbfs: number;
 }
 
+/** The bins a stroke's frames are read over. */
+export interface StrokeBands {
+  /** High band, inclusive. */
+  first: number;
+  last: number;
+  /** Shape band (flatness), inclusive. */
+  shapeFirst: number;
+  shapeLast: number;
+}
+
+export function strokeBands(sampleRateHz: number, frameSize: number, options: AnalysisOptions): StrokeBands {
+  const [lowHz, highHz] = highBandHz(sampleRateHz, options);
+  const [first, last] = bandBins(sampleRateHz, frameSize, lowHz, highHz);
+  const [shapeFirst, shapeLast] = bandBins(
+    sampleRateHz,
+    frameSize,
+    options.shapeBandLowHz,
+    Math.min(options.shapeBandHighHz, sampleRateHz * options.highBandMaxFractionOfRate),
+  );
+  return { first, last, shapeFirst, shapeLast };
+}
+
+/**
+ * Which frames measure the stroke occupying samples[start, end): their start
+ * positions, the onset window's first, then the body's, and which of them
+ * also give a flatness. Both analyzers measure exactly these frames, the
+ * live one as their audio arrives, so they agree to the bit.
+ */
+export interface StrokePlan {
+  at: number[];
+  onsetCount: number;
+  shape: boolean[];
+}
+
+/** Onset-window frame positions of a stroke starting at `start`: depend on its end only when it is shorter than the window. */
+export function onsetPositions(start: number, end: number, frameSize: number, sampleRateHz: number, options: AnalysisOptions): number[] {
+  const onsetEnd = Math.min(end, start + Math.round((sampleRateHz * options.onsetWindowMs) / 1000));
+  return coveringPositions(start, onsetEnd, frameSize, frameSize >> 1);
+}
+
+/**
+ * The onset window at half-frame hops, because the burst changes quickly
+ * there; the body, which is steady, at whole-frame hops; both spaced to cover
+ * their region end to end; the body thinned to maxBodyFrames spread evenly
+ * over it on a long stroke; flatness from shapeFramesPerStroke of all those
+ * frames, spread evenly.
+ */
+export function planStroke(start: number, end: number, frameSize: number, sampleRateHz: number, options: AnalysisOptions): StrokePlan {
+  const n = frameSize;
+  const length = end - start;
+  const onsetAt = onsetPositions(start, end, n, sampleRateHz, options);
+  const bodyAt = spreadPositions(
+    coveringPositions(start + Math.round(length * options.bodyStartFraction), start + Math.round(length * options.bodyEndFraction), n, n),
+    options.maxBodyFrames,
+  );
+  const at = onsetAt.concat(bodyAt);
+  return { at, onsetCount: onsetAt.length, shape: shapeFrames(at.length, options) };
+}
+
+/** Which of `total` frames give a flatness: shapeFramesPerStroke of them, spread evenly. */
+export function shapeFrames(total: number, options: AnalysisOptions): boolean[] {
+  const shapeCount = Math.min(total, options.shapeFramesPerStroke);
+  const shape: boolean[] = new Array<boolean>(total);
+  let nextShape = 0;
+  for (let i = 0; i < total; i++) {
+    const want = nextShape < shapeCount && i === Math.floor(((nextShape + 0.5) * total) / shapeCount);
+    if (want) nextShape++;
+    shape[i] = want;
+  }
+  return shape;
+}
+
+/** What one frame of a plan contributes. */
+export interface FrameMeasure {
+  power: number;
+  meanSquare: number;
+  /** Null when not asked for; NaN for silence, which the median leaves out. */
+  flatness: number | null;
+}
+
+/** Analyse the frame at samples[at, at + size) (zeros past the array's end). */
+export function measureFrame(samples: Float32Array, at: number, frame: SpectrumFrame, bands: StrokeBands, withShape: boolean): FrameMeasure {
+  frame.analyze(samples, at, withShape, bands.first, bands.last);
+  return {
+    power: bandPower(frame.power, bands.first, bands.last),
+    meanSquare: frame.meanSquare,
+    flatness: withShape ? spectralFlatness(frame.amplitude.subarray(bands.shapeFirst, bands.shapeLast + 1)) : null,
+  };
+}
+
+/**
+ * The stroke's measures from its plan's frames, `frames[i]` measuring
+ * `plan.at[i]`. Sums run in plan order whoever computed the frames and when,
+ * so the floating-point result is the same.
+ */
+export function combineStroke(plan: StrokePlan, frames: readonly FrameMeasure[]): StrokeMeasures {
+  const total = plan.at.length;
+  let onset = 0;
+  let body = 0;
+  let bodyMeanSquare = 0;
+  const flat: number[] = [];
+  for (let i = 0; i < total; i++) {
+    const m = frames[i];
+    if (i < plan.onsetCount) onset += m.power;
+    else {
+      body += m.power;
+      bodyMeanSquare += m.meanSquare;
+    }
+    if (plan.shape[i] && m.flatness !== null && Number.isFinite(m.flatness)) flat.push(m.flatness);
+  }
+  const bodyCount = total - plan.onsetCount;
+  const onsetDb = 10 * Math.log10(onset / plan.onsetCount);
+  const bodyDb = 10 * Math.log10(body / bodyCount);
+  return {
+    onsetDb,
+    bodyDb,
+    contrastDb: onsetDb - bodyDb,
+    flatness: median(flat),
+    bodyLevelDbfs: 10 * Math.log10(bodyMeanSquare / bodyCount),
+  };
+}
+
 /**
  * Everything the spectra tell about the stroke occupying samples[start, end),
- * in one pass over as few frames as possible: the onset window at half-frame
- * hops, because the burst changes quickly there; the body, which is steady,
- * at whole-frame hops; both spaced to cover their region end to end; thinned to maxBodyFrames spread evenly over it on a
- * long stroke; flatness from shapeFramesPerStroke of those frames.
+ * in one pass over the frames of planStroke.
  */
 export function measureStroke(
   samples: Float32Array,
@@ -65,54 +184,11 @@ export function measureStroke(
   sampleRateHz: number,
   options: AnalysisOptions,
 ): StrokeMeasures {
-  const n = frame.size;
-  const [lowHz, highHz] = highBandHz(sampleRateHz, options);
-  const [first, last] = bandBins(sampleRateHz, n, lowHz, highHz);
-  const [shapeFirst, shapeLast] = bandBins(
-    sampleRateHz,
-    n,
-    options.shapeBandLowHz,
-    Math.min(options.shapeBandHighHz, sampleRateHz * options.highBandMaxFractionOfRate),
-  );
-  const length = end - start;
-  const onsetEnd = Math.min(end, start + Math.round((sampleRateHz * options.onsetWindowMs) / 1000));
-  const onsetAt = coveringPositions(start, onsetEnd, n, n >> 1);
-  const bodyAt = spreadPositions(
-    coveringPositions(start + Math.round(length * options.bodyStartFraction), start + Math.round(length * options.bodyEndFraction), n, n),
-    options.maxBodyFrames,
-  );
-  const total = onsetAt.length + bodyAt.length;
-  const shapeCount = Math.min(total, options.shapeFramesPerStroke);
-  let nextShape = 0;
-  const flat: number[] = [];
-  let onset = 0;
-  let body = 0;
-  let bodyMeanSquare = 0;
-  for (let i = 0; i < total; i++) {
-    const wantShape = nextShape < shapeCount && i === Math.floor(((nextShape + 0.5) * total) / shapeCount);
-    const isOnset = i < onsetAt.length;
-    frame.analyze(samples, isOnset ? onsetAt[i] : bodyAt[i - onsetAt.length], wantShape, first, last);
-    const p = bandPower(frame.power, first, last);
-    if (isOnset) onset += p;
-    else {
-      body += p;
-      bodyMeanSquare += frame.meanSquare;
-    }
-    if (wantShape) {
-      nextShape++;
-      const f = spectralFlatness(frame.amplitude.subarray(shapeFirst, shapeLast + 1));
-      if (Number.isFinite(f)) flat.push(f);
-    }
-  }
-  const onsetDb = 10 * Math.log10(onset / onsetAt.length);
-  const bodyDb = 10 * Math.log10(body / bodyAt.length);
-  return {
-    onsetDb,
-    bodyDb,
-    contrastDb: onsetDb - bodyDb,
-    flatness: median(flat),
-    bodyLevelDbfs: 10 * Math.log10(bodyMeanSquare / bodyAt.length),
-  };
+  const bands = strokeBands(sampleRateHz, frame.size, options);
+  const plan = planStroke(start, end, frame.size, sampleRateHz, options);
+  const frames: FrameMeasure[] = new Array<FrameMeasure>(plan.at.length);
+  for (let i = 0; i < plan.at.length; i++) frames[i] = measureFrame(samples, plan.at[i], frame, bands, plan.shape[i]);
+  return combineStroke(plan, frames);
 }
 
 /** At most `max` of the positions, evenly spread, first and last kept. */

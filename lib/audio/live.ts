@@ -3,8 +3,29 @@
 // each stroke back as soon as the lift after it is heard. It runs the same
 // stages as analyzeRecording, on the same hop grid, so a recording pushed
 // through it block by block yields the same strokes.
+//
+// Spectra are the costly part. Rather than computing all of a stroke's
+// frames in the one block where its lift is heard, the analyzer measures them
+// while the stroke is still sounding: onset-window frames as soon as their
+// audio has arrived, body frames during the lift (the body is the middle half,
+// known once the sound has stopped; a lift that turns out to be a reversal
+// only costs the frames already measured). Each push may compute at most
+// SPECTRA_PER_128_SAMPLES spectra per 128 samples it brings (at least that many),
+// so no block costs more than a bounded amount of transform work; a
+// judgement still missing frames at the close waits for later pushes.
 
-import { StrokeJudge, type Stroke } from "./analyzer";
+import { StrokeJudge, type Judgement, type Stroke } from "./analyzer";
+import {
+  combineStroke,
+  measureFrame,
+  onsetPositions,
+  planStroke,
+  shapeFrames,
+  strokeBands,
+  type FrameMeasure,
+  type StrokeBands,
+  type StrokePlan,
+} from "./contrast";
 import { LevelMeter, noiseFloorDbfs } from "./level";
 import { resolveOptions, validateSampleRate, type AnalysisOptions, type AnalysisOptionsInput } from "./options";
 import { StrokeSegmenter, type Candidate, type RejectedSound } from "./strokes";
@@ -28,6 +49,50 @@ export interface LiveAnalyzerInput {
 
 const NO_EVENTS: readonly LiveEvent[] = Object.freeze([]);
 
+/**
+ * Spectra one push may compute per 128 samples it brings; a push of fewer
+ * samples may still compute this many. One 1024-point spectrum with its
+ * flatness costs some 15 µs, a 128-sample block lasts 2.7 ms at 48 kHz; at
+ * this rate a stroke's 16 body frames take 8 blocks, well inside a 100 ms lift.
+ */
+export const SPECTRA_PER_128_SAMPLES = 2;
+
+/** A closed burst whose judgement may still be waiting for frames. */
+interface PendingJudgement {
+  candidate: Candidate;
+  clipped: boolean;
+  floorDbfs: number;
+  /** Absolute sample range of the burst. */
+  start: number;
+  end: number;
+  /** Null when it is judged on its duration alone. */
+  plan: StrokePlan | null;
+  /** Measures of plan.at, null until computed. */
+  frames: (FrameMeasure | null)[];
+  /** Frames before this index are all measured. */
+  next: number;
+}
+
+/** The burst still sounding and the frames measured on it so far. */
+interface OpenStroke {
+  startHop: number;
+  /** Absolute index of its first sample. */
+  start: number;
+  /**
+   * By start relative to the stroke. Each lies wholly in audio already heard,
+   * so it is the frame offline analysis computes at that position whenever
+   * it ends no later than the stroke.
+   */
+  measured: Map<number, FrameMeasure>;
+  /** Next of the onset frames (for a stroke at least as long as the window) to measure. */
+  onsetNext: number;
+  /** The end the current lift would give, its length and frames. */
+  liftEndHop: number;
+  liftLength: number;
+  liftPlan: StrokePlan | null;
+  liftNext: number;
+}
+
 export class LiveAnalyzer {
   readonly sampleRate: number;
   readonly options: AnalysisOptions;
@@ -49,6 +114,21 @@ export class LiveAnalyzer {
   private clipHops: number[] = [];
   private events: LiveEvent[] = [];
   private accepted: Stroke[] = [];
+  private readonly bands: StrokeBands;
+  private readonly frameSize: number;
+  /** Onset frames of any stroke at least onsetWindowMs long: known from its start. */
+  private readonly onsetAt: number[];
+  /**
+   * Which of them give a flatness when the body has all maxBodyFrames frames
+   * (any stroke longer than about 2 × maxBodyFrames frames); a shorter
+   * stroke's lift, or its close, measures the few others it needs.
+   */
+  private readonly onsetShape: boolean[];
+  private open: OpenStroke | null = null;
+  private pending: PendingJudgement[] = [];
+  private credit = 0;
+  private spectraTotal = 0;
+  private spectraThisCall = 0;
 
   constructor(input: LiveAnalyzerInput) {
     this.sampleRate = validateSampleRate(input.sampleRate);
@@ -58,6 +138,10 @@ export class LiveAnalyzer {
     this.segmenter = new StrokeSegmenter(this.options, this.meter.windowHops);
     this.judge = new StrokeJudge(this.sampleRate, this.options);
     const o = this.options;
+    this.frameSize = this.judge.frame.size;
+    this.bands = strokeBands(this.sampleRate, this.frameSize, o);
+    this.onsetAt = onsetPositions(0, Infinity, this.frameSize, this.sampleRate, o);
+    this.onsetShape = shapeFrames(this.onsetAt.length + o.maxBodyFrames, o).slice(0, this.onsetAt.length);
     const liftHops = Math.ceil(o.minLiftMs / o.hopMs);
     // A stroke is needed whole until its lift has been heard.
     this.maxKeep =
@@ -84,6 +168,16 @@ export class LiveAnalyzer {
   /** Strokes accepted since creation or reset, in order. */
   get strokes(): readonly Stroke[] {
     return this.accepted;
+  }
+
+  /** Spectra computed since creation. */
+  get spectraComputed(): number {
+    return this.spectraTotal;
+  }
+
+  /** Spectra computed by the last push or flush: at most max(SPECTRA_PER_128_SAMPLES, its samples × SPECTRA_PER_128_SAMPLES / 128) for a push. */
+  get lastPushSpectra(): number {
+    return this.spectraThisCall;
   }
 
   /**
@@ -117,6 +211,9 @@ export class LiveAnalyzer {
     this.clipHops = [];
     this.accepted = [];
     this.events = [];
+    this.open = null;
+    this.pending = [];
+    this.credit = 0;
     this.floor = null;
     this.startCalibration();
   }
@@ -128,17 +225,25 @@ export class LiveAnalyzer {
   push(block: Float32Array): readonly LiveEvent[] {
     if (!(block instanceof Float32Array)) throw new TypeError("push expects a Float32Array block");
     if (block.length === 0) return NO_EVENTS;
+    this.spectraThisCall = 0;
     this.append(block);
     this.meter.push(block, 0, block.length, this.onHop);
+    // Unused credit carries over only up to one push's worth, so quiet time
+    // cannot save up for a costly block later.
+    const earned = (block.length * SPECTRA_PER_128_SAMPLES) / 128;
+    this.credit = Math.min(this.credit + earned, Math.max(SPECTRA_PER_128_SAMPLES, earned));
+    this.credit -= this.work(Math.floor(this.credit));
     return this.drain();
   }
 
-  /** End of input: a stroke still sounding is closed and judged. */
+  /** End of input: a stroke still sounding is closed, and every stroke waiting for frames is judged. */
   flush(): readonly LiveEvent[] {
+    this.spectraThisCall = 0;
     if (this.liveState === "listening") {
       const c = this.segmenter.finish();
       if (c) this.take(c);
     }
+    this.work(Infinity);
     return this.drain();
   }
 
@@ -168,15 +273,72 @@ export class LiveAnalyzer {
   private take(c: Candidate): void {
     const start = c.startHop * this.hopSize;
     const end = c.endHop * this.hopSize;
-    let view: Float32Array | null = null;
-    if (!this.judge.durationReason(c) && start >= this.base) {
-      view = this.history.subarray(start - this.base, end - this.base);
-    }
     let clip = false;
     for (const h of this.clipHops) if (h >= c.startHop && h < c.endHop) clip = true;
     // Clip marks before this stroke's end can no longer belong to any stroke.
     this.clipHops = this.clipHops.filter((h) => h >= c.endHop);
-    const j = this.judge.judge(c, view, this.floor ?? this.options.minNoiseFloorDbfs, clip);
+    let plan: StrokePlan | null = null;
+    let frames: (FrameMeasure | null)[] = [];
+    if (!this.judge.durationReason(c) && start >= this.base) {
+      const length = end - start;
+      const n = this.frameSize;
+      plan = planStroke(0, length, n, this.sampleRate, this.options);
+      const measured = this.open && this.open.startHop === c.startHop ? this.open.measured : null;
+      const shape = plan.shape;
+      // A frame measured while the stroke sounded counts only if it lies
+      // inside the stroke as it finally ended, and has a flatness if needed.
+      frames = plan.at.map((at, i) => {
+        const m = measured && at + n <= length ? measured.get(at) : undefined;
+        return m && (m.flatness !== null || !shape[i]) ? m : null;
+      });
+    }
+    this.open = null;
+    this.pending.push({
+      candidate: c,
+      clipped: clip,
+      floorDbfs: this.floor ?? this.options.minNoiseFloorDbfs,
+      start,
+      end,
+      plan,
+      frames,
+      next: 0,
+    });
+  }
+
+  /**
+   * Spend up to `budget` spectra: first on the frames closed strokes still
+   * miss, reporting each once complete (in order), then on the stroke still
+   * sounding. Returns the number computed.
+   */
+  private work(budget: number): number {
+    let spent = 0;
+    while (this.pending.length > 0) {
+      const p = this.pending[0];
+      if (p.plan) {
+        const plan = p.plan;
+        const view = this.history.subarray(p.start - this.base, p.end - this.base);
+        for (; p.next < plan.at.length; p.next++) {
+          if (p.frames[p.next] !== null) continue;
+          if (spent >= budget) return spent;
+          p.frames[p.next] = this.measure(view, plan.at[p.next], plan.shape[p.next]);
+          spent++;
+        }
+      }
+      this.pending.shift();
+      this.report(p);
+    }
+    if (spent < budget) spent += this.measureOpen(budget - spent);
+    return spent;
+  }
+
+  private report(p: PendingJudgement): void {
+    let j: Judgement;
+    if (p.plan) {
+      // work() has filled every frame before reporting.
+      j = this.judge.judgeMeasured(p.candidate, combineStroke(p.plan, p.frames as FrameMeasure[]), p.floorDbfs, p.clipped);
+    } else {
+      j = this.judge.judge(p.candidate, null, p.floorDbfs, p.clipped);
+    }
     if (j.kind === "stroke") {
       const stroke: Stroke = { index: this.accepted.length + 1, ...j.stroke };
       this.accepted.push(stroke);
@@ -184,6 +346,69 @@ export class LiveAnalyzer {
     } else {
       this.events.push({ type: "rejected", sound: j.sound });
     }
+  }
+
+  private measure(view: Float32Array, at: number, withShape: boolean): FrameMeasure {
+    this.spectraTotal++;
+    this.spectraThisCall++;
+    return measureFrame(view, at, this.judge.frame, this.bands, withShape);
+  }
+
+  /** Measure frames of the burst still sounding, up to `budget`. */
+  private measureOpen(budget: number): number {
+    const startHop = this.segmenter.openStartHop;
+    if (startHop < 0) {
+      this.open = null;
+      return 0;
+    }
+    if (!this.open || this.open.startHop !== startHop) {
+      this.open = {
+        startHop,
+        start: startHop * this.hopSize,
+        measured: new Map(),
+        onsetNext: 0,
+        liftEndHop: -1,
+        liftLength: 0,
+        liftPlan: null,
+        liftNext: 0,
+      };
+    }
+    const o = this.open;
+    // Its start is gone only for a burst already too long to be a stroke.
+    if (o.start < this.base) return 0;
+    const n = this.frameSize;
+    const heard = this.base + this.length - o.start;
+    const view = this.history.subarray(o.start - this.base, this.length);
+    let spent = 0;
+    const endHop = this.segmenter.liftEndHop;
+    if (endHop >= 0) {
+      if (endHop !== o.liftEndHop) {
+        o.liftEndHop = endHop;
+        o.liftLength = (endHop - startHop) * this.hopSize;
+        const tooShortOrLong = this.judge.durationReason({ startHop, endHop }) !== null;
+        o.liftPlan = tooShortOrLong ? null : planStroke(0, o.liftLength, n, this.sampleRate, this.options);
+        o.liftNext = 0;
+      }
+      const plan = o.liftPlan;
+      // The lift's end is behind the audio heard, so all these frames' samples are here.
+      const limit = Math.min(o.liftLength, heard);
+      for (; plan && o.liftNext < plan.at.length && spent < budget; o.liftNext++) {
+        const at = plan.at[o.liftNext];
+        const shape = plan.shape[o.liftNext];
+        const m = o.measured.get(at);
+        if (at + n > limit || (m && (m.flatness !== null || !shape))) continue;
+        o.measured.set(at, this.measure(view, at, shape));
+        spent++;
+      }
+    }
+    for (; o.onsetNext < this.onsetAt.length && spent < budget; o.onsetNext++) {
+      const at = this.onsetAt[o.onsetNext];
+      if (at + n > heard) break;
+      if (o.measured.has(at)) continue;
+      o.measured.set(at, this.measure(view, at, this.onsetShape[o.onsetNext]));
+      spent++;
+    }
+    return spent;
   }
 
   private append(block: Float32Array): void {
@@ -197,6 +422,13 @@ export class LiveAnalyzer {
       // A burst longer than maxStrokeMs is rejected on its duration alone,
       // so audio older than that may go.
       keepFrom = Math.min(total, Math.max(keepFrom, total - this.maxKeep, this.base));
+      // A closed stroke still waiting for frames keeps its audio: the wait is
+      // a few blocks, so this holds little more than maxKeep.
+      for (const p of this.pending) {
+        if (!p.plan) continue;
+        keepFrom = Math.min(keepFrom, p.start);
+        break;
+      }
       const drop = keepFrom - this.base;
       const keepHop = Math.floor(keepFrom / this.hopSize);
       this.clipHops = this.clipHops.filter((h) => h >= keepHop);

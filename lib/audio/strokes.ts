@@ -40,6 +40,7 @@ export class StrokeSegmenter {
   private runStart = -1;
   private candidateStart = -1;
   private lastAbove = -1;
+  private lastHop = -1;
 
   constructor(options: AnalysisOptions, windowHops: number) {
     this.liftHops = Math.max(1, Math.ceil(options.minLiftMs / options.hopMs));
@@ -58,6 +59,21 @@ export class StrokeSegmenter {
     this.runStart = -1;
     this.candidateStart = -1;
     this.lastAbove = -1;
+    this.lastHop = -1;
+  }
+
+  /** First hop of the burst in progress, or -1 when none is. */
+  get openStartHop(): number {
+    return this.active ? this.candidateStart : -1;
+  }
+
+  /**
+   * While the burst in progress is in a lift (its last step was below the
+   * exit level): the end hop it closes with if the lift lasts minLiftMs.
+   * -1 otherwise. Lets the live analyzer measure the body before the close.
+   */
+  get liftEndHop(): number {
+    return this.active && this.lastHop > this.lastAbove ? this.endHopNow() : -1;
   }
 
   /** The earliest hop a pending or future candidate could start at. */
@@ -67,6 +83,7 @@ export class StrokeSegmenter {
   }
 
   step(hop: number, level: number): Candidate | null {
+    this.lastHop = hop;
     const above = level >= this.endLevel;
     if (!this.active) {
       if (!above) {
@@ -96,11 +113,14 @@ export class StrokeSegmenter {
     return this.active ? this.close() : null;
   }
 
-  private close(): Candidate {
+  private endHopNow(): number {
     // The window still held the burst's last hop for windowHops-1 hops after
     // the sound stopped; step back to where it really ended.
-    const endHop = Math.max(this.candidateStart + 1, this.lastAbove - this.windowHops + 2);
-    const c = { startHop: this.candidateStart, endHop };
+    return Math.max(this.candidateStart + 1, this.lastAbove - this.windowHops + 2);
+  }
+
+  private close(): Candidate {
+    const c = { startHop: this.candidateStart, endHop: this.endHopNow() };
     this.active = false;
     this.runStart = -1;
     this.candidateStart = -1;
