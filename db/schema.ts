@@ -49,6 +49,9 @@ export const lappingStage = pgEnum("lapping_stage", ["coarse", "fine"]);
 // or typed in with the reading.
 export const specSource = pgEnum("spec_source", ["library", "job_override", "entered"]);
 
+export const reviewDecision = pgEnum("review_decision", ["approved", "sent_back", "reopened"]);
+export const mailStatus = pgEnum("mail_status", ["queued", "sending", "sent", "failed"]);
+
 export const measurementKind = pgEnum("measurement_kind", [
   "journal_clearance",
   "cap_torque",
@@ -462,6 +465,54 @@ export const torqueTicks = pgTable(
   ],
 );
 
+// A supervisor's decision on one seat (seatId set) or on the head as a whole (seatId null).
+export const reviews = pgTable(
+  "reviews",
+  {
+    id: uuid("id").primaryKey().defaultRandom(),
+    jobId: uuid("job_id")
+      .notNull()
+      .references(() => jobs.id, { onDelete: "cascade" }),
+    seatId: uuid("seat_id").references(() => seats.id, { onDelete: "cascade" }),
+    decision: reviewDecision("decision").notNull(),
+    comment: text("comment").notNull(),
+    reviewerId: uuid("reviewer_id")
+      .notNull()
+      .references(() => users.id, { onDelete: "restrict" }),
+    createdAt: timestamp("created_at", { withTimezone: true }).notNull().defaultNow(),
+  },
+  (t) => [
+    index("reviews_job_idx").on(t.jobId, t.createdAt),
+    check("reviews_comment_length", sql`length(${t.comment}) between 1 and 2000`),
+  ],
+);
+
+// Mail waiting to go, sent, or given up on; a worker sends and retries from here.
+export const mailOutbox = pgTable(
+  "mail_outbox",
+  {
+    id: uuid("id").primaryKey().defaultRandom(),
+    jobId: uuid("job_id").references(() => jobs.id, { onDelete: "set null" }),
+    kind: text("kind").notNull(),
+    recipients: text("recipients").array().notNull(),
+    subject: text("subject").notNull(),
+    html: text("html").notNull(),
+    text: text("text").notNull(),
+    status: mailStatus("status").notNull().default("queued"),
+    attempts: integer("attempts").notNull().default(0),
+    lastError: text("last_error"),
+    nextAttemptAt: timestamp("next_attempt_at", { withTimezone: true }).notNull().defaultNow(),
+    sentAt: timestamp("sent_at", { withTimezone: true }),
+    createdById: uuid("created_by_id").references(() => users.id, { onDelete: "set null" }),
+    createdAt: timestamp("created_at", { withTimezone: true }).notNull().defaultNow(),
+  },
+  (t) => [
+    index("mail_outbox_due_idx").on(t.status, t.nextAttemptAt),
+    check("mail_outbox_attempts_range", sql`${t.attempts} >= 0`),
+    check("mail_outbox_has_recipients", sql`cardinality(${t.recipients}) >= 1`),
+  ],
+);
+
 // Append-only: a trigger in the migrations refuses UPDATE and DELETE for everyone.
 export const auditEntries = pgTable(
   "audit_entries",
@@ -505,6 +556,8 @@ export type SpecValue = typeof specValues.$inferSelect;
 export type JobSpecOverride = typeof jobSpecOverrides.$inferSelect;
 export type TorqueSheet = typeof torqueSheets.$inferSelect;
 export type TorqueTick = typeof torqueTicks.$inferSelect;
+export type Review = typeof reviews.$inferSelect;
+export type MailOutboxRow = typeof mailOutbox.$inferSelect;
 export type UserRole = (typeof userRole.enumValues)[number];
 export type JobStatus = (typeof jobStatus.enumValues)[number];
 export type SeatState = (typeof seatState.enumValues)[number];
