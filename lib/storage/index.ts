@@ -17,6 +17,12 @@ export interface BlobStore {
   put(key: string, body: ReadableStream<Uint8Array> | Uint8Array, options?: { maxBytes?: number }): Promise<StoredObject>;
   get(key: string): Promise<ReadableStream<Uint8Array> | null>;
   size(key: string): Promise<number | null>;
+  /**
+   * Bytes start..end inclusive (HTTP Range semantics), or null when the object is absent.
+   * Optional so that a store without ranged reads still satisfies the interface; callers fall
+   * back to the whole object.
+   */
+  getRange?(key: string, start: number, end: number): Promise<ReadableStream<Uint8Array> | null>;
   delete(key: string): Promise<void>;
 }
 
@@ -67,6 +73,15 @@ export class LocalDiskStore implements BlobStore {
     const f = this.file(key);
     if (!fs.existsSync(f)) return null;
     return Readable.toWeb(fs.createReadStream(f)) as ReadableStream<Uint8Array>;
+  }
+
+  async getRange(key: string, start: number, end: number) {
+    if (!Number.isSafeInteger(start) || !Number.isSafeInteger(end) || start < 0 || end < start) {
+      throw new RangeError(`bad byte range ${start}-${end}`);
+    }
+    const f = this.file(key);
+    if (!fs.existsSync(f)) return null;
+    return Readable.toWeb(fs.createReadStream(f, { start, end })) as ReadableStream<Uint8Array>;
   }
 
   async size(key: string) {
