@@ -45,6 +45,13 @@ function assertEditable(actor: Actor, job: Job): void {
   }
 }
 
+/** An approved seat is read-only, like a signed-off head, until a supervisor reopens it. */
+function assertSeatOpen(seat: { state: string; cylinder: number; kind: "intake" | "exhaust"; position: number }): void {
+  if (seat.state === "approved") {
+    throw new ConflictError(`Seat ${seatCode(seat)} is approved: it is read-only until a supervisor reopens it.`);
+  }
+}
+
 /**
  * The form names the job it was opened on; a journal, camshaft, sheet or valve of another head is
  * refused like one that does not exist, so a write never lands on a head the sheet is not showing.
@@ -427,6 +434,7 @@ export async function recordMeasurement(db: Db, actor: Actor, input: Measurement
     if (!input.seatId) throw new BadRequestError("Choose the seat this was measured on.", { seatId: ["Choose a seat."] });
     const [seat] = await db.select().from(seats).where(and(eq(seats.id, input.seatId), eq(seats.headId, head.id)));
     if (!seat) throw new BadRequestError("That seat is not on this head.", { seatId: ["No such seat."] });
+    assertSeatOpen(seat);
     seatKind = seat.kind;
   }
   const key = specKeyFor(input.kind, seatKind);
@@ -538,6 +546,10 @@ async function loadValveForEdit(db: Db, actor: Actor, valveId: string, jobId: st
   if (!row) throw new NotFoundError("That valve does not exist in your shop.");
   assertOnJob(jobId, row.job, "That valve is not on this head.", { valveId: ["No such valve."] });
   assertEditable(actor, row.job);
+  if (row.valve.seatId) {
+    const [home] = await db.select().from(seats).where(eq(seats.id, row.valve.seatId));
+    if (home) assertSeatOpen(home);
+  }
   return row;
 }
 
@@ -574,6 +586,7 @@ export async function moveValve(db: Db, actor: Actor, input: { jobId?: string; v
   const [target] = await db.select().from(seats).where(and(eq(seats.id, input.toSeatId), eq(seats.headId, row.valve.headId)));
   if (!target) throw new BadRequestError("That seat is not on this head.", { toSeatId: ["Choose a seat of this head."] });
   if (row.valve.seatId === target.id) return;
+  assertSeatOpen(target);
   const [from] = row.valve.seatId ? await db.select().from(seats).where(eq(seats.id, row.valve.seatId)) : [];
   if (row.valve.lappedInSeatId && row.valve.lappedInSeatId !== target.id) {
     const [home] = await db.select().from(seats).where(eq(seats.id, row.valve.lappedInSeatId));

@@ -1,0 +1,67 @@
+"use server";
+
+// Server actions for sign-off. Each checks the session first, validates the form with zod,
+// and leaves everything as it was when it refuses. The supervisor-only rule lives in the
+// service, so the actions and any other caller share it.
+import { revalidatePath } from "next/cache";
+import { getDb } from "@/db/client";
+import { requireActor } from "@/lib/auth/guard";
+import { reopenHead, reopenSeat, reviewHead, reviewSeat } from "@/lib/review/service";
+import { headReopenSchema, headReviewSchema, seatReopenSchema, seatReviewSchema } from "@/lib/review/validation";
+import { actionFailure, type ActionState } from "./state";
+
+const text = (f: FormData, k: string) => {
+  const v = f.get(k);
+  return typeof v === "string" ? v : undefined;
+};
+
+function done(jobId: string, message: string): ActionState {
+  revalidatePath(`/jobs/${jobId}`);
+  revalidatePath("/jobs");
+  revalidatePath("/audit");
+  return { ok: true, message, fieldErrors: {} };
+}
+
+export async function submitSeatReview(_prev: ActionState, f: FormData): Promise<ActionState> {
+  try {
+    const actor = await requireActor("jobs:audit");
+    const v = seatReviewSchema.parse({ seatId: text(f, "seatId"), jobId: text(f, "jobId"), decision: text(f, "decision"), comment: text(f, "comment") });
+    const r = await reviewSeat(await getDb(), actor, v);
+    return done(v.jobId, r.state === "approved" ? `Seat ${r.code} approved; it is read-only now.` : `Seat ${r.code} sent back to the bench.`);
+  } catch (err) {
+    return actionFailure(err);
+  }
+}
+
+export async function submitSeatReopen(_prev: ActionState, f: FormData): Promise<ActionState> {
+  try {
+    const actor = await requireActor("jobs:audit");
+    const v = seatReopenSchema.parse({ seatId: text(f, "seatId"), jobId: text(f, "jobId"), reason: text(f, "reason") });
+    const r = await reopenSeat(await getDb(), actor, v);
+    return done(v.jobId, `Seat ${r.code} reopened; it can be lapped again.`);
+  } catch (err) {
+    return actionFailure(err);
+  }
+}
+
+export async function submitHeadReview(_prev: ActionState, f: FormData): Promise<ActionState> {
+  try {
+    const actor = await requireActor("jobs:audit");
+    const v = headReviewSchema.parse({ jobId: text(f, "jobId"), decision: text(f, "decision"), comment: text(f, "comment") });
+    const r = await reviewHead(await getDb(), actor, v);
+    return done(v.jobId, r.status === "signed_off" ? `Job ${r.number} signed off.` : `Job ${r.number} sent back to the bench.`);
+  } catch (err) {
+    return actionFailure(err);
+  }
+}
+
+export async function submitHeadReopen(_prev: ActionState, f: FormData): Promise<ActionState> {
+  try {
+    const actor = await requireActor("jobs:audit");
+    const v = headReopenSchema.parse({ jobId: text(f, "jobId"), reason: text(f, "reason") });
+    const r = await reopenHead(await getDb(), actor, v);
+    return done(v.jobId, `Job ${r.number} reopened and back at the bench.`);
+  } catch (err) {
+    return actionFailure(err);
+  }
+}

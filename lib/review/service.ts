@@ -1,0 +1,237 @@
+// Sign-off on the server: a supervisor approves or sends back each seat and then the head as a
+// whole, and reopens either with a reason. Every decision writes a reviews row and its audit
+// entry in the same transaction as the state change, so none of the three lands alone.
+import { and, asc, eq } from "drizzle-orm";
+import type { Db } from "@/db/client";
+import { heads, jobs, reviews, seats, type JobStatus, type SeatState } from "@/db/schema";
+import type { Actor } from "@/lib/auth/guard";
+import { recordAudit } from "@/lib/audit";
+import { BadRequestError, ConflictError, ForbiddenError, NotFoundError } from "@/lib/errors";
+import { seatCode } from "@/lib/heads/layout";
+import { isClosed } from "@/lib/jobs/lifecycle";
+
+export type ReviewVerdict = "approved" | "sent_back";
+
+/** Seats a supervisor may send back: work that is finished, flattened, or still under way. */
+const SEND_BACK_FROM: readonly SeatState[] = ["settled", "stalled", "lapping"];
+
+const STATE_WORDS: Record<SeatState, string> = {
+  waiting: "waiting",
+  lapping: "still lapping",
+  settled: "settled",
+  stalled: "stalled",
+  approved: "approved",
+  sent_back: "sent back",
+};
+
+const STATUS_WORDS: Record<JobStatus, string> = {
+  queued: "queued",
+  at_bench: "at the bench",
+  awaiting_audit: "awaiting audit",
+  signed_off: "signed off",
+  collected: "collected",
+};
+
+/**
+ * Sign-off belongs to supervisors alone. The role table also gives admins "jobs:audit" so they
+ * can read the trail, but admins manage people; they do not judge lapping work.
+ */
+export function assertSupervisor(actor: Actor): void {
+  if (actor.role !== "supervisor") {
+    throw new ForbiddenError(
+      actor.role === "admin"
+        ? "Only a supervisor can sign off, send back or reopen work; admins manage people and can read the audit trail."
+        : "Only a supervisor can sign off, send back or reopen work. Ask a supervisor to audit this seat.",
+    );
+  }
+}
+
+/** The text a decision is recorded with; the database also refuses empty or over-long text. */
+function requiredText(value: string, field: "comment" | "reason", min: number): string {
+  const text = value.trim();
+  if (text.length < min || text.length > 2000) {
+    throw new BadRequestError(
+      field === "comment" ? `Write a comment of ${min} to 2000 characters.` : `Give a reason of ${min} to 2000 characters.`,
+      { [field]: [`Between ${min} and 2000 characters.`] },
+    );
+  }
+  return text;
+}
+
+type Tx = Parameters<Parameters<Db["transaction"]>[0]>[0];
+
+async function lockSeat(tx: Tx, shopId: string, seatId: string) {
+  const [row] = await tx
+    .select({ seat: seats, job: jobs })
+    .from(seats)
+    .innerJoin(heads, eq(heads.id, seats.headId))
+    .innerJoin(jobs, eq(jobs.id, heads.jobId))
+    .where(and(eq(seats.id, seatId), eq(jobs.shopId, shopId)))
+    .limit(1)
+    .for("update");
+  if (!row) throw new NotFoundError("That seat does not exist in your shop.");
+  return row;
+}
+
+async function lockJob(tx: Tx, shopId: string, jobId: string) {
+  const [job] = await tx
+    .select()
+    .from(jobs)
+    .where(and(eq(jobs.id, jobId), eq(jobs.shopId, shopId)))
+    .limit(1)
+    .for("update");
+  if (!job) throw new NotFoundError("That job does not exist in your shop.");
+  return job;
+}
+
+export interface SeatReviewResult {
+  seatId: string;
+  code: string;
+  state: SeatState;
+}
+
+export async function reviewSeat(
+  db: Db,
+  actor: Actor,
+  input: { seatId: string; decision: ReviewVerdict; comment: string },
+): Promise<SeatReviewResult> {
+  assertSupervisor(actor);
+  const comment = requiredText(input.comment, "comment", 3);
+  return db.transaction(async (tx) => {
+    const { seat, job } = await lockSeat(tx, actor.shopId, input.seatId);
+    const code = seatCode(seat);
+    if (isClosed(job.status)) {
+      throw new ConflictError(`Job ${job.number} is ${STATUS_WORDS[job.status]}; reopen the head before changing a seat's review.`);
+    }
+    if (input.decision === "approved" && seat.state !== "settled") {
+      // Only the server's settled verdict is approved: a stalled seat needs more lapping or a send-back.
+      throw new ConflictError(`Seat ${code} is ${STATE_WORDS[seat.state]}; only a settled seat can be approved.`);
+    }
+    if (input.decision === "sent_back" && !SEND_BACK_FROM.includes(seat.state)) {
+      throw new ConflictError(
+        seat.state === "approved"
+          ? `Seat ${code} is approved; reopen it with a reason instead.`
+          : `Seat ${code} is ${STATE_WORDS[seat.state]}; there is no lapping to send back yet.`,
+      );
+    }
+    const next: SeatState = input.decision;
+    await tx.update(seats).set({ state: next, updatedAt: new Date() }).where(eq(seats.id, seat.id));
+    await tx.insert(reviews).values({ jobId: job.id, seatId: seat.id, decision: input.decision, comment, reviewerId: actor.id });
+    await recordAudit(tx, {
+      actorId: actor.id,
+      action: input.decision === "approved" ? "seat.approved" : "seat.sent_back",
+      entityType: "seat",
+      entityId: seat.id,
+      jobId: job.id,
+      before: { seat: code, state: seat.state },
+      after: { seat: code, state: next, comment },
+    });
+    return { seatId: seat.id, code, state: next };
+  });
+}
+
+export async function reopenSeat(db: Db, actor: Actor, input: { seatId: string; reason: string }): Promise<SeatReviewResult> {
+  assertSupervisor(actor);
+  const reason = requiredText(input.reason, "reason", 3);
+  return db.transaction(async (tx) => {
+    const { seat, job } = await lockSeat(tx, actor.shopId, input.seatId);
+    const code = seatCode(seat);
+    if (seat.state !== "approved") {
+      throw new ConflictError(`Seat ${code} is ${STATE_WORDS[seat.state]}, not approved; there is nothing to reopen.`);
+    }
+    if (isClosed(job.status)) {
+      throw new ConflictError(`Job ${job.number} is ${STATUS_WORDS[job.status]}; reopen the head first, then the seat.`);
+    }
+    // Back to settled: the strokes that earned the verdict stand until new ones are lapped.
+    const next: SeatState = "settled";
+    await tx.update(seats).set({ state: next, updatedAt: new Date() }).where(eq(seats.id, seat.id));
+    await tx.insert(reviews).values({ jobId: job.id, seatId: seat.id, decision: "reopened", comment: reason, reviewerId: actor.id });
+    await recordAudit(tx, {
+      actorId: actor.id,
+      action: "seat.reopened",
+      entityType: "seat",
+      entityId: seat.id,
+      jobId: job.id,
+      before: { seat: code, state: seat.state },
+      after: { seat: code, state: next, reason },
+    });
+    return { seatId: seat.id, code, state: next };
+  });
+}
+
+export interface HeadReviewResult {
+  jobId: string;
+  number: string;
+  status: JobStatus;
+}
+
+export async function reviewHead(
+  db: Db,
+  actor: Actor,
+  input: { jobId: string; decision: ReviewVerdict; comment: string },
+): Promise<HeadReviewResult> {
+  assertSupervisor(actor);
+  const comment = requiredText(input.comment, "comment", 3);
+  return db.transaction(async (tx) => {
+    const job = await lockJob(tx, actor.shopId, input.jobId);
+    if (job.status !== "awaiting_audit") {
+      throw new ConflictError(
+        `Job ${job.number} is ${STATUS_WORDS[job.status]}; a head is ${input.decision === "approved" ? "signed off" : "sent back"} only while it is awaiting audit.`,
+      );
+    }
+    if (input.decision === "approved") {
+      const all = await tx
+        .select()
+        .from(seats)
+        .innerJoin(heads, eq(heads.id, seats.headId))
+        .where(eq(heads.jobId, job.id))
+        .orderBy(asc(seats.cylinder), asc(seats.kind), asc(seats.position));
+      const open = all.map((r) => r.seats).filter((s) => s.state !== "approved");
+      if (all.length === 0) throw new ConflictError(`Job ${job.number} has no seats to sign off.`);
+      if (open.length > 0) {
+        const codes = open.map((s) => seatCode(s));
+        throw new ConflictError(
+          `Job ${job.number} cannot be signed off: ${codes.length === 1 ? "seat" : "seats"} ${codes.join(", ")} ${codes.length === 1 ? "is" : "are"} not approved yet.`,
+        );
+      }
+    }
+    const next: JobStatus = input.decision === "approved" ? "signed_off" : "at_bench";
+    await tx.update(jobs).set({ status: next, updatedAt: new Date() }).where(eq(jobs.id, job.id));
+    await tx.insert(reviews).values({ jobId: job.id, seatId: null, decision: input.decision, comment, reviewerId: actor.id });
+    await recordAudit(tx, {
+      actorId: actor.id,
+      action: input.decision === "approved" ? "job.signed_off" : "job.sent_back",
+      entityType: "job",
+      entityId: job.id,
+      jobId: job.id,
+      before: { status: job.status },
+      after: { status: next, comment },
+    });
+    return { jobId: job.id, number: job.number, status: next };
+  });
+}
+
+export async function reopenHead(db: Db, actor: Actor, input: { jobId: string; reason: string }): Promise<HeadReviewResult> {
+  assertSupervisor(actor);
+  const reason = requiredText(input.reason, "reason", 3);
+  return db.transaction(async (tx) => {
+    const job = await lockJob(tx, actor.shopId, input.jobId);
+    if (job.status !== "signed_off") {
+      throw new ConflictError(`Job ${job.number} is ${STATUS_WORDS[job.status]}; only a signed-off head can be reopened.`);
+    }
+    // The seats stay approved: the supervisor reopens the ones that need more work, one by one.
+    const next: JobStatus = "at_bench";
+    await tx.update(jobs).set({ status: next, updatedAt: new Date() }).where(eq(jobs.id, job.id));
+    await tx.insert(reviews).values({ jobId: job.id, seatId: null, decision: "reopened", comment: reason, reviewerId: actor.id });
+    await recordAudit(tx, {
+      actorId: actor.id,
+      action: "job.reopened",
+      entityType: "job",
+      entityId: job.id,
+      jobId: job.id,
+      before: { status: job.status },
+      after: { status: next, reason },
+    });
+    return { jobId: job.id, number: job.number, status: next };
+  });
+}

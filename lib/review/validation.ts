@@ -1,0 +1,48 @@
+// The review forms' shapes, shared by the actions and the JSON route alike.
+import { z } from "zod";
+
+const comment = z
+  .string({ error: "Write a comment." })
+  .trim()
+  .min(3, "Write at least 3 characters: what you checked, or what to redo.")
+  .max(2000, "Keep the comment under 2000 characters.");
+
+const reason = z
+  .string({ error: "Give a reason for reopening." })
+  .trim()
+  .min(3, "Give a reason of at least 3 characters: why this is being reopened.")
+  .max(2000, "Keep the reason under 2000 characters.");
+
+const decision = z.enum(["approved", "sent_back"], { error: "Choose approve or send back." });
+
+export const seatReviewSchema = z.object({ seatId: z.string().uuid("Unknown seat."), jobId: z.string().uuid("Unknown job."), decision, comment });
+export const seatReopenSchema = z.object({ seatId: z.string().uuid("Unknown seat."), jobId: z.string().uuid("Unknown job."), reason });
+export const headReviewSchema = z.object({ jobId: z.string().uuid("Unknown job."), decision, comment });
+export const headReopenSchema = z.object({ jobId: z.string().uuid("Unknown job."), reason });
+
+const optionalUuid = z
+  .string()
+  .trim()
+  .optional()
+  .transform((v) => (v ? v : undefined))
+  .pipe(z.string().uuid("Choose from the list.").optional());
+
+const optionalDay = z
+  .string()
+  .trim()
+  .optional()
+  .transform((v) => (v ? v : undefined))
+  .pipe(z.string().regex(/^\d{4}-\d{2}-\d{2}$/, "Use a date like 2026-03-14.").optional());
+
+/** The audit trail's filters, from a page's searchParams or a route's query string. */
+export const auditFilterSchema = z
+  .object({
+    job: optionalUuid,
+    person: optionalUuid,
+    from: optionalDay,
+    to: optionalDay,
+    page: z.coerce.number({ error: "Page must be a number." }).int().min(1).max(100_000).default(1),
+  })
+  .refine((f) => !f.from || !f.to || f.from <= f.to, { message: "The start date is after the end date.", path: ["to"] });
+
+export type AuditFilter = z.infer<typeof auditFilterSchema>;
