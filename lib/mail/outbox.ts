@@ -1,0 +1,185 @@
+// The mail outbox: a message is written to mail_outbox first and sent by the worker afterwards,
+// so a slow or unreachable mail server never holds up the action that produced the mail, and a
+// failed send is retried instead of lost.
+import { and, desc, eq, lte, or, sql } from "drizzle-orm";
+import type { Transporter } from "nodemailer";
+import { z } from "zod";
+import type { Db } from "@/db/client";
+import { jobs, mailOutbox, users, type MailOutboxRow } from "@/db/schema";
+
+/** After this many failed attempts a message stops being retried and shows as failed. */
+export const MAX_ATTEMPTS = 5;
+/**
+ * While a worker sends a message, the row's next attempt is pushed this far ahead. If the worker
+ * dies mid-send the message becomes due again after the lease, instead of staying stuck in
+ * "sending" for ever (it may then go out twice, which beats never).
+ */
+export const SENDING_LEASE_MS = 10 * 60_000;
+
+export const enqueueMailSchema = z.object({
+  kind: z.string().trim().min(1, "Say what kind of mail this is.").max(60),
+  jobId: z.uuid().nullish(),
+  recipients: z
+    // Trimmed and lower-cased before the check, so a pasted " Name@Shop.test" is accepted.
+    .array(z.string().trim().toLowerCase().pipe(z.email("Each recipient must be a valid e-mail address.")))
+    .min(1, "Give at least one recipient.")
+    .max(20, "At most 20 recipients per message.")
+    // The same address twice would only deliver the same message twice.
+    .transform((list) => [...new Set(list)]),
+  subject: z.string().trim().min(1, "Give the message a subject.").max(200, "Keep the subject to 200 characters."),
+  html: z.string().min(1),
+  text: z.string().min(1),
+  createdById: z.uuid().nullish(),
+});
+
+export type EnqueueMailInput = z.input<typeof enqueueMailSchema>;
+
+type Writer = Pick<Db, "insert">;
+
+/** Puts a message in the outbox, due at once. Accepts a transaction so a mail lands with its change. */
+export async function enqueueMail(db: Writer, input: EnqueueMailInput): Promise<string> {
+  const data = enqueueMailSchema.parse(input);
+  const [row] = await db
+    .insert(mailOutbox)
+    .values({
+      kind: data.kind,
+      jobId: data.jobId ?? null,
+      recipients: data.recipients,
+      subject: data.subject,
+      html: data.html,
+      text: data.text,
+      createdById: data.createdById ?? null,
+    })
+    .returning({ id: mailOutbox.id });
+  return row!.id;
+}
+
+/** Minutes until the next try after the given number of failed attempts: 1, 5, 25, 125… */
+export function backoffMs(attempts: number): number {
+  return 5 ** Math.max(0, attempts - 1) * 60_000;
+}
+
+export type MailSender = Pick<Transporter, "sendMail">;
+
+export interface ProcessResult {
+  sent: number;
+  retrying: number;
+  failed: number;
+}
+
+const due = (now: Date) =>
+  and(or(eq(mailOutbox.status, "queued"), eq(mailOutbox.status, "sending")), lte(mailOutbox.nextAttemptAt, now));
+
+/**
+ * Claims one due message. The claim is a single UPDATE whose WHERE repeats the due condition, so
+ * when two workers pick the same row only one of them gets it back.
+ */
+async function claimNext(db: Db, now: Date): Promise<MailOutboxRow | null> {
+  for (;;) {
+    const [candidate] = await db
+      .select({ id: mailOutbox.id })
+      .from(mailOutbox)
+      .where(due(now))
+      .orderBy(mailOutbox.nextAttemptAt, mailOutbox.createdAt)
+      .limit(1);
+    if (!candidate) return null;
+    const [claimed] = await db
+      .update(mailOutbox)
+      .set({ status: "sending", nextAttemptAt: new Date(now.getTime() + SENDING_LEASE_MS) })
+      .where(and(eq(mailOutbox.id, candidate.id), due(now)))
+      .returning();
+    if (claimed) return claimed;
+    // Someone else claimed it between our read and our write: look for the next one.
+  }
+}
+
+function describeError(err: unknown): string {
+  const message = err instanceof Error ? err.message : String(err);
+  return message.slice(0, 500) || "The mail server refused the message without saying why.";
+}
+
+/** Sends every message that is due, one at a time, and records each outcome on its row. */
+export async function processDueMail(
+  db: Db,
+  transport: MailSender,
+  now: Date = new Date(),
+  opts: { from?: string; limit?: number } = {},
+): Promise<ProcessResult> {
+  const from = opts.from ?? "Grindfade <no-reply@grindfade.local>";
+  const limit = opts.limit ?? 50;
+  const result: ProcessResult = { sent: 0, retrying: 0, failed: 0 };
+  for (let i = 0; i < limit; i++) {
+    const row = await claimNext(db, now);
+    if (!row) break;
+    try {
+      await transport.sendMail({ from, to: row.recipients, subject: row.subject, html: row.html, text: row.text });
+      await db
+        .update(mailOutbox)
+        .set({ status: "sent", sentAt: new Date(), lastError: null })
+        .where(and(eq(mailOutbox.id, row.id), eq(mailOutbox.status, "sending")));
+      result.sent++;
+    } catch (err) {
+      const attempts = row.attempts + 1;
+      const failed = attempts >= MAX_ATTEMPTS;
+      await db
+        .update(mailOutbox)
+        .set({
+          status: failed ? "failed" : "queued",
+          attempts,
+          lastError: describeError(err),
+          nextAttemptAt: new Date(now.getTime() + backoffMs(attempts)),
+        })
+        .where(and(eq(mailOutbox.id, row.id), eq(mailOutbox.status, "sending")));
+      if (failed) result.failed++;
+      else result.retrying++;
+    }
+  }
+  return result;
+}
+
+/** An admin's "send again": a failed message goes back to the queue, due now, with fresh attempts. */
+export async function retryMail(db: Pick<Db, "update">, id: string, now: Date = new Date()): Promise<boolean> {
+  const [row] = await db
+    .update(mailOutbox)
+    .set({ status: "queued", attempts: 0, nextAttemptAt: now })
+    .where(and(eq(mailOutbox.id, id), eq(mailOutbox.status, "failed")))
+    .returning({ id: mailOutbox.id });
+  return Boolean(row);
+}
+
+/**
+ * A shop's mail, newest first. The outbox has no shop column, so a message belongs to the shop of
+ * its job or, without a job, of the person who queued it.
+ */
+export async function listShopMail(db: Db, shopId: string, limit = 200) {
+  return db
+    .select({
+      id: mailOutbox.id,
+      kind: mailOutbox.kind,
+      recipients: mailOutbox.recipients,
+      subject: mailOutbox.subject,
+      status: mailOutbox.status,
+      attempts: mailOutbox.attempts,
+      lastError: mailOutbox.lastError,
+      nextAttemptAt: mailOutbox.nextAttemptAt,
+      sentAt: mailOutbox.sentAt,
+      createdAt: mailOutbox.createdAt,
+    })
+    .from(mailOutbox)
+    .leftJoin(jobs, eq(jobs.id, mailOutbox.jobId))
+    .leftJoin(users, eq(users.id, mailOutbox.createdById))
+    .where(sql`coalesce(${jobs.shopId}, ${users.shopId}) = ${shopId}`)
+    .orderBy(desc(mailOutbox.createdAt))
+    .limit(limit);
+}
+
+export async function mailBelongsToShop(db: Db, id: string, shopId: string): Promise<boolean> {
+  const [row] = await db
+    .select({ id: mailOutbox.id })
+    .from(mailOutbox)
+    .leftJoin(jobs, eq(jobs.id, mailOutbox.jobId))
+    .leftJoin(users, eq(users.id, mailOutbox.createdById))
+    .where(and(eq(mailOutbox.id, id), sql`coalesce(${jobs.shopId}, ${users.shopId}) = ${shopId}`))
+    .limit(1);
+  return Boolean(row);
+}
