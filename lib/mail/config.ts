@@ -27,7 +27,7 @@ export interface MailConfig {
   fakeMailDir: string;
 }
 
-export function mailConfig(env: NodeJS.ProcessEnv = process.env): MailConfig {
+export function mailConfig(env: Record<string, string | undefined> = process.env): MailConfig {
   const raw = Object.fromEntries(Object.entries(env).filter(([, v]) => v !== undefined && v !== ""));
   const parsed = schema.safeParse(raw);
   if (!parsed.success) {
