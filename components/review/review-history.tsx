@@ -1,0 +1,36 @@
+import type { ReviewRow } from "@/db/queries/reviews";
+
+const DECISION_LABELS: Record<ReviewRow["decision"], string> = {
+  approved: "Approved",
+  sent_back: "Sent back",
+  reopened: "Reopened",
+};
+
+const DECISION_STYLES: Record<ReviewRow["decision"], string> = {
+  approved: "bg-emerald-100 text-emerald-900",
+  sent_back: "bg-amber-100 text-amber-900",
+  reopened: "bg-sky-100 text-sky-900",
+};
+
+const fmt = new Intl.DateTimeFormat("en-GB", { dateStyle: "medium", timeStyle: "short", timeZone: "UTC" });
+
+/** The decisions already taken, newest first, as the reviews query returns them. */
+export function ReviewHistory({ reviews, emptyText }: { reviews: ReviewRow[]; emptyText: string }) {
+  if (reviews.length === 0) return <p className="text-sm text-stone-600">{emptyText}</p>;
+  return (
+    <ol className="flex flex-col gap-2" aria-label="Review history">
+      {reviews.map((r) => (
+        <li key={r.id} className="rounded-lg border border-stone-200 p-2 text-sm">
+          <div className="flex flex-wrap items-baseline gap-2">
+            <span className={`rounded-full px-2 py-0.5 font-semibold ${DECISION_STYLES[r.decision]}`}>{DECISION_LABELS[r.decision]}</span>
+            <span className="font-semibold">{r.reviewerName}</span>
+            <time dateTime={r.createdAt} className="text-stone-600">
+              {fmt.format(new Date(r.createdAt))} UTC
+            </time>
+          </div>
+          <p className="mt-1 whitespace-pre-wrap">{r.comment}</p>
+        </li>
+      ))}
+    </ol>
+  );
+}

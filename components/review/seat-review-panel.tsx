@@ -1,0 +1,135 @@
+"use client";
+
+import { useActionState } from "react";
+import type { ReviewRow } from "@/db/queries/reviews";
+import type { SeatState } from "@/db/schema";
+import { submitSeatReopen, submitSeatReview } from "@/lib/actions/review";
+import { initialActionState } from "@/lib/actions/state";
+import { ReviewHistory } from "./review-history";
+
+export interface SeatReviewPanelProps {
+  jobId: string;
+  seat: { id: string; code: string; state: SeatState };
+  /** This seat's reviews, newest first (getReviews filtered to the seat). */
+  reviews: ReviewRow[];
+  /** Whether the signed-in person is a supervisor; others see the history only. */
+  canReview: boolean;
+  /** True while the head is signed off: a seat is reopened only after its head is. */
+  headClosed: boolean;
+}
+
+const STATE_LABELS: Record<SeatState, string> = {
+  waiting: "Waiting",
+  lapping: "Lapping",
+  settled: "Settled",
+  stalled: "Stalled",
+  approved: "Approved",
+  sent_back: "Sent back",
+};
+
+/** Approve or send back one seat with a comment, or reopen an approved one with a reason. */
+export function SeatReviewPanel({ jobId, seat, reviews, canReview, headClosed }: SeatReviewPanelProps) {
+  const [reviewState, reviewAction, reviewing] = useActionState(submitSeatReview, initialActionState);
+  const [reopenState, reopenAction, reopening] = useActionState(submitSeatReopen, initialActionState);
+  const canApprove = seat.state === "settled";
+  const canSendBack = seat.state === "settled" || seat.state === "stalled" || seat.state === "lapping";
+  const headingId = `seat-review-${seat.id}`;
+
+  return (
+    <section aria-labelledby={headingId} className="flex flex-col gap-3 rounded-xl border border-stone-300 bg-white p-4" data-testid="seat-review-panel">
+      <h3 id={headingId} className="text-lg font-semibold">
+        Seat {seat.code} · <span className="font-normal">{STATE_LABELS[seat.state]}</span>
+      </h3>
+
+      {canReview && !headClosed && seat.state !== "approved" && (canApprove || canSendBack) ? (
+        <form action={reviewAction} className="flex flex-col gap-2">
+          <input type="hidden" name="jobId" value={jobId} />
+          <input type="hidden" name="seatId" value={seat.id} />
+          <label className="flex flex-col gap-1 text-sm font-semibold">
+            Comment
+            <textarea
+              name="comment"
+              required
+              minLength={3}
+              maxLength={2000}
+              rows={3}
+              aria-invalid={Boolean(reviewState.fieldErrors.comment)}
+              aria-describedby={reviewState.fieldErrors.comment ? `${headingId}-comment-error` : undefined}
+              className="rounded-lg border border-stone-400 p-2 font-normal"
+              placeholder="What you checked (band width, evenness), or what to redo"
+            />
+          </label>
+          {reviewState.fieldErrors.comment ? (
+            <p id={`${headingId}-comment-error`} className="text-sm text-rose-700">
+              {reviewState.fieldErrors.comment[0]}
+            </p>
+          ) : null}
+          <div className="flex flex-wrap gap-2">
+            {canApprove ? (
+              <button
+                type="submit"
+                name="decision"
+                value="approved"
+                disabled={reviewing}
+                className="min-h-12 rounded-lg bg-emerald-700 px-4 font-semibold text-white disabled:opacity-60"
+              >
+                Approve seat
+              </button>
+            ) : null}
+            {canSendBack ? (
+              <button
+                type="submit"
+                name="decision"
+                value="sent_back"
+                disabled={reviewing}
+                className="min-h-12 rounded-lg border-2 border-ink bg-white px-4 font-semibold disabled:opacity-60"
+              >
+                Send back to the bench
+              </button>
+            ) : null}
+          </div>
+          {!canApprove ? <p className="text-sm text-stone-600">Only a settled seat can be approved.</p> : null}
+          <p aria-live="polite" className={`text-sm ${reviewState.ok ? "text-emerald-800" : "text-rose-700"}`}>
+            {reviewState.message}
+          </p>
+        </form>
+      ) : null}
+
+      {canReview && seat.state === "approved" ? (
+        headClosed ? (
+          <p className="text-sm text-stone-600">The head is signed off. Reopen the head first to reopen this seat.</p>
+        ) : (
+          <form action={reopenAction} className="flex flex-col gap-2">
+            <input type="hidden" name="jobId" value={jobId} />
+            <input type="hidden" name="seatId" value={seat.id} />
+            <label className="flex flex-col gap-1 text-sm font-semibold">
+              Reason for reopening
+              <textarea
+                name="reason"
+                required
+                minLength={3}
+                maxLength={2000}
+                rows={2}
+                aria-invalid={Boolean(reopenState.fieldErrors.reason)}
+                className="rounded-lg border border-stone-400 p-2 font-normal"
+              />
+            </label>
+            {reopenState.fieldErrors.reason ? <p className="text-sm text-rose-700">{reopenState.fieldErrors.reason[0]}</p> : null}
+            <button
+              type="submit"
+              disabled={reopening}
+              className="min-h-12 self-start rounded-lg border-2 border-ink bg-white px-4 font-semibold disabled:opacity-60"
+            >
+              Reopen seat
+            </button>
+            <p aria-live="polite" className={`text-sm ${reopenState.ok ? "text-emerald-800" : "text-rose-700"}`}>
+              {reopenState.message}
+            </p>
+          </form>
+        )
+      ) : null}
+
+      <ReviewHistory reviews={reviews} emptyText="No review of this seat yet." />
+    </section>
+  );
+}
