@@ -1,8 +1,8 @@
 // A job's review history: every approval, send-back and reopening, newest first, with who
 // decided and on which seat (null for the head as a whole).
-import { and, desc, eq } from "drizzle-orm";
+import { and, asc, desc, eq, ne } from "drizzle-orm";
 import type { Db } from "@/db/client";
-import { jobs, reviews, seats, users } from "@/db/schema";
+import { heads, jobs, reviews, seats, users } from "@/db/schema";
 import { seatCode } from "@/lib/heads/layout";
 
 export interface ReviewRow {
@@ -37,4 +37,16 @@ export async function getReviews(db: Db, shopId: string, jobId: string): Promise
     reviewerName,
     createdAt: review.createdAt.toISOString(),
   }));
+}
+
+/** The codes of a job's seats not approved yet, in head order; empty when the head can be signed off. */
+export async function getUnapprovedSeatCodes(db: Db, shopId: string, jobId: string): Promise<string[]> {
+  const rows = await db
+    .select({ seat: seats })
+    .from(seats)
+    .innerJoin(heads, eq(heads.id, seats.headId))
+    .innerJoin(jobs, eq(jobs.id, heads.jobId))
+    .where(and(eq(jobs.id, jobId), eq(jobs.shopId, shopId), ne(seats.state, "approved")))
+    .orderBy(asc(seats.cylinder), asc(seats.kind), asc(seats.position));
+  return rows.map((r) => seatCode(r.seat));
 }

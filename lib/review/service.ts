@@ -60,6 +60,10 @@ function requiredText(value: string, field: "comment" | "reason", min: number): 
 
 type Tx = Parameters<Parameters<Db["transaction"]>[0]>[0];
 
+/**
+ * Locks the seat with its head and job, so a seat decision and a head decision on the same job
+ * run one after the other: the head is never signed off while a seat is changing under it.
+ */
 async function lockSeat(tx: Tx, shopId: string, seatId: string) {
   const [row] = await tx
     .select({ seat: seats, job: jobs })
