@@ -1,11 +1,14 @@
 // Server start-up: open the database, apply migrations and seed the demo shop before the first
-// request; stop the process with one clear line if that fails.
-import { getDatabase } from "@/db/client";
+// request, then start the mail worker; stop the process with one clear line if the database
+// cannot be used.
+import { getDatabase, getDb } from "@/db/client";
+import { startMailWorker } from "@/lib/mail/worker";
 
 export async function startServer(): Promise<void> {
   try {
     const { kind } = await getDatabase();
     console.log(`Grindfade database ready (${kind}).`);
+    startMailWorker(getDb, 30_000);
   } catch (err) {
     console.error(`Grindfade cannot start: ${err instanceof Error ? err.message : String(err)}`);
     process.exit(1);
