@@ -1,0 +1,131 @@
+import type { Metadata } from "next";
+import Link from "next/link";
+import { notFound } from "next/navigation";
+import { z } from "zod";
+import { getDb } from "@/db/client";
+import { SessionReview } from "@/components/review/session-review";
+import { requireActor } from "@/lib/auth/guard";
+import { getSeatReport, type StageRecord } from "@/lib/bench/service";
+import { NotFoundError } from "@/lib/errors";
+
+export const metadata: Metadata = { title: "Session review" };
+
+const STAGE_NAME = { coarse: "Coarse", fine: "Fine" } as const;
+
+type Listed = StageRecord["sessions"][number] & { stage: StageRecord["stage"] };
+
+function when(iso: string): string {
+  return new Date(iso).toLocaleString("en-GB", { dateStyle: "medium", timeStyle: "short", timeZone: "UTC" }) + " UTC";
+}
+
+export default async function ReviewPage({ params, searchParams }: PageProps<"/review/[seatId]">) {
+  const actor = await requireActor("jobs:read");
+  const { seatId } = await params;
+  const { session: wanted } = await searchParams;
+  if (!z.string().uuid().safeParse(seatId).success) notFound();
+  const report = await getSeatReport(await getDb(), actor, seatId).catch((err: unknown) => {
+    if (err instanceof NotFoundError) notFound();
+    throw err;
+  });
+  const all: Listed[] = [
+    ...report.stages.coarse.sessions.map((s) => ({ ...s, stage: "coarse" as const })),
+    ...report.stages.fine.sessions.map((s) => ({ ...s, stage: "fine" as const })),
+  ].sort((a, b) => a.startedAt.localeCompare(b.startedAt));
+  // The one asked for; otherwise the latest that can be listened to; otherwise the latest at all.
+  const chosen =
+    (typeof wanted === "string" ? all.find((s) => s.id === wanted) : undefined) ??
+    [...all].reverse().find((s) => s.hasRecording) ??
+    all[all.length - 1];
+  const stage = chosen ? report.stages[chosen.stage] : null;
+  const strokes = chosen && stage ? stage.strokes.filter((s) => s.sessionId === chosen.id) : [];
+
+  return (
+    <div className="flex flex-col gap-4">
+      <Link href={`/jobs/${report.job.id}`} className="text-sm font-semibold text-brass-dark underline-offset-2 hover:underline">
+        ← {report.job.number}
+      </Link>
+      <div>
+        <h1 className="text-2xl font-bold tracking-tight">
+          Seat {report.seat.code} <span className="font-normal text-stone-600">· {report.seat.label}</span>
+        </h1>
+        <p className="text-stone-700">
+          {report.head.label}
+          {report.seat.valveTag ? ` · valve ${report.seat.valveTag}` : ""}
+        </p>
+      </div>
+      {all.length === 0 ? (
+        <p className="rounded-xl border border-dashed border-stone-400 p-6 text-center">
+          Nobody has lapped this seat yet, so there is nothing to review.
+        </p>
+      ) : (
+        <>
+          <nav aria-label="Sessions" className="flex flex-col gap-2">
+            <h2 className="text-sm font-semibold text-stone-600">Sessions on this seat</h2>
+            <ul className="flex flex-wrap gap-2">
+              {all.map((s) => {
+                const current = s.id === chosen?.id;
+                return (
+                  <li key={s.id}>
+                    <Link
+                      href={`/review/${seatId}?session=${s.id}`}
+                      aria-current={current ? "page" : undefined}
+                      className={`inline-flex min-h-12 flex-col justify-center rounded-lg border px-3 text-sm ${
+                        current ? "border-ink bg-ink text-white" : "border-stone-300 bg-white hover:border-stone-500"
+                      }`}
+                    >
+                      <span className="font-semibold">
+                        {STAGE_NAME[s.stage]} · {s.technicianName}
+                      </span>
+                      <span className={current ? "text-stone-200" : "text-stone-500"}>
+                        {when(s.startedAt)}
+                        {s.hasRecording ? "" : " · not recorded"}
+                      </span>
+                    </Link>
+                  </li>
+                );
+              })}
+            </ul>
+          </nav>
+          {chosen && stage ? (
+            <>
+              <p className="text-stone-700">
+                {STAGE_NAME[chosen.stage]} stage verdict for the seat:{" "}
+                <span className="font-semibold">{verdictText(stage)}</span>
+              </p>
+              <SessionReview
+                key={chosen.id}
+                sessionId={chosen.id}
+                hasRecording={chosen.hasRecording}
+                strokes={strokes.map(({ n, startS, endS, onsetDb, bodyDb, contrastDb, flags }) => ({
+                  n,
+                  startS,
+                  endS,
+                  onsetDb,
+                  bodyDb,
+                  contrastDb,
+                  flags,
+                }))}
+                fit={stage.verdict.fit}
+                thresholdDb={stage.verdict.rule.maxContrastDb}
+              />
+            </>
+          ) : null}
+        </>
+      )}
+    </div>
+  );
+}
+
+function verdictText(stage: StageRecord): string {
+  const v = stage.verdict;
+  switch (v.state) {
+    case "settled":
+      return `settled at stroke ${v.settled?.atStroke ?? "?"}`;
+    case "not-settling":
+      return "not settling — check the compound and the seat";
+    case "fading":
+      return v.strokesRemaining !== null ? `fading, about ${v.strokesRemaining} strokes to go` : "fading";
+    default:
+      return "no strokes yet";
+  }
+}
