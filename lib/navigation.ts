@@ -12,9 +12,11 @@ const MY_WORK: NavItem = { href: "/jobs?mine=1", label: "My work" };
 const AUDIT: NavItem = { href: "/jobs?status=awaiting_audit", label: "Awaiting audit" };
 const PEOPLE: NavItem = { href: "/admin/people", label: "People" };
 const SPECS: NavItem = { href: "/specs", label: "Specifications" };
+const TRAIL: NavItem = { href: "/audit", label: "Audit trail" };
+const OUTBOX: NavItem = { href: "/admin/outbox", label: "Outbox" };
 
 export const NAVIGATION: Record<UserRole, readonly NavItem[]> = {
   technician: [BOARD, MY_WORK],
-  supervisor: [BOARD, AUDIT, MY_WORK, SPECS],
-  admin: [BOARD, AUDIT, SPECS, PEOPLE],
+  supervisor: [BOARD, AUDIT, MY_WORK, SPECS, TRAIL],
+  admin: [BOARD, AUDIT, SPECS, TRAIL, PEOPLE, OUTBOX],
 };

@@ -9,6 +9,9 @@ import { JobStatusActions } from "@/components/jobs/job-status-actions";
 import { ValveList, type ValveRow } from "@/components/jobs/valve-list";
 import { Cautions } from "@/components/sheets/cautions";
 import { SpecFigureForm } from "@/components/specs/spec-forms";
+import { HeadReviewPanel } from "@/components/review/head-review-panel";
+import { SeatReviewPanel } from "@/components/review/seat-review-panel";
+import { getReviews, getUnapprovedSeatCodes } from "@/db/queries/reviews";
 import { effectiveSpecs } from "@/lib/specs/effective";
 import { SPEC_KEYS } from "@/lib/specs/keys";
 import { requireActor } from "@/lib/auth/guard";
@@ -28,6 +31,9 @@ export default async function JobPage({ params }: PageProps<"/jobs/[jobId]">) {
   if (!job) notFound();
   const closed = isClosed(job.status);
   const specs = [...(await effectiveSpecs(db, job.id)).values()];
+  const reviews = await getReviews(db, actor.shopId, job.id);
+  const unapproved = await getUnapprovedSeatCodes(db, actor.shopId, job.id);
+  const canReview = actor.role === "supervisor";
   const range = (v: { min: number | null; max: number | null; limit: number | null; nominal: number | null }) =>
     [v.nominal !== null ? `${v.nominal}` : null, v.min !== null || v.max !== null ? `${v.min ?? "…"}–${v.max ?? "…"}` : null, v.limit !== null ? `limit ${v.limit}` : null]
       .filter(Boolean)
@@ -144,6 +150,43 @@ export default async function JobPage({ params }: PageProps<"/jobs/[jobId]">) {
                   recorded.
                 </p>
                 <ValveList jobId={job.id} valves={valves} seats={head.seats.map((s) => ({ id: s.id, code: seatCode(s), kind: s.kind }))} closed={closed} />
+              </details>
+              <details className="rounded-xl border border-stone-300 bg-white p-3" open={job.status === "awaiting_audit" && canReview}>
+                <summary className="min-h-10 cursor-pointer font-semibold">Audit and sign-off</summary>
+                <div className="mt-2 flex flex-col gap-3">
+                  <div className="flex flex-wrap gap-2 text-sm">
+                    <a href={`/jobs/${job.id}/report`} className="inline-flex min-h-12 items-center rounded-lg border-2 border-ink px-4 font-semibold">
+                      Head report
+                    </a>
+                  </div>
+                  <HeadReviewPanel
+                    jobId={job.id}
+                    jobNumber={job.number}
+                    status={job.status}
+                    unapprovedSeatCodes={unapproved}
+                    reviews={reviews.filter((r) => r.seatId === null)}
+                    canReview={canReview}
+                  />
+                  <ul className="grid grid-cols-1 gap-2 md:grid-cols-2">
+                    {head.seats.map((s) => (
+                      <li key={s.id} className="rounded-lg border border-stone-200 p-2">
+                        <div className="mb-1 flex items-center justify-between text-sm">
+                          <span className="figure font-bold">{seatCode(s)}</span>
+                          <a href={`/review/${s.id}`} className="font-semibold text-brass-dark underline-offset-2 hover:underline">
+                            Listen back
+                          </a>
+                        </div>
+                        <SeatReviewPanel
+                          jobId={job.id}
+                          seat={{ id: s.id, code: seatCode(s), state: s.state }}
+                          reviews={reviews.filter((r) => r.seatId === s.id)}
+                          canReview={canReview}
+                          headClosed={closed}
+                        />
+                      </li>
+                    ))}
+                  </ul>
+                </div>
               </details>
             </section>
           );
