@@ -7,6 +7,7 @@ import { heads, jobs, reviews, seats, type JobStatus, type SeatState } from "@/d
 import type { Actor } from "@/lib/auth/guard";
 import { recordAudit } from "@/lib/audit";
 import { BadRequestError, ConflictError, ForbiddenError, NotFoundError } from "@/lib/errors";
+import { queueHeadReportMail } from "@/lib/mail/head-report-mail";
 import { seatCode } from "@/lib/heads/layout";
 import { isClosed } from "@/lib/jobs/lifecycle";
 
@@ -211,6 +212,8 @@ export async function reviewHead(
       before: { status: job.status },
       after: { status: next, comment },
     });
+    // The customer's record goes out with the sign-off, or not at all.
+    if (input.decision === "approved") await queueHeadReportMail(tx, job.id, actor.id, comment);
     return { jobId: job.id, number: job.number, status: next };
   });
 }
