@@ -74,6 +74,26 @@ export function SessionReview({
     latest.current = { strokes, byN, thresholdDb };
   });
 
+  const failPlayback = useCallback(() => {
+    compareStep.current = null;
+    setPlaying(null);
+    setMessage("The browser would not play the recording. Tap again, or check the phone is not on silent.");
+  }, []);
+
+  const playStroke = useCallback(
+    (n: number) => {
+      const s = latest.current.byN.get(n);
+      const w = ws.current;
+      if (!s || !w) return;
+      if (compareTimer.current !== null) window.clearTimeout(compareTimer.current);
+      compareStep.current = null;
+      setMessage(null);
+      setActive(n);
+      setPlaying({ kind: "stroke", n });
+      w.play(s.startS, s.endS).catch(failPlayback);
+    },
+    [failPlayback],
+  );
   useEffect(() => {
     const el = waveBox.current;
     if (!hasRecording || !el) return;
@@ -124,7 +144,7 @@ export function SessionReview({
         plugin.on("region-clicked", (region, e) => {
           e.stopPropagation();
           const n = Number(region.id.replace("stroke-", ""));
-          if (Number.isFinite(n)) playStrokeRef.current(n);
+          if (Number.isFinite(n)) playStroke(n);
         });
         // While the recording plays through, the stroke being heard is the active one.
         plugin.on("region-in", (region) => setActive(Number(region.id.replace("stroke-", ""))));
@@ -147,7 +167,7 @@ export function SessionReview({
       ws.current = null;
       marked.clear();
     };
-  }, [hasRecording, sessionId]);
+  }, [hasRecording, sessionId, playStroke]);
 
   // Regions follow the active stroke: stronger colour and an outline.
   useEffect(() => {
@@ -156,34 +176,9 @@ export function SessionReview({
       if (!s) continue;
       const on = n === active;
       region.setOptions({ color: contrastColour(s.contrastDb, thresholdDb, on ? 0.6 : 0.28) });
-      if (region.element) region.element.style.outline = on ? `2px solid ${INK}` : "";
+      region.element?.style.setProperty("outline", on ? `2px solid ${INK}` : "");
     }
   }, [active, byN, thresholdDb, regionCount]);
-
-  const failPlayback = useCallback(() => {
-    compareStep.current = null;
-    setPlaying(null);
-    setMessage("The browser would not play the recording. Tap again, or check the phone is not on silent.");
-  }, []);
-
-  const playStroke = useCallback(
-    (n: number) => {
-      const s = latest.current.byN.get(n);
-      const w = ws.current;
-      if (!s || !w) return;
-      if (compareTimer.current !== null) window.clearTimeout(compareTimer.current);
-      compareStep.current = null;
-      setMessage(null);
-      setActive(n);
-      setPlaying({ kind: "stroke", n });
-      w.play(s.startS, s.endS).catch(failPlayback);
-    },
-    [failPlayback],
-  );
-  const playStrokeRef = useRef(playStroke);
-  useEffect(() => {
-    playStrokeRef.current = playStroke;
-  });
 
   const compare = useCallback(() => {
     const list = latest.current.strokes;

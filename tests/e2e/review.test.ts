@@ -113,6 +113,38 @@ describe("session review on a phone", () => {
     expect(await page.getByTestId("review-message").count(), await page.getByTestId("review-message").allInnerTexts().then(String)).toBe(0);
   });
 
+  it("highlights a stroke in the table and the curve when its region is hovered, and plays it on a tap", async () => {
+    const review = page.getByTestId("session-review");
+    // Regions live in wavesurfer's shadow root; Playwright's locators reach into it.
+    const region = page.getByTestId("waveform").locator('[data-stroke="2"]');
+    await region.hover();
+    await expect.poll(() => review.getAttribute("data-active")).toBe("2");
+    expect(await page.getByTestId("stroke-table").locator('tr[data-stroke="2"]').getAttribute("aria-selected")).toBe("true");
+    expect(await page.getByTestId("review-fade-chart").getAttribute("data-active")).toBe("2");
+    await region.click();
+    await expect.poll(() => review.getAttribute("data-playing"), { timeout: 5_000 }).toBe("stroke-2");
+    await expect.poll(() => review.getAttribute("data-playing"), { timeout: 10_000 }).toBe("");
+  });
+
+  it("plays the first stroke's start, then the last stroke's", async () => {
+    const review = page.getByTestId("session-review");
+    const seen = new Set<string>();
+    await page.getByRole("button", { name: "Compare first and last" }).click();
+    await expect
+      .poll(
+        async () => {
+          seen.add((await review.getAttribute("data-playing")) ?? "");
+          return seen.has("compare-last");
+        },
+        { timeout: 5_000, interval: 50 },
+      )
+      .toBe(true);
+    expect(seen.has("compare-first")).toBe(true);
+    expect(await review.getAttribute("data-active")).toBe(String(contrasts.length));
+    await expect.poll(() => review.getAttribute("data-playing"), { timeout: 5_000 }).toBe("");
+    expect(await page.getByTestId("review-message").count()).toBe(0);
+  });
+
   it("says so for a session with no recording", async () => {
     const other = randomUUID();
     const started = await page.request.post(`${baseURL}/api/seats/${seatId}/sessions`, {
