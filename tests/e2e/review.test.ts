@@ -34,7 +34,7 @@ beforeAll(async () => {
   jobId = jobs.find((j) => j.number === "MHW-0141")!.id;
   // The seat's id, as the job page's seat map links it.
   await page.goto(`${baseURL}/jobs/${jobId}`);
-  seatId = (await page.getByTestId("seat-map").locator('a[aria-label^="Cylinder 3 exhaust 1,"]').getAttribute("data-seat-id"))!;
+  seatId = (await page.getByTestId("seat-map").locator('a[aria-label^="Cylinder 2 exhaust 1,"]').getAttribute("data-seat-id"))!;
   expect(seatId).toMatch(/^[0-9a-f-]{36}$/);
 
   const sampleRate = 16000;
