@@ -86,7 +86,7 @@ describe("recording upload", () => {
     signInAs("ines@millrace.example");
     const res = await upload(new TextEncoder().encode("hello"), { "content-type": "text/plain" });
     expect(res.status).toBe(415);
-    expect(await bodyOf(res)).toMatchObject({ error: "unsupported_media_type", message: expect.stringMatching(/WebM, Ogg, MP4 or WAV/) });
+    expect(await bodyOf(res)).toMatchObject({ error: "unsupported_media_type", message: expect.stringMatching(/WebM, Ogg Opus or WAV/) });
   });
 
   it("refuses a declared size over the limit with 413 before reading the body", async () => {
@@ -101,6 +101,9 @@ describe("recording upload", () => {
   it("refuses an undeclared body that grows past the limit with 413, keeping no part of it", async () => {
     signInAs("ines@millrace.example");
     const chunk = new Uint8Array(1024 * 1024);
+    // Starts like a real Ogg Opus file, since the route reads the kind from the first bytes.
+    const oggOpus = new TextEncoder().encode("OggS\0\x02\0\0\0\0\0\0\0\0\0\0\0\0\0\0\0\0\0\0\0\0\x01\x13OpusHead");
+    chunk.set(oggOpus);
     let sent = 0;
     // One byte more than the route's 64 MB limit, in 1 MB pieces, with no content-length.
     const stream = new ReadableStream<Uint8Array>({
