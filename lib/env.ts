@@ -17,6 +17,12 @@ const schema = z.object({
   GRINDFADE_SIGNIN_LOCK_MINUTES: z.coerce.number().int().min(1).max(24 * 60).default(15),
   NEXTAUTH_SECRET: z.string().min(16).optional(),
   NEXTAUTH_URL: z.string().url().optional(),
+  // Recordings and photos go to this S3 bucket instead of the data directory when it is set.
+  GRINDFADE_S3_BUCKET: z.string().trim().min(3).max(63).optional(),
+  GRINDFADE_S3_ENDPOINT: z.string().url().optional(),
+  GRINDFADE_S3_REGION: z.string().trim().min(1).default("us-east-1"),
+  AWS_ACCESS_KEY_ID: z.string().min(1).optional(),
+  AWS_SECRET_ACCESS_KEY: z.string().min(1).optional(),
 });
 
 export type ServerEnv = z.infer<typeof schema> & { dataDir: string; pgliteDir: string };

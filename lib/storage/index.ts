@@ -1,11 +1,12 @@
 // Where recordings and photos are kept. One small interface; files under the data directory
-// by default. (An object-storage implementation plugs in behind the same interface.)
+// by default, S3-compatible object storage (./s3.ts) when GRINDFADE_S3_BUCKET is set.
 import fs from "node:fs";
 import fsp from "node:fs/promises";
 import path from "node:path";
 import { Readable } from "node:stream";
 import { pipeline } from "node:stream/promises";
 import { serverEnv } from "@/lib/env";
+import { S3Store } from "./s3";
 
 export interface StoredObject {
   key: string;
@@ -34,11 +35,16 @@ export class TooLargeError extends Error {
 
 const SAFE_KEY = /^[a-z0-9][a-z0-9/_.-]{0,200}$/i;
 
+/** Keys come from our own ids, but are checked anyway: a key must never climb out of its root. */
+export function assertSafeKey(key: string): void {
+  if (!SAFE_KEY.test(key) || key.includes("..")) throw new Error(`unsafe storage key ${JSON.stringify(key)}`);
+}
+
 export class LocalDiskStore implements BlobStore {
   constructor(private readonly root: string) {}
 
   private file(key: string): string {
-    if (!SAFE_KEY.test(key) || key.includes("..")) throw new Error(`unsafe storage key ${JSON.stringify(key)}`);
+    assertSafeKey(key);
     return path.join(this.root, key);
   }
 
@@ -99,7 +105,29 @@ export class LocalDiskStore implements BlobStore {
 
 let store: BlobStore | null = null;
 
+/** The configured store, made once per process. */
 export function blobStore(): BlobStore {
-  store ??= new LocalDiskStore(path.join(serverEnv().dataDir, "blobs"));
+  store ??= makeStore();
   return store;
+}
+
+function makeStore(): BlobStore {
+  const env = serverEnv();
+  if (!env.GRINDFADE_S3_BUCKET) return new LocalDiskStore(path.join(env.dataDir, "blobs"));
+  const credentials =
+    env.AWS_ACCESS_KEY_ID && env.AWS_SECRET_ACCESS_KEY
+      ? { accessKeyId: env.AWS_ACCESS_KEY_ID, secretAccessKey: env.AWS_SECRET_ACCESS_KEY }
+      : undefined;
+  return new S3Store({
+    bucket: env.GRINDFADE_S3_BUCKET,
+    region: env.GRINDFADE_S3_REGION,
+    ...(env.GRINDFADE_S3_ENDPOINT ? { endpoint: env.GRINDFADE_S3_ENDPOINT } : {}),
+    // Without both keys the SDK's own chain (profile, instance role) supplies them.
+    ...(credentials ? { credentials } : {}),
+  });
+}
+
+/** For tests that change the configuration between cases. */
+export function resetBlobStore(): void {
+  store = null;
 }
