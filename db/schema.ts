@@ -286,6 +286,30 @@ export const lappingSessions = pgTable(
   ],
 );
 
+// Photos of a seat's contact ring (on the valve face and on the seat), taken at the bench. The
+// image itself is kept in blob storage under key; the row says whose it is and what it is.
+export const seatPhotos = pgTable(
+  "seat_photos",
+  {
+    id: uuid("id").primaryKey().defaultRandom(),
+    seatId: uuid("seat_id")
+      .notNull()
+      .references(() => seats.id, { onDelete: "cascade" }),
+    key: text("key").notNull(),
+    type: text("type").notNull(),
+    bytes: integer("bytes").notNull(),
+    takenById: uuid("taken_by_id")
+      .notNull()
+      .references(() => users.id, { onDelete: "restrict" }),
+    createdAt: timestamp("created_at", { withTimezone: true }).notNull().defaultNow(),
+  },
+  (t) => [
+    index("seat_photos_seat_idx").on(t.seatId, t.createdAt),
+    unique("seat_photos_key_unique").on(t.key),
+    check("seat_photos_bytes_positive", sql`${t.bytes} > 0`),
+  ],
+);
+
 export const strokes = pgTable(
   "strokes",
   {
