@@ -2,6 +2,7 @@
 // IndexedDB first and sent from there, so a dropped network or a reload loses nothing. Sends
 // are idempotent on the server (client-made ids), so sending twice is harmless.
 import { openDB, type DBSchema, type IDBPDatabase } from "idb";
+import { UploadRefusedError, uploadInChunks } from "@/lib/storage/chunked-upload";
 import type { StartSessionInput, StrokeInput } from "@/lib/validations/bench";
 
 export type OutboxOp =
@@ -46,6 +47,27 @@ async function send(fetchFn: Fetch, url: string, init: RequestInit): Promise<Sen
     return { kind: "retry", reason: `HTTP ${res.status}` };
   }
   return { kind: "refused", status: res.status, message: body?.message ?? `Refused (HTTP ${res.status}).` };
+}
+
+/**
+ * Recordings go up in chunks that resume where the server stopped, so a dropped connection
+ * halfway through a long session resends only the rest. The outbox's own later runs are the
+ * long retry, so the uploader retries only briefly here.
+ */
+async function sendRecording(fetchFn: Fetch, sessionId: string, blob: Blob): Promise<SendResult> {
+  try {
+    await uploadInChunks(`/api/sessions/${sessionId}/recording/chunks`, blob, {
+      fetchFn: fetchFn as typeof fetch,
+      maxRetries: 2,
+      retryDelayMs: () => 250,
+    });
+    return { kind: "sent" };
+  } catch (err) {
+    if (err instanceof UploadRefusedError) {
+      return err.status === 401 ? { kind: "signed-out" } : { kind: "refused", status: err.status, message: err.message };
+    }
+    return { kind: "retry", reason: err instanceof Error ? err.message : "network" };
+  }
 }
 
 export class Outbox {
@@ -155,7 +177,7 @@ export class Outbox {
       } else if (op.kind === "end") {
         result = await send(this.fetchFn, `/api/sessions/${op.sessionId}/end`, { method: "POST" });
       } else {
-        result = await send(this.fetchFn, `/api/sessions/${op.sessionId}/recording`, { method: "PUT", headers: { "content-type": op.type }, body: op.blob });
+        result = await sendRecording(this.fetchFn, op.sessionId, op.blob);
       }
       if (result.kind === "sent") {
         const tx = db.transaction("ops", "readwrite");

@@ -37,6 +37,7 @@ const seatRoute = await import("@/app/api/seats/[seatId]/route");
 const strokesRoute = await import("@/app/api/sessions/[sessionId]/strokes/route");
 const endRoute = await import("@/app/api/sessions/[sessionId]/end/route");
 const recordingRoute = await import("@/app/api/sessions/[sessionId]/recording/route");
+const chunksRoute = await import("@/app/api/sessions/[sessionId]/recording/chunks/route");
 const { SEAT_HOLD_SECONDS } = await import("@/lib/bench/service");
 
 let ids: Map<string, string>;
@@ -82,11 +83,15 @@ function phone(email: string) {
 }
 
 async function route(req: NextRequest, url: string): Promise<Response> {
-  const [, , kind, id, action] = url.split("/");
+  const [, , kind, id, action, sub] = url.split("/");
   if (kind === "seats" && action === "sessions") return sessionsRoute.POST(req, { params: Promise.resolve({ seatId: id! }) });
   const params = { params: Promise.resolve({ sessionId: id! }) };
   if (action === "strokes") return strokesRoute.POST(req, params);
   if (action === "end") return endRoute.POST(req, params);
+  if (action === "recording" && sub === "chunks") {
+    const method = req.method;
+    return method === "PUT" ? chunksRoute.PUT(req, params) : method === "HEAD" ? chunksRoute.HEAD(req, params) : chunksRoute.GET(req, params);
+  }
   if (action === "recording") return recordingRoute.PUT(req, params);
   throw new Error(`no route for ${url}`);
 }

@@ -245,14 +245,19 @@ describe("Outbox", () => {
     expect(kept[0]!.failed).toMatch(/contrastDb/);
   });
 
-  it("sends a recording as its own body and type", async () => {
+  it("sends a recording through the resumable chunk upload: asks what the server has, then sends the rest", async () => {
     const net = scriptedNetwork();
     const box = newOutbox(net);
     const seat = randomUUID();
     const sessionId = randomUUID();
     await box.add({ kind: "recording", seatId: seat, sessionId, type: "audio/ogg", blob: new Blob(["OggS-bytes"], { type: "audio/ogg" }) });
     await box.flush();
-    expect(net.calls).toEqual([{ url: `/api/sessions/${sessionId}/recording`, method: "PUT", body: "OggS-bytes", contentType: "audio/ogg" }]);
+    const url = `/api/sessions/${sessionId}/recording/chunks`;
+    expect(net.calls.map((c) => [c.method, c.url, c.body])).toEqual([
+      ["GET", url, null],
+      ["PUT", url, "OggS-bytes"],
+    ]);
+    expect(await box.count()).toBe(0);
   });
 
   it("concurrent flushes share one run and send each op once", async () => {
