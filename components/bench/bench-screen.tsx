@@ -9,6 +9,7 @@ import { Outbox, type FlushReport } from "@/lib/bench/outbox";
 import type { SeatReport } from "@/lib/bench/service";
 import type { StrokeInput } from "@/lib/validations/bench";
 import { SEAT_STATE_LABELS, STAGE_LABELS } from "@/lib/labels";
+import { SeatPhotos } from "@/components/review/seat-photos";
 import { FadeChart, type ChartStroke } from "./fade-chart";
 import { useListener } from "./use-listener";
 
@@ -480,6 +481,8 @@ export function BenchScreen({ initial, initialStage }: { initial: SeatReport; in
           ) : null}
         </div>
       )}
+
+      {!listening ? <SeatPhotos seatId={seatId} canAdd={report.canWork} /> : null}
 
       <details className="rounded-xl border border-stone-300 bg-white p-3 text-sm">
         <summary className="min-h-10 cursor-pointer font-semibold">Cautions</summary>

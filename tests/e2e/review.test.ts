@@ -156,6 +156,22 @@ describe("session review on a phone", () => {
     expect(await page.getByTestId("waveform").count()).toBe(0);
   });
 
+  it("attaches a photo of the contact ring from the camera input and shows it", async () => {
+    await page.goto(`${baseURL}/review/${seatId}`);
+    const photos = page.getByTestId("seat-photos");
+    await photos.waitFor();
+    await photos.getByText("No photos yet.").waitFor();
+    // A 1×1 PNG: the smallest real image the server's byte check accepts.
+    const png = Buffer.from("iVBORw0KGgoAAAANSUhEUgAAAAEAAAABCAYAAAAfFcSJAAAADUlEQVR42mNk+M9QDwADhgGAWjR9awAAAABJRU5ErkJggg==", "base64");
+    await photos.locator('input[type="file"]').setInputFiles({ name: "ring.png", mimeType: "image/png", buffer: png });
+    await photos.getByTestId("photo-message").getByText("Photo saved.").waitFor({ timeout: 15_000 });
+    expect(await photos.locator("img").count()).toBe(1);
+    // Something that is not an image is refused with a message, whatever it claims to be.
+    await photos.locator('input[type="file"]').setInputFiles({ name: "ring.png", mimeType: "image/png", buffer: Buffer.from("not an image at all") });
+    await photos.getByTestId("photo-message").getByText(/Not saved/).waitFor({ timeout: 15_000 });
+    expect(await photos.locator("img").count()).toBe(1);
+  });
+
   it("prints a head report with the seat map, the seat verdicts and the sheets", async () => {
     await page.goto(`${baseURL}/jobs/${jobId}/report`);
     const report = page.getByTestId("head-report");
@@ -172,6 +188,7 @@ describe("session review on a phone", () => {
     // Two camshafts × five journals on the demo head.
     expect(await report.getByTestId("report-clearance").locator("tbody tr").count()).toBe(10);
     expect(await report.getByText("Cautions", { exact: true }).count()).toBe(1);
+    expect(await report.getByTestId("report-photos").locator("img").count()).toBe(1);
     await report.getByRole("heading", { name: "Sign-offs" }).waitFor();
     await page.screenshot({ path: path.join(ARTIFACTS, "head-report-phone.png"), fullPage: true });
     await page.emulateMedia({ media: "print" });

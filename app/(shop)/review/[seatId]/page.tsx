@@ -3,6 +3,7 @@ import Link from "next/link";
 import { notFound } from "next/navigation";
 import { z } from "zod";
 import { getDb } from "@/db/client";
+import { SeatPhotos } from "@/components/review/seat-photos";
 import { SessionReview } from "@/components/review/session-review";
 import { requireActor } from "@/lib/auth/guard";
 import { getSeatReport, type StageRecord } from "@/lib/bench/service";
@@ -112,6 +113,7 @@ export default async function ReviewPage({ params, searchParams }: PageProps<"/r
           ) : null}
         </>
       )}
+      <SeatPhotos seatId={seatId} canAdd={report.canWork} />
     </div>
   );
 }

@@ -11,6 +11,7 @@ import { PrintButton } from "@/components/review/print-button";
 import { Cautions } from "@/components/sheets/cautions";
 import type { SeatVerdict } from "@/lib/audio";
 import { requireActor } from "@/lib/auth/guard";
+import { listSeatPhotos } from "@/lib/storage/photos";
 import { NotFoundError } from "@/lib/errors";
 import { seatCode } from "@/lib/heads/layout";
 import { getClearanceSheet, getTorqueSheets, listMeasurements } from "@/lib/heads/sheets";
@@ -83,6 +84,12 @@ export default async function HeadReportPage({ params }: PageProps<"/jobs/[jobId
   const verdicts = new Map<string, Record<LappingStage, StageSummary>>();
   for (const h of job.heads) for (const [k, v] of await seatVerdicts(db, h.id)) verdicts.set(k, v);
   const others = (measurements ?? []).filter((m) => m.kind !== "journal_clearance");
+  const photos: Array<{ code: string; id: string; createdAt: string }> = [];
+  for (const h of job.heads) {
+    for (const s of h.seats) {
+      for (const p of await listSeatPhotos(db, actor, s.id)) photos.push({ code: seatCode(s), id: p.id, createdAt: p.createdAt });
+    }
+  }
   const threshold = DEFAULT_SETTLED_THRESHOLD_DB;
 
   return (
@@ -337,6 +344,25 @@ export default async function HeadReportPage({ params }: PageProps<"/jobs/[jobId
               </tbody>
             </table>
           </div>
+        )}
+      </section>
+
+      <section aria-labelledby="report-photos" className="report-section flex flex-col gap-2">
+        <h2 id="report-photos" className="text-xl font-bold">
+          Contact ring photos
+        </h2>
+        {photos.length === 0 ? (
+          <p className="text-stone-600">No photos were attached.</p>
+        ) : (
+          <ul className="grid grid-cols-3 gap-2 sm:grid-cols-6" data-testid="report-photos">
+            {photos.map((p) => (
+              <li key={p.id} className="text-xs">
+                {/* eslint-disable-next-line @next/next/no-img-element */}
+                <img src={`/api/photos/${p.id}`} alt={`Seat ${p.code} contact ring`} className="aspect-square w-full rounded object-cover" />
+                <span className="figure">{p.code}</span>
+              </li>
+            ))}
+          </ul>
         )}
       </section>
 
