@@ -9,11 +9,17 @@ import { Outbox, type FlushReport } from "@/lib/bench/outbox";
 import type { SeatReport } from "@/lib/bench/service";
 import type { StrokeInput } from "@/lib/validations/bench";
 import { SEAT_STATE_LABELS, STAGE_LABELS } from "@/lib/labels";
-import { SeatPhotos } from "@/components/review/seat-photos";
+import dynamic from "next/dynamic";
 import { FadeChart, type ChartStroke } from "./fade-chart";
 import { useListener } from "./use-listener";
 
 type Stage = "coarse" | "fine";
+
+// Photos come after the lapping, below the curve: loaded once the screen is up, not before.
+// Links on this screen do not prefetch: the phone's bandwidth is for the strokes.
+const SeatPhotos = dynamic(() => import("@/components/review/seat-photos").then((m) => m.SeatPhotos), {
+  loading: () => <div className="h-24 animate-pulse rounded-xl bg-stone-200" />,
+});
 
 /** Our names for where the fade curve stands, as the technician reads them. */
 const VERDICT_LABELS: Record<SeatVerdict["state"], string> = {
@@ -295,7 +301,7 @@ export function BenchScreen({ initial, initialStage }: { initial: SeatReport; in
     >
       <header className="flex items-start justify-between gap-3">
         <div>
-          <Link href={`/jobs/${report.job.id}`} className="text-sm font-semibold text-brass-dark underline-offset-2 hover:underline">
+          <Link prefetch={false} href={`/jobs/${report.job.id}`} className="text-sm font-semibold text-brass-dark underline-offset-2 hover:underline">
             ← {report.job.number} · {report.head.label}
           </Link>
           <h1 className="mt-1 leading-none" data-testid="seat-heading">
@@ -473,6 +479,7 @@ export function BenchScreen({ initial, initialStage }: { initial: SeatReport; in
           ) : null}
           {!listening && seatDone && report.nextSeatId ? (
             <Link
+              prefetch={false}
               href={`/bench/${report.nextSeatId}`}
               className="flex min-h-14 items-center justify-center rounded-2xl border-2 border-ink bg-white text-lg font-bold"
             >
