@@ -8,7 +8,9 @@ export async function startServer(): Promise<void> {
   try {
     const { kind } = await getDatabase();
     console.log(`Grindfade database ready (${kind}).`);
-    startMailWorker(getDb, 30_000);
+    // Tests shorten the worker's pause between passes; 30 s is plenty for a shop.
+    const intervalMs = Number(process.env.GRINDFADE_MAIL_INTERVAL_MS) || 30_000;
+    startMailWorker(getDb, Math.max(250, intervalMs));
   } catch (err) {
     console.error(`Grindfade cannot start: ${err instanceof Error ? err.message : String(err)}`);
     process.exit(1);
