@@ -75,4 +75,18 @@ describe("sign-off in the browser", () => {
     expect(mail!).toContain(`/jobs/${job.id}/report`);
     await context.close();
   });
+
+  it("answers a report for a job that does not exist with the app's not-found page", async () => {
+    const context = await browser.newContext(DESKTOP);
+    const sup = DEMO_USERS.find((u) => u.role === "supervisor")!;
+    const page = await signIn(context, baseURL, sup.email, sup.password);
+    await page.waitForURL(/\/jobs$/);
+    // The jobs segment streams behind its loading skeleton, so Next has already sent 200 when the
+    // page finds no job; what the supervisor gets is the not-found page, marked not to be indexed.
+    await page.goto(`${baseURL}/jobs/00000000-0000-4000-8000-000000000000/report`);
+    await page.getByText(/no such job|nothing on this bench/i).first().waitFor();
+    expect(await page.locator('meta[name="robots"][content*="noindex"]').count()).toBeGreaterThan(0);
+    expect(await page.getByTestId("head-report").count()).toBe(0);
+    await context.close();
+  });
 });
