@@ -9,7 +9,8 @@ import uPlot from "uplot";
 import "uplot/dist/uPlot.min.css";
 import type WaveSurfer from "wavesurfer.js";
 import type { Region } from "wavesurfer.js/dist/plugins/regions.esm.js";
-import { fadeAt, type FadeFit } from "@/lib/audio/fade";
+import type { FadeFit } from "@/lib/audio/fade";
+import { fadeAxes, fadeData, fadeSeries, fadeYRange, shadeSettledZone } from "@/components/bench/fade-plot";
 
 export interface ReviewStroke {
   n: number;
@@ -371,10 +372,7 @@ function ReviewFadeChart({
   useEffect(() => {
     const el = box.current;
     if (!el) return;
-    const data = (): uPlot.AlignedData => {
-      const { strokes: list, fit: f } = latest.current;
-      return [list.map((s) => s.n), list.map((s) => s.contrastDb), list.map((s) => (f ? fadeAt(f, s.n) : null))];
-    };
+    const data = (): uPlot.AlignedData => fadeData(latest.current.strokes, latest.current.fit);
     let hovered: number | null = null;
     const u = new uPlot(
       {
@@ -391,33 +389,13 @@ function ReviewFadeChart({
             },
           },
           y: {
-            range: () => {
-              const v = latest.current.strokes.map((s) => s.contrastDb);
-              return [Math.floor(Math.min(-1, ...v.map((x) => x - 1))), Math.ceil(Math.max(6, ...v.map((x) => x + 1)))];
-            },
+            range: () => fadeYRange(latest.current.strokes.map((s) => s.contrastDb)),
           },
         },
-        axes: [
-          { stroke: INK, grid: { stroke: "#e7e5e4" }, incrs: [1, 2, 5, 10, 20, 50], font: "13px Inter, sans-serif" },
-          { stroke: INK, grid: { stroke: "#e7e5e4" }, size: 56, values: (_u, t) => t.map((x) => `${x} dB`), font: "13px Inter, sans-serif" },
-        ],
-        series: [
-          {},
-          { label: "Onset contrast", stroke: BRASS, width: 3, points: { show: true, size: 9, fill: BRASS, stroke: BRASS } },
-          { label: "Fitted fade", stroke: "#78716c", width: 2, dash: [6, 4], points: { show: false } },
-        ],
+        axes: fadeAxes(13),
+        series: fadeSeries(),
         hooks: {
-          drawClear: [
-            (p) => {
-              const top = p.valToPos(latest.current.thresholdDb, "y", true);
-              const bottom = p.bbox.top + p.bbox.height;
-              if (top >= bottom) return;
-              p.ctx.save();
-              p.ctx.fillStyle = "rgba(16, 185, 129, 0.18)";
-              p.ctx.fillRect(p.bbox.left, Math.max(p.bbox.top, top), p.bbox.width, bottom - Math.max(p.bbox.top, top));
-              p.ctx.restore();
-            },
-          ],
+          drawClear: [shadeSettledZone(() => latest.current.thresholdDb)],
           // The active stroke gets a ring, drawn over the series.
           draw: [
             (p) => {
@@ -469,7 +447,7 @@ function ReviewFadeChart({
   }, [height]);
 
   useEffect(() => {
-    plot.current?.setData([strokes.map((s) => s.n), strokes.map((s) => s.contrastDb), strokes.map((s) => (fit ? fadeAt(fit, s.n) : null))]);
+    plot.current?.setData(fadeData(strokes, fit));
   }, [strokes, fit, thresholdDb]);
   useEffect(() => {
     plot.current?.redraw(false, false);
