@@ -5,6 +5,7 @@ import type { ReviewRow } from "@/db/queries/reviews";
 import type { JobStatus } from "@/db/schema";
 import { submitHeadReopen, submitHeadReview } from "@/lib/actions/review";
 import { initialActionState } from "@/lib/actions/state";
+import { ReopenForm } from "./reopen-form";
 import { ReviewHistory } from "./review-history";
 
 export interface HeadReviewPanelProps {
@@ -22,7 +23,6 @@ export interface HeadReviewPanelProps {
 /** Sign off or send back the head as a whole with a comment, or reopen a signed-off head with a reason. */
 export function HeadReviewPanel({ jobId, jobNumber, status, unapprovedSeatCodes, reviews, canReview }: HeadReviewPanelProps) {
   const [reviewState, reviewAction, reviewing] = useActionState(submitHeadReview, initialActionState);
-  const [reopenState, reopenAction, reopening] = useActionState(submitHeadReopen, initialActionState);
   const ready = unapprovedSeatCodes.length === 0;
 
   return (
@@ -79,32 +79,7 @@ export function HeadReviewPanel({ jobId, jobNumber, status, unapprovedSeatCodes,
       ) : null}
 
       {canReview && status === "signed_off" ? (
-        <form action={reopenAction} className="flex flex-col gap-2">
-          <input type="hidden" name="jobId" value={jobId} />
-          <label className="flex flex-col gap-1 text-sm font-semibold">
-            Reason for reopening
-            <textarea
-              name="reason"
-              required
-              minLength={3}
-              maxLength={2000}
-              rows={2}
-              aria-invalid={Boolean(reopenState.fieldErrors.reason)}
-              className="rounded-lg border border-stone-400 p-2 font-normal"
-            />
-          </label>
-          {reopenState.fieldErrors.reason ? <p className="text-sm text-rose-700">{reopenState.fieldErrors.reason[0]}</p> : null}
-          <button
-            type="submit"
-            disabled={reopening}
-            className="min-h-12 self-start rounded-lg border-2 border-ink bg-white px-4 font-semibold disabled:opacity-60"
-          >
-            Reopen the head
-          </button>
-          <p aria-live="polite" className={`text-sm ${reopenState.ok ? "text-emerald-800" : "text-rose-700"}`}>
-            {reopenState.message}
-          </p>
-        </form>
+        <ReopenForm action={submitHeadReopen} fields={{ jobId }} label="Reopen the head" />
       ) : null}
 
       {canReview && status !== "awaiting_audit" && status !== "signed_off" ? (

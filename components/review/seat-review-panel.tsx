@@ -5,6 +5,7 @@ import type { ReviewRow } from "@/db/queries/reviews";
 import type { SeatState } from "@/db/schema";
 import { submitSeatReopen, submitSeatReview } from "@/lib/actions/review";
 import { initialActionState } from "@/lib/actions/state";
+import { ReopenForm } from "./reopen-form";
 import { ReviewHistory } from "./review-history";
 
 export interface SeatReviewPanelProps {
@@ -30,7 +31,6 @@ const STATE_LABELS: Record<SeatState, string> = {
 /** Approve or send back one seat with a comment, or reopen an approved one with a reason. */
 export function SeatReviewPanel({ jobId, seat, reviews, canReview, headClosed }: SeatReviewPanelProps) {
   const [reviewState, reviewAction, reviewing] = useActionState(submitSeatReview, initialActionState);
-  const [reopenState, reopenAction, reopening] = useActionState(submitSeatReopen, initialActionState);
   const canApprove = seat.state === "settled";
   const canSendBack = seat.state === "settled" || seat.state === "stalled" || seat.state === "lapping";
   const headingId = `seat-review-${seat.id}`;
@@ -99,33 +99,7 @@ export function SeatReviewPanel({ jobId, seat, reviews, canReview, headClosed }:
         headClosed ? (
           <p className="text-sm text-stone-600">The head is signed off. Reopen the head first to reopen this seat.</p>
         ) : (
-          <form action={reopenAction} className="flex flex-col gap-2">
-            <input type="hidden" name="jobId" value={jobId} />
-            <input type="hidden" name="seatId" value={seat.id} />
-            <label className="flex flex-col gap-1 text-sm font-semibold">
-              Reason for reopening
-              <textarea
-                name="reason"
-                required
-                minLength={3}
-                maxLength={2000}
-                rows={2}
-                aria-invalid={Boolean(reopenState.fieldErrors.reason)}
-                className="rounded-lg border border-stone-400 p-2 font-normal"
-              />
-            </label>
-            {reopenState.fieldErrors.reason ? <p className="text-sm text-rose-700">{reopenState.fieldErrors.reason[0]}</p> : null}
-            <button
-              type="submit"
-              disabled={reopening}
-              className="min-h-12 self-start rounded-lg border-2 border-ink bg-white px-4 font-semibold disabled:opacity-60"
-            >
-              Reopen seat
-            </button>
-            <p aria-live="polite" className={`text-sm ${reopenState.ok ? "text-emerald-800" : "text-rose-700"}`}>
-              {reopenState.message}
-            </p>
-          </form>
+          <ReopenForm action={submitSeatReopen} fields={{ jobId, seatId: seat.id }} label="Reopen seat" />
         )
       ) : null}
 
