@@ -4,7 +4,7 @@
 import { randomUUID } from "node:crypto";
 import { and, asc, eq } from "drizzle-orm";
 import type { Db } from "@/db/client";
-import { heads, jobs, seatPhotos, seats, users, type JobStatus } from "@/db/schema";
+import { heads, jobs, seatPhotos, seats, users, type JobStatus, type Seat } from "@/db/schema";
 import { recordAudit } from "@/lib/audit";
 import type { Actor } from "@/lib/auth/guard";
 import { assertCanWorkOn } from "@/lib/auth/job-access";
@@ -114,6 +114,28 @@ export async function listSeatPhotos(db: Db, actor: Actor, seatId: string): Prom
     takenBy,
     createdAt: photo.createdAt.toISOString(),
     url: `/api/photos/${photo.id}`,
+  }));
+}
+
+/** Every photo of a job's seats in one query, for the report, in head order then oldest first. */
+export async function listJobPhotos(db: Db, shopId: string, jobId: string): Promise<Array<SeatPhoto & { seat: Pick<Seat, "cylinder" | "kind" | "position"> }>> {
+  const rows = await db
+    .select({ photo: seatPhotos, takenBy: users.name, seat: { cylinder: seats.cylinder, kind: seats.kind, position: seats.position } })
+    .from(seatPhotos)
+    .innerJoin(users, eq(users.id, seatPhotos.takenById))
+    .innerJoin(seats, eq(seats.id, seatPhotos.seatId))
+    .innerJoin(heads, eq(heads.id, seats.headId))
+    .innerJoin(jobs, eq(jobs.id, heads.jobId))
+    .where(and(eq(jobs.id, jobId), eq(jobs.shopId, shopId)))
+    .orderBy(asc(seats.cylinder), asc(seats.kind), asc(seats.position), asc(seatPhotos.createdAt), asc(seatPhotos.id));
+  return rows.map(({ photo, takenBy, seat }) => ({
+    id: photo.id,
+    type: photo.type,
+    bytes: photo.bytes,
+    takenBy,
+    createdAt: photo.createdAt.toISOString(),
+    url: `/api/photos/${photo.id}`,
+    seat,
   }));
 }
 

@@ -11,7 +11,7 @@ import { PrintButton } from "@/components/review/print-button";
 import { Cautions } from "@/components/sheets/cautions";
 import type { SeatVerdict } from "@/lib/audio";
 import { requireActor } from "@/lib/auth/guard";
-import { listSeatPhotos } from "@/lib/storage/photos";
+import { listJobPhotos } from "@/lib/storage/photos";
 import { NotFoundError } from "@/lib/errors";
 import { seatCode } from "@/lib/heads/layout";
 import { getClearanceSheet, getTorqueSheets, listMeasurements } from "@/lib/heads/sheets";
@@ -84,12 +84,7 @@ export default async function HeadReportPage({ params }: PageProps<"/jobs/[jobId
   const verdicts = new Map<string, Record<LappingStage, StageSummary>>();
   for (const h of job.heads) for (const [k, v] of await seatVerdicts(db, h.id)) verdicts.set(k, v);
   const others = (measurements ?? []).filter((m) => m.kind !== "journal_clearance");
-  const photos: Array<{ code: string; id: string; createdAt: string }> = [];
-  for (const h of job.heads) {
-    for (const s of h.seats) {
-      for (const p of await listSeatPhotos(db, actor, s.id)) photos.push({ code: seatCode(s), id: p.id, createdAt: p.createdAt });
-    }
-  }
+  const photos = (await listJobPhotos(db, actor.shopId, job.id)).map((p) => ({ code: seatCode(p.seat), id: p.id, createdAt: p.createdAt }));
   const threshold = DEFAULT_SETTLED_THRESHOLD_DB;
 
   return (
