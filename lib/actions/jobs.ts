@@ -11,13 +11,7 @@ import { BadRequestError, ConflictError, NotFoundError } from "@/lib/errors";
 import { createHeadWithSeats } from "@/lib/heads/create";
 import { canMove, isClosed } from "@/lib/jobs/lifecycle";
 import { jobFormSchema, jobStatusChangeSchema, type JobFormValues } from "@/lib/validations/jobs";
-import { actionFailure as baseFailure, type ActionState } from "./state";
-
-/** The shared failure state, keeping the field messages a domain error carries for the form. */
-function actionFailure(err: unknown): ActionState {
-  const state = baseFailure(err);
-  return err instanceof BadRequestError && Object.keys(err.fieldErrors).length ? { ...state, fieldErrors: err.fieldErrors } : state;
-}
+import { actionFailure, type ActionState } from "./state";
 
 
 export type JobActionState = ActionState & { jobId?: string };

@@ -21,14 +21,7 @@ import {
   tickSchema,
   torqueSheetSetupSchema,
 } from "@/lib/validations/measurements";
-import { BadRequestError } from "@/lib/errors";
-import { actionFailure as baseFailure, type ActionState } from "./state";
-
-/** The shared failure state, keeping the field messages a domain error carries for the form. */
-function actionFailure(err: unknown): ActionState {
-  const state = baseFailure(err);
-  return err instanceof BadRequestError && Object.keys(err.fieldErrors).length ? { ...state, fieldErrors: err.fieldErrors } : state;
-}
+import { actionFailure, type ActionState } from "./state";
 
 
 const text = (f: FormData, k: string) => {
