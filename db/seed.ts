@@ -2,19 +2,16 @@
 // customers and heads on the bench. Everything here is made up for the demo; no real people,
 // shops or engines. Seeding runs only on an empty database, so it is safe to call every start.
 import bcrypt from "bcryptjs";
-import { sql } from "drizzle-orm";
+import { eq, sql } from "drizzle-orm";
 import type { Db } from "./client";
 import {
   auditEntries,
-  camshafts,
   engineSpecs,
   lappingSessions,
   specValues,
   strokes,
   customers,
-  heads,
   jobs,
-  journals,
   seats,
   shops,
   users,
@@ -24,7 +21,8 @@ import {
   type UserRole,
 } from "./schema";
 import { decayingContrasts } from "@/lib/audio/synth";
-import { camshaftLabels, seatCode, seatPositions, type HeadLayout } from "@/lib/heads/layout";
+import { createHeadWithSeats } from "@/lib/heads/create";
+import { seatCode, type HeadLayout } from "@/lib/heads/layout";
 
 export const DEMO_SHOP_NAME = "Millrace Head Works";
 
@@ -243,51 +241,22 @@ export async function seedDemoShop(db: Db): Promise<boolean> {
         })
         .returning();
       const { label, ...layout } = j.head;
-      const [head] = await tx
-        .insert(heads)
-        .values({ jobId: job!.id, label, ...layout })
-        .returning();
-
-      const labels = camshaftLabels(layout);
-      for (let c = 0; c < labels.length; c++) {
-        const [cam] = await tx
-          .insert(camshafts)
-          .values({
-            headId: head!.id,
-            position: c + 1,
-            label: labels[c]!,
-            journalCount: layout.journalsPerCamshaft,
+      const created = await createHeadWithSeats(tx, job!.id, label, layout);
+      // The scenario's seat states, and part numbers and serials on the valves.
+      const insertedSeats = [];
+      for (const [k, seat] of created.seats.entries()) {
+        const state = j.seatStates?.(seatCode(seat)) ?? "waiting";
+        if (state !== "waiting") await tx.update(seats).set({ state }).where(eq(seats.id, seat.id));
+        await tx
+          .update(valves)
+          .set({
+            lappedInSeatId: j.technician && (state === "settled" || state === "lapping") ? seat.id : null,
+            partNumber: seat.kind === "intake" ? "VI-3301" : "VE-3302",
+            serial: `${j.number.slice(-4)}-${String(k + 1).padStart(2, "0")}`,
           })
-          .returning();
-        await tx.insert(journals).values(
-          Array.from({ length: layout.journalsPerCamshaft }, (_, k) => ({
-            camshaftId: cam!.id,
-            position: k + 1,
-          })),
-        );
+          .where(eq(valves.seatId, seat.id));
+        insertedSeats.push({ ...seat, state });
       }
-
-      const positions = seatPositions(layout);
-      const insertedSeats = await tx
-        .insert(seats)
-        .values(
-          positions.map((p) => ({
-            headId: head!.id,
-            ...p,
-            state: j.seatStates?.(seatCode(p)) ?? "waiting",
-          })),
-        )
-        .returning();
-      await tx.insert(valves).values(
-        insertedSeats.map((s, k) => ({
-          headId: head!.id,
-          seatId: s.id,
-          lappedInSeatId: j.technician && (s.state === "settled" || s.state === "lapping") ? s.id : null,
-          tag: seatCode(s),
-          partNumber: s.kind === "intake" ? "VI-3301" : "VE-3302",
-          serial: `${j.number.slice(-4)}-${String(k + 1).padStart(2, "0")}`,
-        })),
-      );
 
       // Seats the scenario calls settled or lapping get the strokes that put them there, so the
       // server's verdict agrees with the state shown.

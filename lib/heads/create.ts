@@ -1,13 +1,30 @@
 // Writes a head and everything its layout implies: camshafts and journals, one seat per valve
 // position and a valve for each seat, tagged with the seat's code.
 import type { Db } from "@/db/client";
-import { camshafts, heads, journals, seats, valves } from "@/db/schema";
+import { camshafts, heads, journals, seats, valves, type Seat } from "@/db/schema";
 import { camshaftLabels, seatCode, seatPositions, type HeadLayout } from "./layout";
 
 type Writer = Pick<Db, "insert">;
 
-export async function createHeadWithSeats(tx: Writer, jobId: string, label: string, layout: HeadLayout): Promise<string> {
-  const [head] = await tx.insert(heads).values({ jobId, label, ...layout }).returning({ id: heads.id });
+export async function createHeadWithSeats(
+  tx: Writer,
+  jobId: string,
+  label: string,
+  layout: HeadLayout,
+): Promise<{ headId: string; seats: Seat[] }> {
+  const [head] = await tx
+    .insert(heads)
+    .values({
+      jobId,
+      label,
+      arrangement: layout.arrangement,
+      cylinderCount: layout.cylinderCount,
+      intakeValvesPerCylinder: layout.intakeValvesPerCylinder,
+      exhaustValvesPerCylinder: layout.exhaustValvesPerCylinder,
+      camshaftCount: layout.camshaftCount,
+      journalsPerCamshaft: layout.journalsPerCamshaft,
+    })
+    .returning({ id: heads.id });
   const headId = head!.id;
   const labels = camshaftLabels(layout);
   for (let c = 0; c < labels.length; c++) {
@@ -24,5 +41,5 @@ export async function createHeadWithSeats(tx: Writer, jobId: string, label: stri
     .values(seatPositions(layout).map((p) => ({ headId, ...p })))
     .returning();
   await tx.insert(valves).values(inserted.map((s) => ({ headId, seatId: s.id, tag: seatCode(s) })));
-  return headId;
+  return { headId, seats: inserted };
 }
