@@ -1,12 +1,18 @@
 import type { NextConfig } from "next";
+import { COMMON_HEADERS } from "./lib/security/headers";
 
 const nextConfig: NextConfig = {
   // PGlite ships WebAssembly and data files that must be loaded from node_modules at run time.
   serverExternalPackages: ["@electric-sql/pglite", "pg"],
+  // No X-Powered-By header.
   poweredByHeader: false,
   typedRoutes: false,
   // `npm test` type-checks the whole project once (next typegen && tsc); the build need not repeat it.
   typescript: { ignoreBuildErrors: true },
+  // The content security policy is set per response in proxy.ts (it carries a nonce).
+  async headers() {
+    return [{ source: "/:path*", headers: Object.entries(COMMON_HEADERS).map(([key, value]) => ({ key, value })) }];
+  },
 };
 
 export default nextConfig;

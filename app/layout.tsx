@@ -1,4 +1,5 @@
 import type { Metadata, Viewport } from "next";
+import { connection } from "next/server";
 import "@fontsource/inter/400.css";
 import "@fontsource/inter/600.css";
 import "@fontsource/inter/700.css";
@@ -17,7 +18,10 @@ export const viewport: Viewport = {
   themeColor: "#1c1917",
 };
 
-export default function RootLayout({ children }: { children: React.ReactNode }) {
+export default async function RootLayout({ children }: { children: React.ReactNode }) {
+  // Every page is rendered per request: its scripts carry the nonce of that response's content
+  // security policy (set in proxy.ts), so nothing may be served as a prebuilt static page.
+  await connection();
   return (
     <html lang="en">
       <body className="min-h-dvh font-sans antialiased">{children}</body>

@@ -15,6 +15,8 @@ const schema = z.object({
   GRINDFADE_SEED: z.enum(["demo", "none"]).default("demo"),
   GRINDFADE_SIGNIN_MAX_FAILURES: z.coerce.number().int().min(1).max(100).default(5),
   GRINDFADE_SIGNIN_LOCK_MINUTES: z.coerce.number().int().min(1).max(24 * 60).default(15),
+  // Wrong passwords from one network address (any accounts) before it must wait.
+  GRINDFADE_SIGNIN_MAX_PER_ADDRESS: z.coerce.number().int().min(1).max(10_000).default(30),
   NEXTAUTH_SECRET: z.string().min(16).optional(),
   NEXTAUTH_URL: z.string().url().optional(),
   // Recordings and photos go to this S3 bucket instead of the data directory when it is set.

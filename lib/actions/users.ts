@@ -8,6 +8,7 @@ import { users } from "@/db/schema";
 import { requireActor } from "@/lib/auth/guard";
 import { recordAudit } from "@/lib/audit";
 import { BadRequestError, ConflictError, NotFoundError } from "@/lib/errors";
+import { passwordProblem } from "@/lib/validations/password-rules";
 import { changeRoleSchema, createUserSchema, resetPasswordSchema } from "@/lib/validations/users";
 import { actionFailure, type ActionState } from "./state";
 
@@ -49,8 +50,16 @@ export async function resetPassword(_prev: ActionState, formData: FormData): Pro
   try {
     const actor = await requireActor("users:manage");
     const data = resetPasswordSchema.parse({ id: formData.get("id"), password: formData.get("password") });
-    const passwordHash = await bcrypt.hash(data.password, 10);
     const db = await getDb();
+    const [person] = await db
+      .select({ email: users.email, name: users.name })
+      .from(users)
+      .where(and(eq(users.id, data.id), eq(users.shopId, actor.shopId)))
+      .limit(1);
+    if (!person) throw new NotFoundError("That person is not in your shop.");
+    const problem = passwordProblem(data.password, person);
+    if (problem) throw new BadRequestError(problem, { password: [problem] });
+    const passwordHash = await bcrypt.hash(data.password, 10);
     await db.transaction(async (tx) => {
       const [updated] = await tx
         .update(users)

@@ -7,6 +7,16 @@ import { serverEnv } from "@/lib/env";
 import { signInSchema } from "@/lib/validations/auth";
 import { checkCredentials, lockedMessage } from "./credentials";
 import { authSecret } from "./secret";
+import { AddressThrottle, clientAddress, throttledMessage } from "./throttle";
+
+const g = globalThis as unknown as { __grindfadeSignInThrottle?: AddressThrottle };
+function throttle(): AddressThrottle {
+  g.__grindfadeSignInThrottle ??= new AddressThrottle({
+    maxFailures: serverEnv().GRINDFADE_SIGNIN_MAX_PER_ADDRESS,
+    windowMs: 15 * 60_000,
+  });
+  return g.__grindfadeSignInThrottle;
+}
 
 export const authOptions: NextAuthOptions = {
   secret: authSecret(),
@@ -19,7 +29,10 @@ export const authOptions: NextAuthOptions = {
         email: { label: "E-mail", type: "email" },
         password: { label: "Password", type: "password" },
       },
-      async authorize(raw) {
+      async authorize(raw, req) {
+        const address = clientAddress(req?.headers);
+        const wait = throttle().waitMinutes(address);
+        if (wait > 0) throw new Error(throttledMessage(wait));
         const parsed = signInSchema.safeParse(raw ?? {});
         if (!parsed.success) {
           throw new Error(parsed.error.issues[0]?.message ?? "Enter your e-mail and password.");
@@ -32,6 +45,7 @@ export const authOptions: NextAuthOptions = {
         if (result.ok) {
           return { id: result.user.id, name: result.user.name, email: result.user.email, role: result.user.role };
         }
+        throttle().recordFailure(address);
         if (result.reason === "locked") throw new Error(lockedMessage(result.retryInMinutes));
         throw new Error("Wrong e-mail or password.");
       },

@@ -1,4 +1,5 @@
 import { z } from "zod";
+import { passwordProblem } from "./password-rules";
 
 export const ROLES = ["technician", "supervisor", "admin"] as const;
 export const roleSchema = z.enum(ROLES);
@@ -11,10 +12,11 @@ export const emailSchema = z
   .max(200, "That e-mail address is too long.")
   .email("That does not look like an e-mail address.");
 
-export const passwordSchema = z
-  .string({ error: "Enter a password." })
-  .min(10, "Use at least 10 characters.")
-  .max(200, "Use at most 200 characters.");
+/** A new password on its own; rules that need the account (its e-mail, its name) are added where it is known. */
+export const passwordSchema = z.string({ error: "Enter a password." }).superRefine((p, ctx) => {
+  const problem = passwordProblem(p);
+  if (problem) ctx.addIssue({ code: "custom", message: problem });
+});
 
 export const signInSchema = z.object({
   email: emailSchema,

@@ -1,5 +1,6 @@
 import { z } from "zod";
 import { emailSchema, passwordSchema, roleSchema } from "./auth";
+import { passwordProblem } from "./password-rules";
 
 export const userBaseSchema = z.object({
   id: z.string().uuid("Unknown person."),
@@ -13,7 +14,12 @@ export const userBaseSchema = z.object({
   password: passwordSchema,
 });
 
-export const createUserSchema = userBaseSchema.omit({ id: true });
+export const createUserSchema = userBaseSchema.omit({ id: true }).superRefine((d, ctx) => {
+  // The password's own rules are checked on the field; here only what needs the account.
+  if (typeof d.password !== "string" || passwordProblem(d.password)) return;
+  const problem = passwordProblem(d.password, { email: d.email, name: d.name });
+  if (problem) ctx.addIssue({ code: "custom", path: ["password"], message: problem });
+});
 export const resetPasswordSchema = userBaseSchema.pick({ id: true, password: true });
 export const changeRoleSchema = userBaseSchema.pick({ id: true, role: true });
 

@@ -46,10 +46,12 @@ beforeAll(async () => {
     strokes: contrasts.map((c) => ({ contrastDb: c, durationS: 0.7, gapS: 0.55 })),
   });
   const started = await page.request.post(`${baseURL}/api/seats/${seatId}/sessions`, {
+    headers: { origin: baseURL },
     data: { sessionId, stage: "coarse", deviceId, sampleRateHz: sampleRate, noiseFloorDb: -62 },
   });
   expect(started.status()).toBe(201);
   const saved = await page.request.post(`${baseURL}/api/sessions/${sessionId}/strokes`, {
+    headers: { origin: baseURL },
     data: {
       strokes: synth.strokes.map((s, i) => ({
         clientId: randomUUID(),
@@ -65,7 +67,7 @@ beforeAll(async () => {
   });
   expect(saved.status()).toBe(201);
   const uploaded = await page.request.put(`${baseURL}/api/sessions/${sessionId}/recording`, {
-    headers: { "content-type": "audio/wav" },
+    headers: { "content-type": "audio/wav", origin: baseURL },
     data: Buffer.from(encodeWav([synth.samples], sampleRate)),
   });
   expect(uploaded.status()).toBe(201);
@@ -148,6 +150,7 @@ describe("session review on a phone", () => {
   it("says so for a session with no recording", async () => {
     const other = randomUUID();
     const started = await page.request.post(`${baseURL}/api/seats/${seatId}/sessions`, {
+      headers: { origin: baseURL },
       data: { sessionId: other, stage: "fine", deviceId },
     });
     expect(started.status()).toBe(201);

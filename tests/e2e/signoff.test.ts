@@ -57,6 +57,7 @@ describe("sign-off in the browser", () => {
     // A technician's stroke on a seat of a signed-off head is refused.
     const seatId = await page.locator('[data-testid=seat-map] a[href^="/bench/"]').first().getAttribute("href");
     const refused = await page.request.post(`${baseURL}/api/seats/${seatId!.split("/").pop()}/sessions`, {
+      headers: { origin: baseURL },
       data: { sessionId: crypto.randomUUID(), stage: "fine", deviceId: "e2e-device-signoff" },
     });
     expect(refused.status()).toBe(409);

@@ -1,5 +1,6 @@
 // The production server refuses to start on a database it cannot use, with one clear line.
 import { spawn } from "node:child_process";
+import { randomBytes } from "node:crypto";
 import fs from "node:fs";
 import os from "node:os";
 import path from "node:path";
@@ -9,7 +10,7 @@ function startServer(env: Record<string, string>): Promise<{ code: number | null
   return new Promise((resolve) => {
     const nextBin = path.join(process.cwd(), "node_modules", "next", "dist", "bin", "next");
     const child = spawn(process.execPath, [nextBin, "start", "-p", "0", "-H", "127.0.0.1"], {
-      env: { ...process.env, NODE_ENV: "production", NEXTAUTH_SECRET: "startup-test-secret-0123456789", ...env },
+      env: { ...process.env, NODE_ENV: "production", NEXTAUTH_SECRET: randomBytes(24).toString("base64url"), ...env },
       stdio: ["ignore", "pipe", "pipe"],
     });
     let stdout = "";
