@@ -77,7 +77,8 @@ describe("response headers", () => {
 
 describe("changes only from our own pages", () => {
   it("refuses a change with no origin or a foreign one, before anything else is looked at", async () => {
-    for (const headers of [{}, { origin: "https://elsewhere.example" }, { origin: baseURL.replace(/:\d+$/, ":1") }]) {
+    const variants: Record<string, string>[] = [{}, { origin: "https://elsewhere.example" }, { origin: baseURL.replace(/:\d+$/, ":1") }];
+    for (const headers of variants) {
       const res = await fetch(`${baseURL}/api/jobs`, { method: "POST", headers: { "content-type": "application/json", ...headers }, body: "{}" });
       expect(res.status).toBe(403);
       const body = (await res.json()) as { message: string };
