@@ -107,4 +107,24 @@ describe("people actions", () => {
     expect(row!.lockedUntil).toBeNull();
     expect(row!.failedSignIns).toBe(0);
   });
+
+  it("password rules hold for a new person and for a reset, and a refused one changes nothing", async () => {
+    signInAs("admin@millrace.example");
+    const common = await createUser({ name: "Noor Vance", email: "noor@millrace.example", role: "technician", password: "password123" });
+    expect(common.ok).toBe(false);
+    expect(common.fieldErrors.password?.[0]).toMatch(/first anyone would guess/);
+    const own = await createUser({ name: "Noor Vance", email: "noor@millrace.example", role: "technician", password: "noor-laps-seats" });
+    expect(own.fieldErrors.password?.[0]).toMatch(/e-mail/);
+    expect(await state.t!.db.select().from(users).where(eq(users.email, "noor@millrace.example"))).toHaveLength(0);
+
+    const target = byEmail.get("dov@millrace.example")!;
+    const [before] = await state.t!.db.select({ hash: users.passwordHash }).from(users).where(eq(users.id, target.id));
+    for (const password of ["achterberg-2026", "dov-at-the-bench", "1111111111"]) {
+      const res = await resetPassword(initialActionState, form({ id: target.id, password }));
+      expect(res.ok, password).toBe(false);
+      expect(res.fieldErrors.password?.[0], password).toBeTruthy();
+    }
+    const [after] = await state.t!.db.select({ hash: users.passwordHash }).from(users).where(eq(users.id, target.id));
+    expect(after!.hash).toBe(before!.hash);
+  });
 });
