@@ -66,7 +66,10 @@ export function CreatePersonForm() {
       </label>
       <label className="flex flex-col gap-1 font-semibold">
         First password
-        <input className={field} type="password" autoComplete="new-password" aria-describedby="new-password-error" {...register("password")} />
+        <input className={field} type="password" autoComplete="new-password" aria-describedby="new-password-hint new-password-error" {...register("password")} />
+        <span id="new-password-hint" className="text-sm font-normal text-stone-600">
+          At least 10 characters; a short sentence works well. Not a common password, and not the person&apos;s name or e-mail.
+        </span>
         {err("password")}
       </label>
       <div className="flex flex-wrap items-center gap-3 sm:col-span-2">
