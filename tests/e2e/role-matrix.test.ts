@@ -9,7 +9,15 @@ import { randomUUID } from "node:crypto";
 import { beforeAll, describe, expect, inject, it } from "vitest";
 import { DEMO_USERS } from "@/db/seed";
 import { encodeWav } from "@/lib/audio";
-import { PAGE_MATRIX, PERSONAS, ROUTE_MATRIX, TARGET_JOB, isAllowed, type PageOutcome, type Persona } from "../security/role-matrix";
+import {
+  PAGE_MATRIX,
+  PERSONAS,
+  ROUTE_MATRIX,
+  TARGET_JOB,
+  isAllowed,
+  type PageOutcome,
+  type Persona,
+} from "../security/role-matrix";
 import { listPages, listRouteHandlers, type HttpMethod } from "../security/route-tree";
 
 const baseURL = inject("baseURL");
@@ -29,7 +37,8 @@ class Caller {
 
   async send({ method = "GET", path, headers = {}, body }: Req): Promise<Response> {
     const h = new Headers(headers);
-    if (this.cookies.size) h.set("cookie", [...this.cookies].map(([k, v]) => `${k}=${v}`).join("; "));
+    if (this.cookies.size)
+      h.set("cookie", [...this.cookies].map(([k, v]) => `${k}=${v}`).join("; "));
     // Mutating API requests must come from the app's own origin.
     if (method !== "GET" && method !== "HEAD") h.set("origin", baseURL);
     return fetch(`${baseURL}${path}`, { method, headers: h, body, redirect: "manual" });
@@ -57,7 +66,9 @@ class Caller {
     });
     expect(res.status, `sign-in of ${email}`).toBe(200);
     this.keep(res);
-    const session = (await (await this.send({ path: "/api/auth/session" })).json()) as { user?: { email: string } };
+    const session = (await (await this.send({ path: "/api/auth/session" })).json()) as {
+      user?: { email: string };
+    };
     expect(session.user?.email).toBe(email);
     this.email = email;
     return this;
@@ -114,9 +125,20 @@ function seatOnMap(html: string, code: string): string {
 
 // A fifth of a second of a 440 Hz tone as 16-bit WAV; `extra` samples make each upload's length its own.
 const wav = (extra = 0) =>
-  encodeWav([Float32Array.from({ length: 1600 + extra }, (_, i) => 0.25 * Math.sin((2 * Math.PI * 440 * i) / 8000))], 8000);
+  encodeWav(
+    [
+      Float32Array.from(
+        { length: 1600 + extra },
+        (_, i) => 0.25 * Math.sin((2 * Math.PI * 440 * i) / 8000),
+      ),
+    ],
+    8000,
+  );
 // The smallest PNG: one transparent pixel (PNG signature, IHDR, IDAT, IEND).
-const PNG = Buffer.from("iVBORw0KGgoAAAANSUhEUgAAAAEAAAABCAYAAAAfFcSJAAAADUlEQVR42mNk+M9QDwADhgGAWjR9awAAAABJRU5ErkJggg==", "base64");
+const PNG = Buffer.from(
+  "iVBORw0KGgoAAAANSUhEUgAAAAEAAAABCAYAAAAfFcSJAAAADUlEQVR42mNk+M9QDwADhgGAWjR9awAAAABJRU5ErkJggg==",
+  "base64",
+);
 
 const json = (body: unknown): Pick<Req, "headers" | "body"> => ({
   headers: { "content-type": "application/json" },
@@ -135,11 +157,20 @@ async function startSession(who: Caller, seatId: string, deviceId: string): Prom
 }
 
 async function upload(who: Caller, sessionId: string, bytes: Uint8Array): Promise<Response> {
-  return who.send({ method: "PUT", path: `/api/sessions/${sessionId}/recording`, headers: { "content-type": "audio/wav" }, body: Buffer.from(bytes) });
+  return who.send({
+    method: "PUT",
+    path: `/api/sessions/${sessionId}/recording`,
+    headers: { "content-type": "audio/wav" },
+    body: Buffer.from(bytes),
+  });
 }
 
 /** Sets up one job's records as the person who may work on it. */
-async function prepare(number: JobNumber, worker: Caller, codes: { seat: string; sessionSeat: string }): Promise<JobRecords> {
+async function prepare(
+  number: JobNumber,
+  worker: Caller,
+  codes: { seat: string; sessionSeat: string },
+): Promise<JobRecords> {
   const { jobs } = await rhea.json<{ jobs: Array<{ id: string; number: string }> }>("/api/jobs");
   const jobId = jobs.find((j) => j.number === number)!.id;
   const page = await rhea.send({ path: `/jobs/${jobId}` });
@@ -151,15 +182,33 @@ async function prepare(number: JobNumber, worker: Caller, codes: { seat: string;
   const sessionId = await startSession(worker, seatId, device);
   const endSessionId = await startSession(worker, seatId, device);
   expect((await upload(worker, sessionId, wav())).status).toBe(201);
-  const photo = await worker.send({ method: "POST", path: `/api/seats/${seatId}/photos`, headers: { "content-type": "image/png" }, body: PNG });
+  const photo = await worker.send({
+    method: "POST",
+    path: `/api/seats/${seatId}/photos`,
+    headers: { "content-type": "image/png" },
+    body: PNG,
+  });
   expect(photo.status).toBe(201);
   const { id: photoId } = (await photo.json()) as { id: string };
   const seat = await rhea.json<{ head: { id: string } }>(`/api/seats/${seatId}`);
-  return { number, jobId, headId: seat.head.id, seatId, sessionSeatId, sessionId, endSessionId, photoId };
+  return {
+    number,
+    jobId,
+    headId: seat.head.id,
+    seatId,
+    sessionSeatId,
+    sessionId,
+    endSessionId,
+    photoId,
+  };
 }
 
 beforeAll(async () => {
-  await Promise.all([ines.signIn("ines@millrace.example"), rhea.signIn("rhea@millrace.example"), admin.signIn("admin@millrace.example")]);
+  await Promise.all([
+    ines.signIn("ines@millrace.example"),
+    rhea.signIn("rhea@millrace.example"),
+    admin.signIn("admin@millrace.example"),
+  ]);
   // Ines works on her own job; Dov's job is worked on by the supervisor (Dov's account is locked
   // by the sign-in tests, and a supervisor may work on any job of the shop).
   records["MHW-0141"] = await prepare("MHW-0141", ines, { seat: "3I2", sessionSeat: "3E2" });
@@ -170,7 +219,10 @@ beforeAll(async () => {
 
 interface SeatApi {
   canWork: boolean;
-  stages: Record<"coarse" | "fine", { sessions: Array<{ id: string; endedAt: string | null }>; strokes: unknown[] }>;
+  stages: Record<
+    "coarse" | "fine",
+    { sessions: Array<{ id: string; endedAt: string | null }>; strokes: unknown[] }
+  >;
 }
 const seatReport = (seatId: string) => rhea.json<SeatApi>(`/api/seats/${seatId}`);
 const sessionsOn = async (seatId: string) => {
@@ -192,14 +244,20 @@ function fill(pattern: string, r: JobRecords): string {
 
 const READ_ONLY = "This seat is read-only for you";
 
-async function expectPage(res: Response, path: string, expected: PageOutcome, r: JobRecords): Promise<void> {
+async function expectPage(
+  res: Response,
+  path: string,
+  expected: PageOutcome,
+  r: JobRecords,
+): Promise<void> {
   if (expected === "redirect:/sign-in" || expected === "redirect:/jobs") {
     expect(res.status).toBe(307);
     const to = new URL(res.headers.get("location")!, baseURL);
     expect(to.origin).toBe(baseURL);
     expect(to.pathname).toBe(expected.slice("redirect:".length));
     // The sign-in page sends the visitor back where they were going.
-    if (expected === "redirect:/sign-in") expect(to.searchParams.get("callbackUrl")).toBe(path === "/" ? null : path);
+    if (expected === "redirect:/sign-in")
+      expect(to.searchParams.get("callbackUrl")).toBe(path === "/" ? null : path);
     return;
   }
   expect(res.status).toBe(200);
@@ -216,14 +274,16 @@ async function expectPage(res: Response, path: string, expected: PageOutcome, r:
   expect(html).toMatch(/<title>[^<]+ · Grindfade<\/title>|<title>Grindfade<\/title>/);
   // A job's pages show that job; a seat's pages show that seat's job.
   if (path.includes(r.jobId) || path.includes(r.seatId)) expect(html).toContain(r.number);
-  if (path.startsWith("/bench/")) expect(html.includes(READ_ONLY)).toBe(expected === "page:read-only");
+  if (path.startsWith("/bench/"))
+    expect(html.includes(READ_ONLY)).toBe(expected === "page:read-only");
 }
 
 describe("pages", () => {
   for (const { pattern } of listPages()) {
     const row = PAGE_MATRIX[pattern];
     describe(pattern, () => {
-      it("has a matrix row", () => expect(row, "row in tests/security/role-matrix.ts").toBeDefined());
+      it("has a matrix row", () =>
+        expect(row, "row in tests/security/role-matrix.ts").toBeDefined());
       if (!row) return;
       for (const p of PERSONAS) {
         it(`${p}: ${row[p]}`, async () => {
@@ -275,10 +335,17 @@ const PROBES: Record<string, Probe> = {
   },
   "POST /api/auth/[...nextauth]": {
     // A sign-out without next-auth's CSRF token: refused, and the session still holds.
-    request: () => ({ method: "POST", path: "/api/auth/signout", headers: { "content-type": "application/x-www-form-urlencoded" }, body: "" }),
+    request: () => ({
+      method: "POST",
+      path: "/api/auth/signout",
+      headers: { "content-type": "application/x-www-form-urlencoded" },
+      body: "",
+    }),
     allowed: async (res, p) => {
       expect(new URL(res.headers.get("location")!).searchParams.get("csrf")).toBe("true");
-      const session = (await (await CALLERS[p].send({ path: "/api/auth/session" })).json()) as { user?: { email: string } };
+      const session = (await (await CALLERS[p].send({ path: "/api/auth/session" })).json()) as {
+        user?: { email: string };
+      };
       expect(session.user?.email ?? null).toBe(CALLERS[p].email);
     },
   },
@@ -286,12 +353,17 @@ const PROBES: Record<string, Probe> = {
     request: () => ({ path: "/api/jobs" }),
     allowed: async (res) => {
       const { jobs } = (await res.json()) as { jobs: Array<{ number: string }> };
-      expect(jobs.map((j) => j.number)).toEqual(expect.arrayContaining(["MHW-0141", "MHW-0142", "MHW-0143"]));
+      expect(jobs.map((j) => j.number)).toEqual(
+        expect.arrayContaining(["MHW-0141", "MHW-0142", "MHW-0143"]),
+      );
     },
   },
   "GET /api/audit": {
     request: () => ({ path: "/api/audit" }),
-    allowed: async (res) => expect((await res.json()) as { entries: unknown[] }).toMatchObject({ entries: expect.any(Array) }),
+    allowed: async (res) =>
+      expect((await res.json()) as { entries: unknown[] }).toMatchObject({
+        entries: expect.any(Array),
+      }),
   },
   "GET /api/heads/[headId]/sheets": {
     request: (_p, r) => ({ path: `/api/heads/${r.headId}/sheets` }),
@@ -311,7 +383,9 @@ const PROBES: Record<string, Probe> = {
     request: (_p, r) => ({ path: `/api/seats/${r.seatId}` }),
     // canWork says what the work routes will answer this caller.
     allowed: async (res, p) =>
-      expect(((await res.json()) as SeatApi).canWork).toBe(isAllowed(ROUTE_MATRIX["POST /api/sessions/[sessionId]/strokes"]![p] as number)),
+      expect(((await res.json()) as SeatApi).canWork).toBe(
+        isAllowed(ROUTE_MATRIX["POST /api/sessions/[sessionId]/strokes"]![p] as number),
+      ),
   },
   "GET /api/seats/[seatId]/photos": {
     request: (_p, r) => ({ path: `/api/seats/${r.seatId}/photos` }),
@@ -321,48 +395,83 @@ const PROBES: Record<string, Probe> = {
     },
   },
   "POST /api/seats/[seatId]/photos": {
-    request: (_p, r) => ({ method: "POST", path: `/api/seats/${r.seatId}/photos`, headers: { "content-type": "image/png" }, body: PNG }),
-    state: async (r) => ((await rhea.json<{ photos: unknown[] }>(`/api/seats/${r.seatId}/photos`)).photos.length),
+    request: (_p, r) => ({
+      method: "POST",
+      path: `/api/seats/${r.seatId}/photos`,
+      headers: { "content-type": "image/png" },
+      body: PNG,
+    }),
+    state: async (r) =>
+      (await rhea.json<{ photos: unknown[] }>(`/api/seats/${r.seatId}/photos`)).photos.length,
     allowed: async (_res, _p, r, before) =>
-      expect((await rhea.json<{ photos: unknown[] }>(`/api/seats/${r.seatId}/photos`)).photos.length).toBe((before as number) + 1),
+      expect(
+        (await rhea.json<{ photos: unknown[] }>(`/api/seats/${r.seatId}/photos`)).photos.length,
+      ).toBe((before as number) + 1),
   },
   "POST /api/seats/[seatId]/sessions": {
     request: (p, r) => ({
       method: "POST",
       path: `/api/seats/${r.sessionSeatId}/sessions`,
-      ...json({ sessionId: randomUUID(), stage: "coarse", deviceId: `matrix-${p}-phone`, sampleRateHz: 8000, noiseFloorDb: -62 }),
+      ...json({
+        sessionId: randomUUID(),
+        stage: "coarse",
+        deviceId: `matrix-${p}-phone`,
+        sampleRateHz: 8000,
+        noiseFloorDb: -62,
+      }),
     }),
     state: async (r) => (await sessionsOn(r.sessionSeatId)).length,
-    allowed: async (_res, _p, r, before) => expect((await sessionsOn(r.sessionSeatId)).length).toBe((before as number) + 1),
+    allowed: async (_res, _p, r, before) =>
+      expect((await sessionsOn(r.sessionSeatId)).length).toBe((before as number) + 1),
   },
   "POST /api/sessions/[sessionId]/end": {
     request: (_p, r) => ({ method: "POST", path: `/api/sessions/${r.endSessionId}/end` }),
     state: async (r) => (await sessionsOn(r.seatId)).find((s) => s.id === r.endSessionId)!.endedAt,
-    allowed: async (_res, _p, r) => expect((await sessionsOn(r.seatId)).find((s) => s.id === r.endSessionId)!.endedAt).not.toBeNull(),
+    allowed: async (_res, _p, r) =>
+      expect(
+        (await sessionsOn(r.seatId)).find((s) => s.id === r.endSessionId)!.endedAt,
+      ).not.toBeNull(),
   },
   "POST /api/sessions/[sessionId]/strokes": {
-    request: (_p, r) => ({ method: "POST", path: `/api/sessions/${r.sessionId}/strokes`, ...json({ strokes: strokes(2) }) }),
+    request: (_p, r) => ({
+      method: "POST",
+      path: `/api/sessions/${r.sessionId}/strokes`,
+      ...json({ strokes: strokes(2) }),
+    }),
     state: async (r) => (await seatReport(r.seatId)).stages.coarse.strokes.length,
     allowed: async (res, _p, r, before) => {
       expect(await res.json()).toMatchObject({ accepted: 2, duplicates: 0 });
-      expect((await seatReport(r.seatId)).stages.coarse.strokes.length).toBe((before as number) + 2);
+      expect((await seatReport(r.seatId)).stages.coarse.strokes.length).toBe(
+        (before as number) + 2,
+      );
     },
   },
   "GET /api/sessions/[sessionId]/recording": {
     request: (_p, r) => ({ path: `/api/sessions/${r.sessionId}/recording` }),
     allowed: async (res) => {
       expect(res.headers.get("content-type")).toBe("audio/wav");
-      expect(Buffer.from(await res.arrayBuffer()).subarray(0, 4).toString("latin1")).toBe("RIFF");
+      expect(
+        Buffer.from(await res.arrayBuffer())
+          .subarray(0, 4)
+          .toString("latin1"),
+      ).toBe("RIFF");
     },
   },
   "PUT /api/sessions/[sessionId]/recording": {
-    request: (p, r) => ({ method: "PUT", path: `/api/sessions/${r.sessionId}/recording`, headers: { "content-type": "audio/wav" }, body: Buffer.from(personaWav(p)) }),
+    request: (p, r) => ({
+      method: "PUT",
+      path: `/api/sessions/${r.sessionId}/recording`,
+      headers: { "content-type": "audio/wav" },
+      body: Buffer.from(personaWav(p)),
+    }),
     state: (r) => recordingBytes(r.sessionId),
-    allowed: async (_res, p, r) => expect(await recordingBytes(r.sessionId)).toBe(personaWav(p).byteLength),
+    allowed: async (_res, p, r) =>
+      expect(await recordingBytes(r.sessionId)).toBe(personaWav(p).byteLength),
   },
   "GET /api/sessions/[sessionId]/recording/chunks": {
     request: (_p, r) => ({ path: `/api/sessions/${r.sessionId}/recording/chunks` }),
-    allowed: async (res) => expect(await res.json()).toMatchObject({ received: expect.any(Number) }),
+    allowed: async (res) =>
+      expect(await res.json()).toMatchObject({ received: expect.any(Number) }),
   },
   "HEAD /api/sessions/[sessionId]/recording/chunks": {
     request: (_p, r) => ({ method: "HEAD", path: `/api/sessions/${r.sessionId}/recording/chunks` }),
@@ -375,12 +484,16 @@ const PROBES: Record<string, Probe> = {
       return {
         method: "PUT",
         path: `/api/sessions/${r.sessionId}/recording/chunks`,
-        headers: { "content-type": "application/octet-stream", "content-range": `bytes 0-${bytes.byteLength - 1}/${bytes.byteLength}` },
+        headers: {
+          "content-type": "application/octet-stream",
+          "content-range": `bytes 0-${bytes.byteLength - 1}/${bytes.byteLength}`,
+        },
         body: Buffer.from(bytes),
       };
     },
     state: (r) => recordingBytes(r.sessionId),
-    allowed: async (_res, p, r) => expect(await recordingBytes(r.sessionId)).toBe(personaWav(p).byteLength),
+    allowed: async (_res, p, r) =>
+      expect(await recordingBytes(r.sessionId)).toBe(personaWav(p).byteLength),
   },
 };
 
@@ -414,10 +527,15 @@ describe("route handlers", () => {
             }
             if (method !== "HEAD") {
               const body = (await res.json()) as { error: string; message: string };
-              expect(body).toMatchObject({ error: expected === 401 ? "unauthorized" : "forbidden", message: expect.any(String) });
+              expect(body).toMatchObject({
+                error: expected === 401 ? "unauthorized" : "forbidden",
+                message: expect.any(String),
+              });
             }
             if (probe.state) {
-              expect(await probe.state(r), "a refused call leaves the record as it was").toEqual(before);
+              expect(await probe.state(r), "a refused call leaves the record as it was").toEqual(
+                before,
+              );
               expect(await auditTotal(), "a refused call writes no audit entry").toBe(auditBefore);
             }
           });

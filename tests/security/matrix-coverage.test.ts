@@ -17,7 +17,8 @@ import {
 } from "./route-tree";
 
 const pageKeys = () => listPages().map((p) => p.pattern);
-const routeKeys = () => listRouteHandlers().flatMap((r) => r.methods.map((m) => routeKey(m, r.pattern)));
+const routeKeys = () =>
+  listRouteHandlers().flatMap((r) => r.methods.map((m) => routeKey(m, r.pattern)));
 const actionKeys = () => listServerActions().map(actionKey);
 
 /** What is on disk without a row, and what has a row but is not on disk. */
@@ -30,7 +31,9 @@ function gaps(onDisk: string[], matrix: string[]) {
 describe("reading the route tree", () => {
   it("finds the known pages, with route groups dropped and dynamic segments kept", () => {
     const pages = listPages();
-    expect(pages.find((p) => p.file === "app/(shop)/jobs/[jobId]/page.tsx")?.pattern).toBe("/jobs/[jobId]");
+    expect(pages.find((p) => p.file === "app/(shop)/jobs/[jobId]/page.tsx")?.pattern).toBe(
+      "/jobs/[jobId]",
+    );
     expect(pages.find((p) => p.file === "app/(auth)/sign-in/page.tsx")?.pattern).toBe("/sign-in");
     expect(pages.find((p) => p.file === "app/(shop)/page.tsx")?.pattern).toBe("/");
     // Every page file is listed once, and no two files claim one URL.
@@ -44,7 +47,11 @@ describe("reading the route tree", () => {
     // `export async function GET()`
     expect(byPattern.get("/api/health")).toEqual(["GET"]);
     // `export const GET = …; export const HEAD = …; export const PUT = …`
-    expect(byPattern.get("/api/sessions/[sessionId]/recording/chunks")).toEqual(["GET", "HEAD", "PUT"]);
+    expect(byPattern.get("/api/sessions/[sessionId]/recording/chunks")).toEqual([
+      "GET",
+      "HEAD",
+      "PUT",
+    ]);
   });
 
   it("maps folders to URL patterns the way the App Router does", () => {
@@ -82,7 +89,11 @@ describe("the matrix and the app agree", () => {
   });
 
   it("gives every row an outcome for each of the five personas and a reason", () => {
-    for (const [key, row] of [...Object.entries(PAGE_MATRIX), ...Object.entries(ROUTE_MATRIX), ...Object.entries(ACTION_MATRIX)]) {
+    for (const [key, row] of [
+      ...Object.entries(PAGE_MATRIX),
+      ...Object.entries(ROUTE_MATRIX),
+      ...Object.entries(ACTION_MATRIX),
+    ]) {
       for (const p of PERSONAS) expect(row[p], `${key} for ${p}`).toBeDefined();
       expect(row.why.length, key).toBeGreaterThan(10);
     }
@@ -100,14 +111,25 @@ describe("the check catches a route added without a row", () => {
   };
 
   it("reports the new page, the new method and the new action as missing", () => {
-    write("app/(shop)/tools/[toolId]/page.tsx", "export default function Page() { return null; }\n");
-    write("app/api/tools/route.ts", 'export async function GET() { return new Response("[]"); }\nexport const DELETE = GET;\n');
+    write(
+      "app/(shop)/tools/[toolId]/page.tsx",
+      "export default function Page() { return null; }\n",
+    );
+    write(
+      "app/api/tools/route.ts",
+      'export async function GET() { return new Response("[]"); }\nexport const DELETE = GET;\n',
+    );
     write("lib/actions/tools.ts", '"use server";\nexport async function lendTool() {}\n');
     const pages = listPages(path.join(tmp, "app")).map((p) => p.pattern);
-    const routes = listRouteHandlers(path.join(tmp, "app")).flatMap((r) => r.methods.map((m) => routeKey(m, r.pattern)));
+    const routes = listRouteHandlers(path.join(tmp, "app")).flatMap((r) =>
+      r.methods.map((m) => routeKey(m, r.pattern)),
+    );
     const actions = listServerActions([path.join(tmp, "lib")]).map((a) => a.name);
     expect(gaps(pages, Object.keys(PAGE_MATRIX)).missing).toEqual(["/tools/[toolId]"]);
-    expect(gaps(routes, Object.keys(ROUTE_MATRIX)).missing).toEqual(["GET /api/tools", "DELETE /api/tools"]);
+    expect(gaps(routes, Object.keys(ROUTE_MATRIX)).missing).toEqual([
+      "GET /api/tools",
+      "DELETE /api/tools",
+    ]);
     expect(actions).toEqual(["lendTool"]);
   });
 
@@ -116,6 +138,8 @@ describe("the check catches a route added without a row", () => {
       "app/(shop)/tools/page.tsx",
       'export default function Page() {\n  async function lend() {\n    "use server";\n  }\n  return <form action={lend} />;\n}\n',
     );
-    expect(listInlineServerActions([path.join(tmp, "app")])).toEqual([expect.stringMatching(/tools\/page\.tsx:2$/)]);
+    expect(listInlineServerActions([path.join(tmp, "app")])).toEqual([
+      expect.stringMatching(/tools\/page\.tsx:2$/),
+    ]);
   });
 });

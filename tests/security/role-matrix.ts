@@ -24,7 +24,13 @@
  * For what belongs to no job (people, outbox, specifications, audit, the jobs list, health,
  * sign-in) the two technician personas are the same person and get the same answer.
  */
-export const PERSONAS = ["anonymous", "technicianOwnJob", "technicianOtherJob", "supervisor", "admin"] as const;
+export const PERSONAS = [
+  "anonymous",
+  "technicianOwnJob",
+  "technicianOtherJob",
+  "supervisor",
+  "admin",
+] as const;
 export type Persona = (typeof PERSONAS)[number];
 
 /** Which demo job a persona's job-tied records belong to. */
@@ -45,7 +51,8 @@ export const TARGET_JOB: Record<Persona, "MHW-0141" | "MHW-0142"> = {
  * - "redirect:/sign-in": 307 to /sign-in, with callbackUrl set to where the caller was going;
  * - "redirect:/jobs": 307 to the jobs board.
  */
-export type PageOutcome = "page" | "page:read-only" | "forbidden" | "redirect:/sign-in" | "redirect:/jobs";
+export type PageOutcome =
+  "page" | "page:read-only" | "forbidden" | "redirect:/sign-in" | "redirect:/jobs";
 
 /**
  * What a route handler answers: the HTTP status. 401 and 403 are JSON `{ error, message }`

@@ -80,7 +80,8 @@ function mentionsUseServer(abs: string): string | null {
 }
 
 const hasExport = (node: ts.Node) =>
-  ts.canHaveModifiers(node) && (ts.getModifiers(node) ?? []).some((m) => m.kind === ts.SyntaxKind.ExportKeyword);
+  ts.canHaveModifiers(node) &&
+  (ts.getModifiers(node) ?? []).some((m) => m.kind === ts.SyntaxKind.ExportKeyword);
 
 /** Every name a module exports: declarations, `export { a as B }` lists and re-exports. */
 export function exportedNames(source: ts.SourceFile): string[] {
@@ -89,8 +90,14 @@ export function exportedNames(source: ts.SourceFile): string[] {
     if (ts.isFunctionDeclaration(st) && hasExport(st) && st.name) names.push(st.name.text);
     else if (ts.isClassDeclaration(st) && hasExport(st) && st.name) names.push(st.name.text);
     else if (ts.isVariableStatement(st) && hasExport(st)) {
-      for (const d of st.declarationList.declarations) if (ts.isIdentifier(d.name)) names.push(d.name.text);
-    } else if (ts.isExportDeclaration(st) && !st.isTypeOnly && st.exportClause && ts.isNamedExports(st.exportClause)) {
+      for (const d of st.declarationList.declarations)
+        if (ts.isIdentifier(d.name)) names.push(d.name.text);
+    } else if (
+      ts.isExportDeclaration(st) &&
+      !st.isTypeOnly &&
+      st.exportClause &&
+      ts.isNamedExports(st.exportClause)
+    ) {
       for (const el of st.exportClause.elements) if (!el.isTypeOnly) names.push(el.name.text);
     }
   }
@@ -101,7 +108,8 @@ export function exportedNames(source: ts.SourceFile): string[] {
 function directives(statements: ts.NodeArray<ts.Statement>): string[] {
   const out: string[] = [];
   for (const st of statements) {
-    if (ts.isExpressionStatement(st) && ts.isStringLiteral(st.expression)) out.push(st.expression.text);
+    if (ts.isExpressionStatement(st) && ts.isStringLiteral(st.expression))
+      out.push(st.expression.text);
     else break;
   }
   return out;
@@ -131,7 +139,9 @@ export function listRouteHandlers(appDir = path.join(ROOT, "app")): RouteHandler
 }
 
 /** Every exported function of every module whose first statement is "use server". */
-export function listServerActions(dirs = ["app", "lib", "components"].map((d) => path.join(ROOT, d))): ServerActionEntry[] {
+export function listServerActions(
+  dirs = ["app", "lib", "components"].map((d) => path.join(ROOT, d)),
+): ServerActionEntry[] {
   const out: ServerActionEntry[] = [];
   for (const dir of dirs) {
     walk(dir, (abs, name) => {
@@ -151,7 +161,9 @@ export function listServerActions(dirs = ["app", "lib", "components"].map((d) =>
  * component). They are public endpoints like any other action, but have no name the matrix could
  * list, so the coverage test refuses them.
  */
-export function listInlineServerActions(dirs = ["app", "lib", "components"].map((d) => path.join(ROOT, d))): string[] {
+export function listInlineServerActions(
+  dirs = ["app", "lib", "components"].map((d) => path.join(ROOT, d)),
+): string[] {
   const out: string[] = [];
   for (const dir of dirs) {
     walk(dir, (abs, name) => {
@@ -160,7 +172,12 @@ export function listInlineServerActions(dirs = ["app", "lib", "components"].map(
       if (text === null) return;
       const source = parse(abs, text);
       const visit = (node: ts.Node): void => {
-        if (ts.isFunctionLike(node) && "body" in node && node.body && ts.isBlock(node.body as ts.Node)) {
+        if (
+          ts.isFunctionLike(node) &&
+          "body" in node &&
+          node.body &&
+          ts.isBlock(node.body as ts.Node)
+        ) {
           if (directives((node.body as ts.Block).statements).includes("use server")) {
             const { line } = source.getLineAndCharacterOfPosition(node.getStart());
             out.push(`${rel(abs)}:${line + 1}`);
