@@ -296,6 +296,35 @@ describe("pages", () => {
   }
 });
 
+describe("the sign-in page sends a signed-in caller on within this site only", () => {
+  // Each of these is read by browsers (WHATWG URL parsing) as a link to another site.
+  for (const elsewhere of [
+    "//elsewhere.example/x",
+    "/\\elsewhere.example/x",
+    "/\t/elsewhere.example/x",
+    "https://elsewhere.example/x",
+  ]) {
+    it(`callbackUrl ${JSON.stringify(elsewhere)}: to the jobs board`, async () => {
+      const res = await ines.send({
+        path: `/sign-in?callbackUrl=${encodeURIComponent(elsewhere)}`,
+      });
+      expect(res.status).toBe(307);
+      const to = new URL(res.headers.get("location")!, baseURL);
+      expect(to.origin).toBe(baseURL);
+      expect(to.pathname).toBe("/jobs");
+    });
+  }
+
+  it("a path on this site is kept, with its query", async () => {
+    const res = await ines.send({
+      path: `/sign-in?callbackUrl=${encodeURIComponent("/jobs?mine=1")}`,
+    });
+    expect(res.status).toBe(307);
+    const to = new URL(res.headers.get("location")!, baseURL);
+    expect(`${to.origin}${to.pathname}${to.search}`).toBe(`${baseURL}/jobs?mine=1`);
+  });
+});
+
 // ---------------------------------------------------------------- route handlers
 
 interface Probe {
