@@ -9,7 +9,7 @@ import { assertCanWorkOn } from "@/lib/auth/job-access";
 import { recordAudit } from "@/lib/audit";
 import { BadRequestError, ConflictError, NotFoundError } from "@/lib/errors";
 import { createHeadWithSeats } from "@/lib/heads/create";
-import { canMove, isClosed } from "@/lib/jobs/lifecycle";
+import { canMove, isClosed, isReviewDecision } from "@/lib/jobs/lifecycle";
 import { jobFormSchema, jobStatusChangeSchema, type JobFormValues } from "@/lib/validations/jobs";
 import { actionFailure, type ActionState } from "./state";
 
@@ -178,6 +178,11 @@ export async function changeJobStatus(_prev: ActionState, formData: FormData): P
       if (!job) throw new NotFoundError("That job does not exist in your shop.");
       // A technician moves only the jobs they may work on (assigned to them, or to nobody).
       if (actor.role === "technician") assertCanWorkOn(actor, job);
+      if (isReviewDecision(job.status, to)) {
+        throw new ConflictError(
+          `Job ${job.number} is signed off, sent back or reopened only by a supervisor's review, with a comment or a reason: use the review panel on the job page.`,
+        );
+      }
       if (!canMove(job.status, to, actor.role)) {
         throw new ConflictError(`A ${actor.role} cannot move job ${job.number} from ${job.status.replace("_", " ")} to ${to.replace("_", " ")}.`);
       }

@@ -101,18 +101,30 @@ describe("booking in and editing jobs (jobs:manage is for supervisors and admins
 });
 
 describe("moving a job through its life cycle (lib/jobs/lifecycle.ts)", () => {
-  it("a technician cannot sign off; a supervisor can", async () => {
-    const job = await statusOf("MHW-0143"); // demo data: awaiting audit, assigned to Ines
+  it("nobody signs off by a status move: a technician is refused, and so is a supervisor, whose sign-off is the review's", async () => {
+    const job = await statusOf("MHW-0143"); // demo data: awaiting audit, assigned to Ines, seats settled but not approved
     expect(job.status).toBe("awaiting_audit");
+    const before = await h.snapshot(db());
+    const review = /signed off, sent back or reopened only by a supervisor's review/;
     signInAs("ines");
-    expect(await move(job.id, "signed_off")).toMatchObject({
-      ok: false,
-      message: "A technician cannot move job MHW-0143 from awaiting audit to signed off.",
-    });
-    expect((await statusOf("MHW-0143")).status).toBe("awaiting_audit");
+    expect(await move(job.id, "signed_off")).toMatchObject({ ok: false, message: expect.stringMatching(review) });
     signInAs("rhea");
-    expect(await move(job.id, "signed_off")).toMatchObject({ ok: true });
+    // The review would refuse: no seat of MHW-0143 is approved yet.
+    expect(await move(job.id, "signed_off")).toMatchObject({ ok: false, message: expect.stringMatching(review) });
+    expect(await move(job.id, "at_bench")).toMatchObject({ ok: false, message: expect.stringMatching(review) });
+    expect((await statusOf("MHW-0143")).status).toBe("awaiting_audit");
+    expect(await h.snapshot(db())).toEqual(before);
+  });
+
+  it("a supervisor does not reopen a signed-off job by a status move either, but may mark it collected", async () => {
+    const job = await statusOf("MHW-0143");
+    await h.setStatus(db(), job.id, "signed_off");
+    signInAs("rhea");
+    expect(await move(job.id, "at_bench")).toMatchObject({ ok: false, message: expect.stringMatching(/only by a supervisor's review/) });
     expect((await statusOf("MHW-0143")).status).toBe("signed_off");
+    expect(await move(job.id, "collected")).toMatchObject({ ok: true });
+    expect((await statusOf("MHW-0143")).status).toBe("collected");
+    await h.setStatus(db(), job.id, "awaiting_audit");
   });
 
   it("the assigned technician hands in for audit; another technician cannot", async () => {

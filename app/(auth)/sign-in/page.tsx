@@ -5,9 +5,16 @@ import { SignInForm } from "@/components/auth/sign-in-form";
 
 export const metadata: Metadata = { title: "Sign in" };
 
+// Where to go after signing in: a path on this site only. The value is parsed as browsers parse
+// a link (WHATWG URL): "//host", a backslash as in "/\host", or a tab or newline inside "/<tab>/host"
+// all lead browsers to another site, so they are refused; a good path is passed on as parsed.
+const HERE = "http://grindfade.invalid";
+
 function safeCallback(value: string | string[] | undefined): string {
   const v = Array.isArray(value) ? value[0] : value;
-  return v && v.startsWith("/") && !v.startsWith("//") ? v : "/jobs";
+  if (!v || !v.startsWith("/")) return "/jobs";
+  const url = URL.canParse(v, HERE) ? new URL(v, HERE) : null;
+  return url && url.origin === HERE ? `${url.pathname}${url.search}${url.hash}` : "/jobs";
 }
 
 export default async function SignInPage({ searchParams }: PageProps<"/sign-in">) {
