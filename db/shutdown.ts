@@ -30,7 +30,10 @@ export interface ShutdownProcess {
 
 const EXIT_CODES = { SIGTERM: 143, SIGINT: 130 } as const;
 
-export function installGracefulShutdown(database: ClosableDatabase, options: ShutdownOptions = {}): void {
+export function installGracefulShutdown(
+  database: ClosableDatabase,
+  options: ShutdownOptions = {},
+): void {
   const proc = options.proc ?? (process as unknown as ShutdownProcess);
   const drainMs = options.drainMs ?? 5_000;
   const quietMs = options.quietMs ?? 250;
@@ -54,10 +57,14 @@ export function installGracefulShutdown(database: ClosableDatabase, options: Shu
           // PGlite's close() waits for the query or transaction that is running, then writes a
           // shutdown checkpoint; the pool's end() waits for checked-out clients.
           await database.close();
-          log(`Grindfade stopped on ${signal} (${why}): database (${database.kind}) closed cleanly in ${Date.now() - t0} ms.`);
+          log(
+            `Grindfade stopped on ${signal} (${why}): database (${database.kind}) closed cleanly in ${Date.now() - t0} ms.`,
+          );
         } catch (err) {
           exitCode = 1;
-          log(`Grindfade stopped on ${signal}: the database did not close cleanly (${err instanceof Error ? err.message : String(err)}).`);
+          log(
+            `Grindfade stopped on ${signal}: the database did not close cleanly (${err instanceof Error ? err.message : String(err)}).`,
+          );
         }
         realExit(exitCode);
       })();
@@ -69,13 +76,18 @@ export function installGracefulShutdown(database: ClosableDatabase, options: Shu
     // Kept-alive connections hold the HTTP server open for seconds after its last answer, so the
     // database also counts as drained once it has been idle for quietMs, and the wait is bounded.
     let idleSince = database.busy() ? null : t0;
-    timer = setInterval(() => {
-      const now = Date.now();
-      if (database.busy()) idleSince = null;
-      else idleSince ??= now;
-      if (idleSince !== null && now - idleSince >= quietMs) finish(EXIT_CODES[signal], "no work in flight");
-      else if (now - t0 >= drainMs) finish(EXIT_CODES[signal], `work still in flight after ${drainMs} ms`);
-    }, Math.max(10, Math.min(50, quietMs / 5)));
+    timer = setInterval(
+      () => {
+        const now = Date.now();
+        if (database.busy()) idleSince = null;
+        else idleSince ??= now;
+        if (idleSince !== null && now - idleSince >= quietMs)
+          finish(EXIT_CODES[signal], "no work in flight");
+        else if (now - t0 >= drainMs)
+          finish(EXIT_CODES[signal], `work still in flight after ${drainMs} ms`);
+      },
+      Math.max(10, Math.min(50, quietMs / 5)),
+    );
   };
 
   proc.once("SIGTERM", () => stop("SIGTERM"));

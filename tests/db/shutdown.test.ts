@@ -5,10 +5,14 @@ import fs from "node:fs";
 import path from "node:path";
 import { sql } from "drizzle-orm";
 import { afterEach, describe, expect, it } from "vitest";
-import { installGracefulShutdown, type ClosableDatabase, type ShutdownProcess } from "@/db/shutdown";
+import {
+  installGracefulShutdown,
+  type ClosableDatabase,
+  type ShutdownProcess,
+} from "@/db/shutdown";
 import { openDatabase } from "@/db/client";
 import { clusterState } from "../helpers/pg-control";
-import { freshPglite, type TestDatabase } from "../helpers/db";
+import { freshPglite, freshServerDatabase, serverUrl, type TestDatabase } from "../helpers/db";
 
 class FakeProcess extends EventEmitter implements ShutdownProcess {
   exits: number[] = [];
@@ -41,7 +45,13 @@ describe("graceful stop", () => {
     const proc = new FakeProcess();
     const lines: string[] = [];
     let stopping = false;
-    installGracefulShutdown(open, { proc, quietMs: 50, drainMs: 5000, log: (l) => lines.push(l), onStopping: () => (stopping = true) });
+    installGracefulShutdown(open, {
+      proc,
+      quietMs: 50,
+      drainMs: 5000,
+      log: (l) => lines.push(l),
+      onStopping: () => (stopping = true),
+    });
 
     expect(open.busy()).toBe(false);
     let release!: () => void;
@@ -80,10 +90,17 @@ describe("graceful stop", () => {
       busy: () => true,
       close: () => {
         order.push("close started");
-        return new Promise<void>((r) => (finishClose = r)).then(() => void order.push("close finished"));
+        return new Promise<void>((r) => (finishClose = r)).then(
+          () => void order.push("close finished"),
+        );
       },
     };
-    installGracefulShutdown(database, { proc, quietMs: 50, drainMs: 5000, log: (l) => order.push(l) });
+    installGracefulShutdown(database, {
+      proc,
+      quietMs: 50,
+      drainMs: 5000,
+      log: (l) => order.push(l),
+    });
     proc.emit("SIGTERM", "SIGTERM");
     // What `next start` does once its HTTP server has answered every request:
     proc.exit(143);
@@ -122,4 +139,27 @@ describe("graceful stop", () => {
     expect(await proc.exited).toBe(1);
     expect(lines[0]).toMatch(/did not close cleanly \(disk gone\)/);
   });
+
+  it.skipIf(!serverUrl())(
+    "on a PostgreSQL server, a transaction counts as work in flight until it ends",
+    async () => {
+      const t = await freshServerDatabase(serverUrl()!);
+      try {
+        expect(t.busy()).toBe(false);
+        let release!: () => void;
+        const gate = new Promise<void>((r) => (release = r));
+        const tx = t.db.transaction(async (x) => {
+          await x.execute(sql`select 1`);
+          await gate;
+        });
+        await sleep(50);
+        expect(t.busy()).toBe(true);
+        release();
+        await tx;
+        expect(t.busy()).toBe(false);
+      } finally {
+        await t.cleanup();
+      }
+    },
+  );
 });
