@@ -6,14 +6,17 @@ import path from "node:path";
 import { fileURLToPath } from "node:url";
 import type { PgDatabase, PgQueryResultHKT } from "drizzle-orm/pg-core";
 import * as schema from "./schema";
-import { DatabaseStartError } from "@/lib/errors";
+import { DatabaseStartError, DatabaseStoppingError } from "@/lib/errors";
 import { serverEnv } from "@/lib/env";
+import { installGracefulShutdown } from "./shutdown";
 
 export type Db = PgDatabase<PgQueryResultHKT, typeof schema>;
 
 export interface DatabaseHandle {
   db: Db;
   kind: "pglite" | "postgres";
+  /** True while a query or transaction is running or waiting for its turn. */
+  busy(): boolean;
   close(): Promise<void>;
 }
 
@@ -79,9 +82,31 @@ async function openPglite(dir: string): Promise<DatabaseHandle> {
         `or restore it from a backup. It was left untouched.`,
     );
   }
+  const busy = countActivity(client);
   const db = drizzle({ client, schema });
   await migrate(db, { migrationsFolder: migrationsFolder() });
-  return { db: db as unknown as Db, kind: "pglite", close: () => client.close() };
+  return { db: db as unknown as Db, kind: "pglite", busy, close: () => client.close() };
+}
+
+/**
+ * Counts the client's queries and transactions from the call until they settle (PGlite runs
+ * one at a time, so this includes the ones waiting for their turn). The graceful stop reads it.
+ */
+function countActivity<C extends { query: unknown; exec: unknown; transaction: unknown }>(client: C): () => boolean {
+  let inFlight = 0;
+  for (const name of ["query", "exec", "transaction"] as const) {
+    const original = (client[name] as (...args: unknown[]) => Promise<unknown>).bind(client);
+    const counted = async (...args: unknown[]) => {
+      inFlight++;
+      try {
+        return await original(...args);
+      } finally {
+        inFlight--;
+      }
+    };
+    Object.defineProperty(client, name, { value: counted, configurable: true, writable: true });
+  }
+  return () => inFlight > 0;
 }
 
 async function openPostgres(url: string): Promise<DatabaseHandle> {
@@ -101,7 +126,9 @@ async function openPostgres(url: string): Promise<DatabaseHandle> {
   }
   const db = drizzle({ client: pool, schema });
   await migrate(db, { migrationsFolder: migrationsFolder() });
-  return { db: db as unknown as Db, kind: "postgres", close: () => pool.end() };
+  // A checked-out client is running a query or holding a transaction.
+  const busy = () => pool.waitingCount > 0 || pool.totalCount > pool.idleCount;
+  return { db: db as unknown as Db, kind: "postgres", busy, close: () => pool.end() };
 }
 
 /** Opens a database without touching the process-wide one (migration tests, scripts). */
@@ -114,11 +141,16 @@ export async function openDatabase(options: {
   return openPglite(options.pgliteDir);
 }
 
-type GlobalWithDb = typeof globalThis & { __grindfadeDb?: Promise<DatabaseHandle> };
+// On globalThis, not in module variables: Next bundles this module more than once (start-up
+// and each route), and every copy must see the one database and the one stopping flag.
+type GlobalWithDb = typeof globalThis & { __grindfadeDb?: Promise<DatabaseHandle>; __grindfadeStopping?: boolean };
 const g = globalThis as GlobalWithDb;
 
 /** The process-wide database: opened, migrated and seeded on first use, then reused. */
 export function getDatabase(): Promise<DatabaseHandle> {
+  // Once the server is stopping, new work is refused before it touches the database; the
+  // caller is told to send it again (the bench outbox retries a 503).
+  if (g.__grindfadeStopping) return Promise.reject(new DatabaseStoppingError());
   if (!g.__grindfadeDb) {
     const env = serverEnv();
     const opening = (async () => {
@@ -127,7 +159,8 @@ export function getDatabase(): Promise<DatabaseHandle> {
         const { seedDemoShop } = await import("./seed");
         await seedDemoShop(handle.db);
       }
-      registerShutdown(handle);
+      // Registered once: this runs inside the one shared opening.
+      installGracefulShutdown(handle, { onStopping: () => (g.__grindfadeStopping = true) });
       return handle;
     })();
     // A failed start is not cached: the next request tries again after the cause is fixed.
@@ -141,18 +174,4 @@ export function getDatabase(): Promise<DatabaseHandle> {
 
 export async function getDb(): Promise<Db> {
   return (await getDatabase()).db;
-}
-
-let shutdownRegistered = false;
-function registerShutdown(handle: DatabaseHandle) {
-  if (shutdownRegistered) return;
-  shutdownRegistered = true;
-  const close = (signal: NodeJS.Signals) => {
-    handle
-      .close()
-      .catch(() => {})
-      .finally(() => process.exit(signal === "SIGINT" ? 130 : 143));
-  };
-  process.once("SIGTERM", close);
-  process.once("SIGINT", close);
 }

@@ -47,6 +47,14 @@ export class DatabaseStartError extends AppError {
   override readonly status = 503;
 }
 
+/** The server is stopping: the request was not carried out and can be sent again. */
+export class DatabaseStoppingError extends AppError {
+  override readonly status = 503;
+  constructor(message = "Grindfade is restarting; nothing was changed. Send it again in a moment.") {
+    super(message);
+  }
+}
+
 export function fieldErrorsOf(error: ZodError): Record<string, string[]> {
   const out: Record<string, string[]> = {};
   for (const issue of error.issues) {

@@ -1,6 +1,7 @@
 // Server start-up: open the database, apply migrations and seed the demo shop before the first
 // request, then start the mail worker; stop the process with one clear line if the database
-// cannot be used.
+// cannot be used. The graceful stop on SIGTERM/SIGINT is db/shutdown.ts, installed with the
+// database.
 import { getDatabase, getDb } from "@/db/client";
 import { startMailWorker } from "@/lib/mail/worker";
 
@@ -10,7 +11,10 @@ export async function startServer(): Promise<void> {
     console.log(`Grindfade database ready (${kind}).`);
     // Tests shorten the worker's pause between passes; 30 s is plenty for a shop.
     const intervalMs = Number(process.env.GRINDFADE_MAIL_INTERVAL_MS) || 30_000;
-    startMailWorker(getDb, Math.max(250, intervalMs));
+    const worker = startMailWorker(getDb, Math.max(250, intervalMs));
+    // No new mail pass once the server is stopping; a pass already running finishes.
+    process.once("SIGTERM", () => worker.stop());
+    process.once("SIGINT", () => worker.stop());
   } catch (err) {
     console.error(`Grindfade cannot start: ${err instanceof Error ? err.message : String(err)}`);
     process.exit(1);

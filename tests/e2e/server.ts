@@ -9,7 +9,17 @@ import path from "node:path";
 export interface RunningServer {
   baseURL: string;
   dataDir: string;
+  /** Stops the server (SIGTERM, then SIGKILL after 10 s) and removes a data directory it made. */
   stop(): Promise<void>;
+  /** Sends the signal and resolves once the process has exited; the data directory is kept. */
+  kill(signal: NodeJS.Signals): Promise<{ code: number | null; signal: NodeJS.Signals | null }>;
+  /** Everything the server printed so far (stdout and stderr). */
+  output(): string;
+}
+
+export interface StartOptions {
+  /** Serve this data directory (kept on stop) instead of a fresh one (removed on stop). */
+  dataDir?: string;
 }
 
 export function freePort(): Promise<number> {
@@ -36,10 +46,15 @@ export function buildApp(secret: string, force: boolean): void {
   if (build.status !== 0) throw new Error(`next build failed:\n${build.stdout}\n${build.stderr}`);
 }
 
-export async function startServer(secret: string, extraEnv: Record<string, string> = {}): Promise<RunningServer> {
+export async function startServer(
+  secret: string,
+  extraEnv: Record<string, string> = {},
+  options: StartOptions = {},
+): Promise<RunningServer> {
   const port = await freePort();
   const baseURL = `http://127.0.0.1:${port}`;
-  const dataDir = fs.mkdtempSync(path.join(os.tmpdir(), "grindfade-e2e-"));
+  const ownDataDir = !options.dataDir;
+  const dataDir = options.dataDir ?? fs.mkdtempSync(path.join(os.tmpdir(), "grindfade-e2e-"));
   let output = "";
   const env: NodeJS.ProcessEnv = {
     ...process.env,
@@ -58,6 +73,9 @@ export async function startServer(secret: string, extraEnv: Record<string, strin
   });
   child.stdout?.on("data", (d) => (output += d));
   child.stderr?.on("data", (d) => (output += d));
+  const exited = new Promise<{ code: number | null; signal: NodeJS.Signals | null }>((resolve) =>
+    child.once("exit", (code, signal) => resolve({ code, signal })),
+  );
   const deadline = Date.now() + 120_000;
   for (;;) {
     if (child.exitCode !== null) throw new Error(`next start exited (${child.exitCode}):\n${output}`);
@@ -66,27 +84,29 @@ export async function startServer(secret: string, extraEnv: Record<string, strin
     } catch {
       /* not up yet */
     }
-    if (Date.now() > deadline) throw new Error(`next start did not become healthy in time:\n${output}`);
+    if (Date.now() > deadline) {
+      child.kill("SIGKILL");
+      throw new Error(`next start did not become healthy in time:\n${output}`);
+    }
     await new Promise((r) => setTimeout(r, 250));
   }
+  const running = () => child.exitCode === null && child.signalCode === null;
   return {
     baseURL,
     dataDir,
+    output: () => output,
+    kill: async (signal) => {
+      if (running()) child.kill(signal);
+      return exited;
+    },
     stop: async () => {
-      if (child.exitCode === null) {
+      if (running()) {
         child.kill("SIGTERM");
-        await new Promise((r) => {
-          const t = setTimeout(() => {
-            child.kill("SIGKILL");
-            r(null);
-          }, 5000);
-          child.once("exit", () => {
-            clearTimeout(t);
-            r(null);
-          });
-        });
+        const t = setTimeout(() => child.kill("SIGKILL"), 10_000);
+        await exited;
+        clearTimeout(t);
       }
-      fs.rmSync(dataDir, { recursive: true, force: true });
+      if (ownDataDir) fs.rmSync(dataDir, { recursive: true, force: true });
     },
   };
 }
