@@ -43,6 +43,14 @@ export class ConflictError extends AppError {
   override readonly status = 409;
 }
 
+export class PayloadTooLargeError extends AppError {
+  override readonly status = 413;
+}
+
+export class UnsupportedMediaTypeError extends AppError {
+  override readonly status = 415;
+}
+
 export class DatabaseStartError extends AppError {
   override readonly status = 503;
 }

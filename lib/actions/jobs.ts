@@ -3,12 +3,13 @@
 import { and, count, eq, inArray, sql } from "drizzle-orm";
 import { revalidatePath } from "next/cache";
 import { getDb } from "@/db/client";
-import { customers, heads, jobs, lappingSessions, measurements, seats, shops, strokes, users, torqueSheets } from "@/db/schema";
+import { customers, engineSpecs, heads, jobs, lappingSessions, measurements, seats, shops, strokes, users, torqueSheets } from "@/db/schema";
 import { requireActor } from "@/lib/auth/guard";
 import { assertCanWorkOn } from "@/lib/auth/job-access";
 import { recordAudit } from "@/lib/audit";
 import { BadRequestError, ConflictError, NotFoundError } from "@/lib/errors";
 import { createHeadWithSeats } from "@/lib/heads/create";
+import { parseId } from "@/lib/http";
 import { canMove, isClosed, isReviewDecision } from "@/lib/jobs/lifecycle";
 import { jobFormSchema, jobStatusChangeSchema, type JobFormValues } from "@/lib/validations/jobs";
 import { actionFailure, type ActionState } from "./state";
@@ -36,6 +37,13 @@ async function checkRefs(tx: Tx, shopId: string, v: JobFormValues): Promise<stri
     if (!tech || tech.role === "admin") {
       throw new BadRequestError("Assign a technician or supervisor of this shop.", { assignedTechnicianId: ["Not someone who can lap."] });
     }
+  }
+  if (v.engineSpecId) {
+    const [spec] = await tx
+      .select({ id: engineSpecs.id })
+      .from(engineSpecs)
+      .where(and(eq(engineSpecs.id, v.engineSpecId), eq(engineSpecs.shopId, shopId)));
+    if (!spec) throw new BadRequestError("That engine is not in your library.", { engineSpecId: ["Choose from the list."] });
   }
   if (v.customerId) {
     const [c] = await tx.select({ id: customers.id }).from(customers).where(and(eq(customers.id, v.customerId), eq(customers.shopId, shopId)));
@@ -99,6 +107,7 @@ export async function createJob(input: unknown): Promise<JobActionState> {
 export async function updateJob(jobId: string, input: unknown): Promise<JobActionState> {
   try {
     const actor = await requireActor("jobs:manage");
+    parseId(jobId, "The job id");
     const v = jobFormSchema.parse(input);
     const db = await getDb();
     await db.transaction(async (tx) => {

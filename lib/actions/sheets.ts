@@ -21,6 +21,7 @@ import {
   tickSchema,
   torqueSheetSetupSchema,
 } from "@/lib/validations/measurements";
+import { storableText } from "@/lib/validations/text";
 import { actionFailure, type ActionState } from "./state";
 
 
@@ -36,6 +37,9 @@ function done(jobId: string, sub: string, message: string): ActionState {
 }
 
 const jobIdSchema = z.string().uuid("Unknown job.");
+const noteSchema = z.object({
+  note: storableText(z.string().trim().max(300, "Keep the note under 300 characters.")).transform((v) => v || null),
+});
 
 export async function saveClearanceReading(_prev: ActionState, f: FormData): Promise<ActionState> {
   try {
@@ -126,6 +130,7 @@ export async function saveMeasurement(_prev: ActionState, f: FormData): Promise<
     if (m.kind === "journal_clearance") {
       return { ok: false, message: "Record journal clearances on the clearance sheet.", fieldErrors: { kind: ["Use the clearance sheet."] } };
     }
+    const { note } = noteSchema.parse({ note: text(f, "note") ?? "" });
     const si = measurementSi(m);
     const result = await recordMeasurement(await getDb(), actor, {
       jobId,
@@ -135,7 +140,7 @@ export async function saveMeasurement(_prev: ActionState, f: FormData): Promise<
       enteredUnit: m.unit,
       method: m.method ?? null,
       spec: si.min !== null || si.max !== null ? { min: si.min, max: si.max } : null,
-      note: text(f, "note")?.trim() || null,
+      note,
     });
     return done(jobId, "measurements", result.verdict ? `Saved — ${RANGE_VERDICT_LABELS[result.verdict]}.` : "Saved (no specification to judge against).");
   } catch (err) {
@@ -146,9 +151,9 @@ export async function saveMeasurement(_prev: ActionState, f: FormData): Promise<
 const valveIdentitySchema = z.object({
   jobId: z.string().uuid(),
   valveId: z.string().uuid("Unknown valve."),
-  tag: z.string().trim().min(1, "Give the valve a tag.").max(20, "Keep the tag under 20 characters."),
-  partNumber: z.string().trim().max(40, "Keep the part number under 40 characters.").transform((v) => v || null),
-  serial: z.string().trim().max(40, "Keep the serial under 40 characters.").transform((v) => v || null),
+  tag: storableText(z.string().trim().min(1, "Give the valve a tag.").max(20, "Keep the tag under 20 characters.")),
+  partNumber: storableText(z.string().trim().max(40, "Keep the part number under 40 characters.")).transform((v) => v || null),
+  serial: storableText(z.string().trim().max(40, "Keep the serial under 40 characters.")).transform((v) => v || null),
 });
 
 export async function saveValveIdentity(_prev: ActionState, f: FormData): Promise<ActionState> {

@@ -11,6 +11,7 @@ import { ConflictError, NotFoundError } from "@/lib/errors";
 import { isClosed } from "@/lib/jobs/lifecycle";
 import { SPEC_KEYS, type SpecKey } from "@/lib/specs/keys";
 import { engineSpecSchema, specFigureSchema } from "@/lib/validations/specs";
+import { storableText } from "@/lib/validations/text";
 import { actionFailure, type ActionState } from "./state";
 
 const text = (f: FormData, k: string) => {
@@ -89,7 +90,9 @@ export async function saveJobOverride(_prev: ActionState, f: FormData): Promise<
   try {
     const actor = await requireActor("specs:manage");
     const jobId = z.string().uuid("Unknown job.").parse(text(f, "jobId"));
-    const reason = z.string().trim().min(3, "Say why this job differs from the library.").max(300).parse(text(f, "reason") ?? "");
+    const { reason } = z
+      .object({ reason: storableText(z.string().trim().min(3, "Say why this job differs from the library.").max(300, "Keep the reason under 300 characters.")) })
+      .parse({ reason: text(f, "reason") ?? "" });
     const v = figureFrom(f);
     const key = v.key as SpecKey;
     const db = await getDb();

@@ -19,7 +19,7 @@ import { judgeSeat, type SeatVerdict } from "@/lib/audio";
 import type { Actor } from "@/lib/auth/guard";
 import { assertCanWorkOn } from "@/lib/auth/job-access";
 import { recordAudit } from "@/lib/audit";
-import { ConflictError, NotFoundError } from "@/lib/errors";
+import { ConflictError, ForbiddenError, NotFoundError } from "@/lib/errors";
 import { seatCode, seatLabel } from "@/lib/heads/layout";
 import type { StartSessionInput, StrokeInput } from "@/lib/validations/bench";
 
@@ -56,6 +56,17 @@ function assertOpenForWork(ctx: SeatContext): void {
   }
   if (CLOSED_JOB_STATUSES.includes(ctx.job.status)) {
     throw new ConflictError(`Job ${ctx.job.number} is signed off; its seats are read-only.`);
+  }
+}
+
+/**
+ * A lapping session is one person's phone listening to a seat, so that the record says who
+ * lapped: another technician (on a job open to both) starts a session of their own rather than
+ * adding to it. Supervisors, who may work on any job of the shop, may also act on any session.
+ */
+function assertOwnSession(actor: Actor, session: { technicianId: string }, starterName: string): void {
+  if (actor.role === "technician" && session.technicianId !== actor.id) {
+    throw new ForbiddenError(`This session was started by ${starterName}; only their phone adds to it. Start your own session on this seat.`);
   }
 }
 
@@ -219,6 +230,10 @@ export async function startSession(db: Db, actor: Actor, seatId: string, input: 
       if (existing.seatId !== seatId || existing.stage !== input.stage) {
         throw new ConflictError("That session belongs to another seat or stage. Start a new session.");
       }
+      if (actor.role === "technician" && existing.technicianId !== actor.id) {
+        const [starter] = await tx.select({ name: users.name }).from(users).where(eq(users.id, existing.technicianId));
+        assertOwnSession(actor, existing, starter?.name ?? "someone else");
+      }
       await tx.update(lappingSessions).set({ lastSeenAt: new Date(), deviceId: input.deviceId }).where(eq(lappingSessions.id, existing.id));
       return { sessionId: existing.id, resumed: true };
     }
@@ -288,8 +303,9 @@ export async function startSession(db: Db, actor: Actor, seatId: string, input: 
 
 async function loadSession(db: Reader, shopId: string, sessionId: string) {
   const [row] = await db
-    .select({ session: lappingSessions, seat: seats, head: heads, job: jobs })
+    .select({ session: lappingSessions, seat: seats, head: heads, job: jobs, starterName: users.name })
     .from(lappingSessions)
+    .innerJoin(users, eq(users.id, lappingSessions.technicianId))
     .innerJoin(seats, eq(seats.id, lappingSessions.seatId))
     .innerJoin(heads, eq(heads.id, seats.headId))
     .innerJoin(jobs, eq(jobs.id, heads.jobId))
@@ -311,6 +327,7 @@ export interface StrokeSaveResult {
 export async function saveStrokes(db: Db, actor: Actor, sessionId: string, input: StrokeInput[]): Promise<StrokeSaveResult> {
   const ctx = await loadSession(db, actor.shopId, sessionId);
   assertCanWorkOn(actor, ctx.job);
+  assertOwnSession(actor, ctx.session, ctx.starterName);
   assertOpenForWork(ctx);
   return db.transaction(async (tx) => {
     // Lock the seat row so two saves for one seat judge it one after the other.
@@ -360,6 +377,7 @@ export async function saveStrokes(db: Db, actor: Actor, sessionId: string, input
 export async function endSession(db: Db, actor: Actor, sessionId: string): Promise<void> {
   const ctx = await loadSession(db, actor.shopId, sessionId);
   assertCanWorkOn(actor, ctx.job);
+  assertOwnSession(actor, ctx.session, ctx.starterName);
   if (ctx.session.endedAt) return;
   await db.transaction(async (tx) => {
     await tx
@@ -384,6 +402,7 @@ export async function attachRecording(
 ): Promise<void> {
   const ctx = await loadSession(db, actor.shopId, sessionId);
   assertCanWorkOn(actor, ctx.job);
+  assertOwnSession(actor, ctx.session, ctx.starterName);
   await db
     .update(lappingSessions)
     .set({ recordingKey: recording.key, recordingType: recording.type, recordingBytes: recording.bytes })
@@ -393,5 +412,6 @@ export async function attachRecording(
 export async function getSessionForUpload(db: Db, actor: Actor, sessionId: string) {
   const ctx = await loadSession(db, actor.shopId, sessionId);
   assertCanWorkOn(actor, ctx.job);
+  assertOwnSession(actor, ctx.session, ctx.starterName);
   return ctx;
 }

@@ -1,17 +1,22 @@
 // The review forms' shapes, shared by the actions and the JSON route alike.
 import { z } from "zod";
+import { isCalendarDate, storableText } from "@/lib/validations/text";
 
-const comment = z
-  .string({ error: "Write a comment." })
-  .trim()
-  .min(3, "Write at least 3 characters: what you checked, or what to redo.")
-  .max(2000, "Keep the comment under 2000 characters.");
+const comment = storableText(
+  z
+    .string({ error: "Write a comment." })
+    .trim()
+    .min(3, "Write at least 3 characters: what you checked, or what to redo.")
+    .max(2000, "Keep the comment under 2000 characters."),
+);
 
-const reason = z
-  .string({ error: "Give a reason for reopening." })
-  .trim()
-  .min(3, "Give a reason of at least 3 characters: why this is being reopened.")
-  .max(2000, "Keep the reason under 2000 characters.");
+const reason = storableText(
+  z
+    .string({ error: "Give a reason for reopening." })
+    .trim()
+    .min(3, "Give a reason of at least 3 characters: why this is being reopened.")
+    .max(2000, "Keep the reason under 2000 characters."),
+);
 
 const decision = z.enum(["approved", "sent_back"], { error: "Choose approve or send back." });
 
@@ -32,7 +37,13 @@ const optionalDay = z
   .trim()
   .optional()
   .transform((v) => (v ? v : undefined))
-  .pipe(z.string().regex(/^\d{4}-\d{2}-\d{2}$/, "Use a date like 2026-03-14.").optional());
+  .pipe(
+    z
+      .string()
+      .regex(/^\d{4}-\d{2}-\d{2}$/, { message: "Use a date like 2026-03-14.", abort: true })
+      .refine(isCalendarDate, "That day is not on the calendar.")
+      .optional(),
+  );
 
 /** The audit trail's filters, from a page's searchParams or a route's query string. */
 export const auditFilterSchema = z

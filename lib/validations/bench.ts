@@ -1,4 +1,5 @@
 import { z } from "zod";
+import { storableText } from "./text";
 
 export const stageSchema = z.enum(["coarse", "fine"], { error: "Stage must be coarse or fine." });
 
@@ -35,7 +36,7 @@ export const strokeBatchSchema = z.object({
 export const startSessionSchema = z.object({
   sessionId: z.string().uuid("sessionId must be a UUID made on the phone."),
   stage: stageSchema,
-  deviceId: z.string().trim().min(8, "deviceId is too short.").max(100),
+  deviceId: storableText(z.string().trim().min(8, "deviceId is too short.").max(100)),
   sampleRateHz: z.number().int().min(8000).max(192000).optional(),
   noiseFloorDb: z.number().finite().min(-200).max(0).optional(),
 });

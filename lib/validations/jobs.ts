@@ -1,5 +1,6 @@
 // One schema for the job form and its server action.
 import { z } from "zod";
+import { isCalendarDate, storableText } from "./text";
 
 const optionalUuid = z
   .string({ error: "Choose from the list." })
@@ -18,12 +19,14 @@ const count = (label: string, min: number, max: number) =>
 export const jobFormSchema = z
   .object({
     customerId: optionalUuid,
-    newCustomerName: z.string().trim().max(120, "Keep the name under 120 characters.").default(""),
-    engineDescription: z
-      .string({ error: "Describe the engine." })
-      .trim()
-      .min(3, "Describe the engine (make, size, valves).")
-      .max(200, "Keep the description under 200 characters."),
+    newCustomerName: storableText(z.string().trim().max(120, "Keep the name under 120 characters.")).default(""),
+    engineDescription: storableText(
+      z
+        .string({ error: "Describe the engine." })
+        .trim()
+        .min(3, "Describe the engine (make, size, valves).")
+        .max(200, "Keep the description under 200 characters."),
+    ),
     engineSpecId: optionalUuid,
     // Nullable like the ids: the form sends its parsed values (no date is null) to the action, which parses them again.
     promisedOn: z
@@ -32,10 +35,11 @@ export const jobFormSchema = z
       .nullable()
       .default("")
       .refine((v) => v === null || v === "" || /^\d{4}-\d{2}-\d{2}$/.test(v), "Use a date like 2026-12-24.")
+      .refine((v) => v === null || v === "" || !/^\d{4}-\d{2}-\d{2}$/.test(v) || isCalendarDate(v), "That day is not on the calendar.")
       .transform((v) => (v === "" ? null : v)),
     assignedTechnicianId: optionalUuid,
-    notes: z.string().trim().max(2000, "Keep notes under 2000 characters.").default(""),
-    headLabel: z.string().trim().min(1, "Name the head (e.g. Cylinder head).").max(60).default("Cylinder head"),
+    notes: storableText(z.string().trim().max(2000, "Keep notes under 2000 characters.")).default(""),
+    headLabel: storableText(z.string().trim().min(1, "Name the head (e.g. Cylinder head).").max(60)).default("Cylinder head"),
     arrangement: z.enum(["inline", "v"], { error: "Choose inline or V." }),
     cylinderCount: count("cylinder count", 1, 16),
     intakeValvesPerCylinder: count("intake valves per cylinder", 1, 3),

@@ -1,6 +1,7 @@
 // Specifications library and job overrides: one figure at a time, in the key's SI unit.
 import { z } from "zod";
 import { SPEC_KEY_LIST, SPEC_KEYS } from "@/lib/specs/keys";
+import { storableText } from "./text";
 
 const optionalNumber = (label: string) =>
   z.preprocess(
@@ -20,7 +21,7 @@ export const specFigureSchema = z
     max: optionalNumber("maximum"),
     limit: optionalNumber("service limit"),
     nominal: optionalNumber("value"),
-    note: z.string().trim().max(300).default(""),
+    note: storableText(z.string().trim().max(300, "Keep the note under 300 characters.")).default(""),
   })
   .superRefine((s, ctx) => {
     const info = SPEC_KEYS[s.key as keyof typeof SPEC_KEYS];
@@ -43,6 +44,6 @@ export const specFigureSchema = z
   });
 
 export const engineSpecSchema = z.object({
-  name: z.string().trim().min(3, "Name the engine (make, model, size).").max(120),
-  source: z.string().trim().max(200).default(""),
+  name: storableText(z.string().trim().min(3, "Name the engine (make, model, size).").max(120, "Keep the name under 120 characters.")),
+  source: storableText(z.string().trim().max(200, "Keep the source under 200 characters.")).default(""),
 });

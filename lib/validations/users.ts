@@ -1,14 +1,17 @@
 import { z } from "zod";
 import { emailSchema, passwordSchema, roleSchema } from "./auth";
 import { passwordProblem } from "./password-rules";
+import { storableText } from "./text";
 
 export const userBaseSchema = z.object({
   id: z.string().uuid("Unknown person."),
-  name: z
-    .string({ error: "Enter a name." })
-    .trim()
-    .min(2, "Enter the person's name.")
-    .max(100, "Keep the name under 100 characters."),
+  name: storableText(
+    z
+      .string({ error: "Enter a name." })
+      .trim()
+      .min(2, "Enter the person's name.")
+      .max(100, "Keep the name under 100 characters."),
+  ),
   email: emailSchema,
   role: roleSchema,
   password: passwordSchema,

@@ -62,7 +62,8 @@ describe("startSessionSchema", () => {
 });
 
 describe("readJson", () => {
-  const req = (body: string) => new Request("http://grindfade.test/x", { method: "POST", body });
+  const req = (body: BodyInit, headers: Record<string, string> = { "content-type": "application/json" }) =>
+    new Request("http://grindfade.test/x", { method: "POST", body, headers, duplex: "half" } as RequestInit);
 
   it("returns the parsed value", async () => {
     const s = stroke();
@@ -80,5 +81,38 @@ describe("readJson", () => {
 
   it("says so when the body is not JSON", async () => {
     await expect(readJson(req("strokes=1"), strokeBatchSchema)).rejects.toThrow("The request body must be JSON.");
+    await expect(readJson(req(""), strokeBatchSchema)).rejects.toThrow("The request body must be JSON.");
+    await expect(readJson(req(Uint8Array.from([0x7b, 0xff, 0x7d])), strokeBatchSchema)).rejects.toThrow("The request body must be JSON in UTF-8.");
+  });
+
+  it("takes application/json and structured +json types, with parameters, and refuses others with 415", async () => {
+    const body = JSON.stringify({ strokes: [stroke()] });
+    for (const type of ["application/json", "Application/JSON; charset=utf-8", "application/merge-patch+json"]) {
+      await expect(readJson(req(body, { "content-type": type }), strokeBatchSchema)).resolves.toBeTruthy();
+    }
+    for (const headers of [{ "content-type": "text/plain;charset=UTF-8" }, { "content-type": "application/jsonp" }, {}] as Array<Record<string, string>>) {
+      const err = await readJson(req(Buffer.from(body), headers), strokeBatchSchema).catch((e: unknown) => e);
+      expect(err).toMatchObject({ status: 415, message: "Send the body as JSON, with Content-Type: application/json." });
+    }
+  });
+
+  it("refuses a body over the limit with 413, whether declared or only sent", async () => {
+    const body = JSON.stringify({ strokes: [stroke({ pad: "x".repeat(200) })] });
+    // Exactly at the limit is read; one byte over is not.
+    await expect(readJson(req(body), strokeBatchSchema, body.length)).resolves.toBeTruthy();
+    const over = await readJson(req(body), strokeBatchSchema, body.length - 1).catch((e: unknown) => e);
+    expect(over).toMatchObject({ status: 413 });
+    const declared = await readJson(req(body, { "content-type": "application/json", "content-length": "2000000" }), strokeBatchSchema).catch((e: unknown) => e);
+    expect(declared).toMatchObject({ status: 413, message: "The request body is larger than 1 MB. Send it in smaller parts." });
+    // A stream that never ends is cut off at the limit instead of being buffered.
+    let pulled = 0;
+    const endless = new ReadableStream<Uint8Array>({
+      pull(c) {
+        pulled += 65536;
+        c.enqueue(new Uint8Array(65536).fill(0x20));
+      },
+    });
+    expect(await readJson(req(endless), strokeBatchSchema).catch((e: unknown) => e)).toMatchObject({ status: 413 });
+    expect(pulled).toBeLessThan(2 * 1024 * 1024);
   });
 });
