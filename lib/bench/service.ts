@@ -394,6 +394,21 @@ export async function endSession(db: Db, actor: Actor, sessionId: string): Promi
   });
 }
 
+/**
+ * A recording kept for a signed-off seat (or a seat of a signed-off job) is part of what the
+ * supervisor signed: it is never replaced until the seat is reopened. A session that has no
+ * recording yet may still receive its first one — a phone's queue can deliver it late — which adds
+ * to the record without changing anything already reviewed.
+ */
+function assertRecordingReplaceable(ctx: Awaited<ReturnType<typeof loadSession>>): void {
+  if (!ctx.session.recordingKey) return;
+  if (ctx.seat.state === "approved" || CLOSED_JOB_STATUSES.includes(ctx.job.status)) {
+    throw new ConflictError(
+      `Seat ${seatCode(ctx.seat)} is signed off and this session's recording is part of its record. A supervisor must reopen the seat before it is replaced.`,
+    );
+  }
+}
+
 export async function attachRecording(
   db: Db,
   actor: Actor,
@@ -403,6 +418,7 @@ export async function attachRecording(
   const ctx = await loadSession(db, actor.shopId, sessionId);
   assertCanWorkOn(actor, ctx.job);
   assertOwnSession(actor, ctx.session, ctx.starterName);
+  assertRecordingReplaceable(ctx);
   await db
     .update(lappingSessions)
     .set({ recordingKey: recording.key, recordingType: recording.type, recordingBytes: recording.bytes })
@@ -413,5 +429,6 @@ export async function getSessionForUpload(db: Db, actor: Actor, sessionId: strin
   const ctx = await loadSession(db, actor.shopId, sessionId);
   assertCanWorkOn(actor, ctx.job);
   assertOwnSession(actor, ctx.session, ctx.starterName);
+  assertRecordingReplaceable(ctx);
   return ctx;
 }

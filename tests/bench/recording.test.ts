@@ -7,7 +7,7 @@ import { eq } from "drizzle-orm";
 import { NextRequest } from "next/server";
 import { afterAll, beforeAll, describe, expect, it, vi } from "vitest";
 import { encodeWav } from "@/lib/audio";
-import { lappingSessions } from "@/db/schema";
+import { lappingSessions, seats } from "@/db/schema";
 import type { TestDatabase } from "../helpers/db";
 import { BASE_URL, bodyOf, jsonRequest, seatId as findSeat, sessionBody, userIds } from "./helpers";
 
@@ -149,5 +149,39 @@ describe("recording upload", () => {
     // An empty resend is refused and leaves the kept recording as it was.
     expect((await upload(new Uint8Array(0), { "content-type": "audio/wav" })).status).toBe(400);
     expect(new Uint8Array(fs.readFileSync(storedFile("wav")))).toEqual(wav.slice(0, 100));
+  });
+
+  it("never replaces the recording of a signed-off seat, but still takes a late first recording", async () => {
+    signInAs("ines@millrace.example");
+    const seat = await findSeat(db(), "MHW-0141", "4E1");
+    const withRecording = sessionBody("coarse", "phone-ines-1");
+    const late = sessionBody("fine", "phone-ines-1");
+    for (const body of [withRecording, late]) {
+      const res = await sessionsRoute.POST(jsonRequest(`/api/seats/${seat}/sessions`, body), { params: Promise.resolve({ seatId: seat }) });
+      expect(res.status).toBe(201);
+    }
+    const put = (id: string, bytes: Uint8Array) =>
+      recordingRoute.PUT(
+        new NextRequest(`${BASE_URL}/api/sessions/${id}/recording`, { method: "PUT", headers: { "content-type": "audio/wav" }, body: Buffer.from(bytes) }),
+        { params: Promise.resolve({ sessionId: id }) },
+      );
+    expect((await put(withRecording.sessionId, wav)).status).toBe(201);
+    // The supervisor signs the seat off.
+    await db().update(seats).set({ state: "approved" }).where(eq(seats.id, seat));
+    const row = async (id: string) => (await db().select().from(lappingSessions).where(eq(lappingSessions.id, id)))[0]!;
+    const kept = await row(withRecording.sessionId);
+    for (const who of ["ines@millrace.example", "rhea@millrace.example"]) {
+      signInAs(who);
+      const res = await put(withRecording.sessionId, wav.slice(0, 200));
+      expect(res.status, who).toBe(409);
+      expect(((await bodyOf(res)) as { message: string }).message).toMatch(/signed off .* reopen the seat/);
+    }
+    expect(await row(withRecording.sessionId)).toEqual(kept);
+    const keptFile = path.join(dataDir, "blobs", "recordings", `${withRecording.sessionId}.wav`);
+    expect(new Uint8Array(fs.readFileSync(keptFile))).toEqual(wav);
+    // The other session, recorded before the sign-off, arrives late from the phone's queue.
+    signInAs("ines@millrace.example");
+    expect((await put(late.sessionId, wav)).status).toBe(201);
+    expect((await row(late.sessionId)).recordingBytes).toBe(wav.byteLength);
   });
 });
