@@ -5,12 +5,13 @@ import { useCallback, useEffect, useMemo, useRef, useState } from "react";
 import type { Stroke } from "@/lib/audio/analyzer";
 import type { RejectedSound } from "@/lib/audio/strokes";
 import { judgeSeat, type SeatVerdict } from "@/lib/audio/verdict";
-import { Outbox, type FlushReport } from "@/lib/bench/outbox";
+import { Outbox, type FlushReport, type PendingStroke } from "@/lib/bench/outbox";
 import type { SeatReport } from "@/lib/bench/service";
 import type { StrokeInput } from "@/lib/validations/bench";
 import { SEAT_STATE_LABELS, STAGE_LABELS } from "@/lib/labels";
 import dynamic from "next/dynamic";
 import { FadeChart, type ChartStroke } from "./fade-chart";
+import { keepOfflineCopy } from "./offline-copy";
 import { useListener } from "./use-listener";
 
 type Stage = "coarse" | "fine";
@@ -72,8 +73,9 @@ export function BenchScreen({ initial, initialStage }: { initial: SeatReport; in
   const refresh = useCallback(async () => {
     try {
       setReport(await fetchSeat(seatId));
+      return true;
     } catch {
-      /* keep showing the last copy; the sync note says what is pending */
+      return false; // keep showing the last copy; the sync note says what is pending
     }
   }, [seatId]);
   const defaultStage: Stage = report.stages.coarse.verdict.state === "settled" ? "fine" : "coarse";
@@ -84,7 +86,7 @@ export function BenchScreen({ initial, initialStage }: { initial: SeatReport; in
     window.history.replaceState(null, "", `?stage=${s}`);
   }, []);
   const [record, setRecord] = useState(true);
-  const [local, setLocal] = useState<Array<{ sessionId: string; stroke: StrokeInput }>>([]);
+  const [local, setLocal] = useState<PendingStroke[]>([]);
   const [pendingCount, setPendingCount] = useState(0);
   const [syncNote, setSyncNote] = useState<string | null>(null);
   const [refusals, setRefusals] = useState<string[]>([]);
@@ -95,10 +97,11 @@ export function BenchScreen({ initial, initialStage }: { initial: SeatReport; in
   const outboxRef = useRef<Outbox | null>(null);
   const stopRef = useRef<(() => Promise<void>) | null>(null);
   const strokeCounter = useRef(0);
+  const unread = useRef(false);
 
   const outbox = useCallback(() => (outboxRef.current ??= new Outbox()), []);
 
-  const sync = useCallback(async () => {
+  const sync = useCallback(async (): Promise<FlushReport["stoppedBy"] | undefined> => {
     let report: FlushReport;
     try {
       report = await outbox().flush();
@@ -122,11 +125,14 @@ export function BenchScreen({ initial, initialStage }: { initial: SeatReport; in
             ? "The server is busy; strokes are kept and will be resent."
             : null,
     );
-    if (report.sent > 0) {
+    // Sent strokes leave the local list only once the server's copy of the seat has them; a read
+    // that failed (the network dropped right after the send) is tried again at the next sync.
+    if (report.sent > 0 || (unread.current && report.stoppedBy === "done")) {
       const pending = await outbox().pendingStrokes(seatId);
-      await refresh();
-      setLocal((l) => l.filter((x) => pending.some((p) => p.stroke.clientId === x.stroke.clientId)));
+      unread.current = !(await refresh());
+      if (!unread.current) setLocal((l) => l.filter((x) => pending.some((p) => p.stroke.clientId === x.stroke.clientId)));
     }
+    return report.stoppedBy;
   }, [outbox, refresh, seatId]);
 
   // Strokes still in the outbox from before a reload belong on the curve too.
@@ -136,7 +142,9 @@ export function BenchScreen({ initial, initialStage }: { initial: SeatReport; in
       try {
         const pending = await outbox().pendingStrokes(seatId);
         if (!cancelled && pending.length) setLocal(pending);
-        await sync();
+        // Reloaded offline (from the offline worker's copy): the seat as this phone last read it,
+        // which may be newer than the copy of the page.
+        if ((await sync()) === "offline") await refresh();
       } catch {
         /* storage unavailable: handled in sync */
       }
@@ -151,7 +159,7 @@ export function BenchScreen({ initial, initialStage }: { initial: SeatReport; in
       window.removeEventListener("online", online);
       clearInterval(timer);
     };
-  }, [outbox, seatId, sync]);
+  }, [outbox, refresh, seatId, sync]);
 
   const listener = useListener({
     onCalibrated: () => {},
@@ -193,7 +201,8 @@ export function BenchScreen({ initial, initialStage }: { initial: SeatReport; in
     const known = new Set(serverStage.strokes.map((s) => s.clientId));
     const sessionsOfStage = new Set(serverStage.sessions.map((s) => s.id));
     const mine = local.filter(
-      (l) => !known.has(l.stroke.clientId) && (sessionsOfStage.has(l.sessionId) || l.sessionId === sessionRef.current),
+      (l) =>
+        !known.has(l.stroke.clientId) && (sessionsOfStage.has(l.sessionId) || l.sessionId === sessionRef.current || l.stage === stage),
     );
     const all: Array<ChartStroke & { flags: string[]; startS: number }> = [
       ...serverStage.strokes.map((s) => ({ n: s.n, contrastDb: s.contrastDb, flags: s.flags, startS: s.startS })),
@@ -206,7 +215,7 @@ export function BenchScreen({ initial, initialStage }: { initial: SeatReport; in
       })),
     ];
     return { all, pending: mine.length };
-  }, [serverStage, local]);
+  }, [serverStage, local, stage]);
 
   const preview = useMemo(
     () => judgeSeat(combined.all.map((s) => ({ contrastDb: s.contrastDb, index: s.n, flags: s.flags, startS: s.startS }))),
@@ -228,6 +237,11 @@ export function BenchScreen({ initial, initialStage }: { initial: SeatReport; in
   const verdict: SeatVerdict = combined.pending > 0 ? preview : serverStage.verdict;
   const last = combined.all[combined.all.length - 1];
   const lastFlags = last?.flags ?? [];
+
+  // The offline worker keeps this page and what it loaded; listening loads the analysis worker
+  // and the worklet, so it is told again then.
+  const heard = listener.phase === "listening";
+  useEffect(() => keepOfflineCopy(), [seatId, heard]);
 
   const stopListening = listener.stop;
   useEffect(() => {

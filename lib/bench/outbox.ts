@@ -13,6 +13,12 @@ export type OutboxOp =
 
 export type StoredOp = OutboxOp & { seq: number; failed?: string };
 
+export interface PendingStroke {
+  sessionId: string;
+  stroke: StrokeInput;
+  stage?: StartSessionInput["stage"];
+}
+
 interface OutboxSchema extends DBSchema {
   ops: { key: number; value: StoredOp; indexes: { bySeat: string } };
 }
@@ -97,8 +103,18 @@ export class Outbox {
     return seatId ? db.getAllFromIndex("ops", "bySeat", seatId) : db.getAll("ops");
   }
 
-  async pendingStrokes(seatId: string): Promise<Array<{ sessionId: string; stroke: StrokeInput }>> {
-    return (await this.all(seatId)).flatMap((op) => (op.kind === "stroke" ? [{ sessionId: op.sessionId, stroke: op.stroke }] : []));
+  /**
+   * A seat's strokes still waiting here. A stroke whose session is itself still waiting (begun
+   * offline) carries that session's stage, which the server cannot tell yet.
+   */
+  async pendingStrokes(seatId: string): Promise<PendingStroke[]> {
+    const ops = await this.all(seatId);
+    const stages = new Map(ops.flatMap((op) => (op.kind === "session" ? [[op.body.sessionId, op.body.stage] as const] : [])));
+    return ops.flatMap((op) => {
+      if (op.kind !== "stroke") return [];
+      const stage = stages.get(op.sessionId);
+      return [stage ? { sessionId: op.sessionId, stroke: op.stroke, stage } : { sessionId: op.sessionId, stroke: op.stroke }];
+    });
   }
 
   async count(): Promise<number> {

@@ -306,4 +306,27 @@ describe("Outbox", () => {
     expect((await reopened.pendingStrokes("seat-a")).map((p) => p.stroke.clientId)).toEqual(mine.strokes.map((s) => s.clientId));
     expect(await reopened.count()).toBe(5);
   });
+
+  it("gives a pending stroke its session's stage while that session has not reached the server", async () => {
+    const net = scriptedNetwork();
+    const box = newOutbox(net);
+    const seat = randomUUID();
+    // Begun offline: the session and its strokes all wait, so only the outbox knows the stage.
+    const body = sessionBody("fine", "phone-test-1");
+    const strokes = strokeInputs([6, 5]);
+    await addAll(box, [
+      { kind: "session", seatId: seat, body },
+      ...strokes.map((stroke): OutboxOp => ({ kind: "stroke", seatId: seat, sessionId: body.sessionId, stroke })),
+    ]);
+    expect((await box.pendingStrokes(seat)).map((p) => [p.sessionId, p.stage])).toEqual([
+      [body.sessionId, "fine"],
+      [body.sessionId, "fine"],
+    ]);
+    // Once the server has the session, its strokes are placed by the server's sessions instead.
+    net.script.push(Response.json({ sessionId: body.sessionId, resumed: false }, { status: 201 }), offline());
+    expect(await box.flush()).toMatchObject({ sent: 1, stoppedBy: "offline" });
+    const after = await box.pendingStrokes(seat);
+    expect(after.map((p) => p.stroke.clientId)).toEqual(strokes.map((s) => s.clientId));
+    expect(after.every((p) => p.stage === undefined)).toBe(true);
+  });
 });
