@@ -28,7 +28,7 @@ import { encodeWav } from "@/lib/audio/wav";
 import { PHONE, launchBrowser, signIn } from "./browser";
 
 const baseURL = inject("baseURL");
-const SEAT = "3E2"; // no other browser test works this seat of MHW-0141
+const SEAT = "4I2"; // no other browser test works this seat of MHW-0141
 const tech = DEMO_USERS.find((u) => u.email.startsWith("ines"))!;
 
 /** A TCP relay to the app server that can be cut and restored. */

@@ -167,7 +167,7 @@ describe("pages run within their policy", () => {
     // The bench loads its audio worklet and analysis worker under the policy and starts calibrating.
     const own = jobs.find((j) => j.number === "MHW-0141")!;
     await page.goto(`${baseURL}/jobs/${own.id}`);
-    const benchHref = await page.locator('a[href^="/bench/"][aria-label^="Cylinder 3 exhaust 2,"]').first().getAttribute("href");
+    const benchHref = await page.locator('a[href^="/bench/"][aria-label^="Cylinder 4 exhaust 1,"]').first().getAttribute("href");
     await page.goto(`${baseURL}${benchHref}`);
     await page.getByTestId("start-listening").tap();
     await page.getByTestId("calibrating").waitFor({ timeout: 15_000 });
