@@ -48,7 +48,13 @@ async function loadSeat(db: Reader, shopId: string, seatId: string): Promise<Sea
   return row;
 }
 
-function assertOpenForWork(ctx: SeatContext): void {
+/** What the work checks read of a seat and its job. */
+interface WorkTarget {
+  seat: Pick<SeatContext["seat"], "state" | "cylinder" | "kind" | "position">;
+  job: Pick<SeatContext["job"], "status" | "number">;
+}
+
+function assertOpenForWork(ctx: WorkTarget): void {
   if (ctx.seat.state === "approved") {
     throw new ConflictError(
       `Seat ${seatCode(ctx.seat)} is signed off. A supervisor must reopen it before more strokes are recorded.`,
@@ -105,9 +111,21 @@ export interface SeatReport {
   canWork: boolean;
 }
 
-async function stageRecord(db: Reader, seatId: string, stage: LappingStage): Promise<StageRecord> {
+// Sessions in the order they were lapped, strokes in the order they were heard; the stroke id
+// only breaks exact ties, so every reader sees one order.
+const SESSION_ORDER = [asc(lappingSessions.startedAt), asc(lappingSessions.id)];
+const STROKE_ORDER = [...SESSION_ORDER, asc(strokes.startS), asc(strokes.index), asc(strokes.id)];
+
+/** The server's verdict on one stage's strokes in order, numbered from 1 across its sessions. */
+function judgeStage(list: ReadonlyArray<{ contrastDb: number; startS: number; flags: string[] }>): SeatVerdict {
+  return judgeSeat(list.map((s, i) => ({ contrastDb: s.contrastDb, index: i + 1, startS: s.startS, flags: s.flags })));
+}
+
+/** Both stages of a seat, with sessions, strokes and verdicts: two queries, whatever the count. */
+async function stageRecords(db: Reader, seatId: string): Promise<Record<LappingStage, StageRecord>> {
   const sessionRows = await db
     .select({
+      stage: lappingSessions.stage,
       id: lappingSessions.id,
       technicianName: users.name,
       startedAt: lappingSessions.startedAt,
@@ -116,10 +134,11 @@ async function stageRecord(db: Reader, seatId: string, stage: LappingStage): Pro
     })
     .from(lappingSessions)
     .innerJoin(users, eq(users.id, lappingSessions.technicianId))
-    .where(and(eq(lappingSessions.seatId, seatId), eq(lappingSessions.stage, stage)))
-    .orderBy(asc(lappingSessions.startedAt), asc(lappingSessions.id));
+    .where(eq(lappingSessions.seatId, seatId))
+    .orderBy(...SESSION_ORDER);
   const strokeRows = await db
     .select({
+      stage: lappingSessions.stage,
       sessionId: strokes.sessionId,
       clientId: strokes.clientId,
       startS: strokes.startS,
@@ -128,37 +147,67 @@ async function stageRecord(db: Reader, seatId: string, stage: LappingStage): Pro
       bodyDb: strokes.bodyDb,
       contrastDb: strokes.contrastDb,
       flags: strokes.flags,
-      sessionStarted: lappingSessions.startedAt,
     })
     .from(strokes)
     .innerJoin(lappingSessions, eq(lappingSessions.id, strokes.sessionId))
-    .where(and(eq(lappingSessions.seatId, seatId), eq(lappingSessions.stage, stage)))
-    // Sessions in the order they were lapped, strokes in the order they were heard.
-    .orderBy(asc(lappingSessions.startedAt), asc(lappingSessions.id), asc(strokes.startS), asc(strokes.index));
-  const list = strokeRows.map((s, i) => ({
-    n: i + 1,
-    sessionId: s.sessionId,
-    clientId: s.clientId,
-    startS: s.startS,
-    endS: s.endS,
-    onsetDb: s.onsetDb,
-    bodyDb: s.bodyDb,
-    contrastDb: s.contrastDb,
-    flags: s.flags,
-  }));
-  const verdict = judgeSeat(list.map((s) => ({ contrastDb: s.contrastDb, index: s.n, startS: s.startS, flags: s.flags })));
-  return {
-    stage,
-    sessions: sessionRows.map((s) => ({
-      id: s.id,
-      technicianName: s.technicianName,
-      startedAt: s.startedAt.toISOString(),
-      endedAt: s.endedAt ? s.endedAt.toISOString() : null,
-      hasRecording: Boolean(s.recordingKey),
-    })),
-    strokes: list,
-    verdict,
+    .where(eq(lappingSessions.seatId, seatId))
+    .orderBy(...STROKE_ORDER);
+  const record = (stage: LappingStage): StageRecord => {
+    const list = strokeRows
+      .filter((s) => s.stage === stage)
+      .map((s, i) => ({
+        n: i + 1,
+        sessionId: s.sessionId,
+        clientId: s.clientId,
+        startS: s.startS,
+        endS: s.endS,
+        onsetDb: s.onsetDb,
+        bodyDb: s.bodyDb,
+        contrastDb: s.contrastDb,
+        flags: s.flags,
+      }));
+    return {
+      stage,
+      sessions: sessionRows
+        .filter((s) => s.stage === stage)
+        .map((s) => ({
+          id: s.id,
+          technicianName: s.technicianName,
+          startedAt: s.startedAt.toISOString(),
+          endedAt: s.endedAt ? s.endedAt.toISOString() : null,
+          hasRecording: Boolean(s.recordingKey),
+        })),
+      strokes: list,
+      verdict: judgeStage(list),
+    };
   };
+  return { coarse: record("coarse"), fine: record("fine") };
+}
+
+/**
+ * The verdicts a stroke save needs, from one query that reads only what the verdict looks at:
+ * the given stage's and, for the seat's state, the fine stage's.
+ */
+async function stageVerdicts(
+  db: Reader,
+  seatId: string,
+  stage: LappingStage,
+): Promise<{ current: SeatVerdict; fine: SeatVerdict; currentStrokes: number }> {
+  const rows = await db
+    .select({
+      stage: lappingSessions.stage,
+      startS: strokes.startS,
+      contrastDb: strokes.contrastDb,
+      flags: strokes.flags,
+    })
+    .from(strokes)
+    .innerJoin(lappingSessions, eq(lappingSessions.id, strokes.sessionId))
+    .where(stage === "fine" ? and(eq(lappingSessions.seatId, seatId), eq(lappingSessions.stage, "fine")) : eq(lappingSessions.seatId, seatId))
+    .orderBy(...STROKE_ORDER);
+  const of = (st: LappingStage) => rows.filter((r) => r.stage === st);
+  const currentList = of(stage);
+  const current = judgeStage(currentList);
+  return { current, fine: stage === "fine" ? current : judgeStage(of("fine")), currentStrokes: currentList.length };
 }
 
 /** The seat's state after its strokes: our own names, decided by the server's verdicts. */
@@ -182,8 +231,16 @@ async function nextSeatInHead(db: Reader, ctx: SeatContext): Promise<string | nu
 }
 
 export async function getSeatReport(db: Db, actor: Actor, seatId: string): Promise<SeatReport> {
-  const ctx = await loadSeat(db, actor.shopId, seatId);
-  const [valve] = await db.select({ tag: valves.tag }).from(valves).where(eq(valves.seatId, seatId)).limit(1);
+  const [row] = await db
+    .select({ seat: seats, head: heads, job: jobs, valveTag: valves.tag })
+    .from(seats)
+    .innerJoin(heads, eq(heads.id, seats.headId))
+    .innerJoin(jobs, eq(jobs.id, heads.jobId))
+    .leftJoin(valves, eq(valves.seatId, seats.id))
+    .where(and(eq(seats.id, seatId), eq(jobs.shopId, actor.shopId)))
+    .limit(1);
+  if (!row) throw new NotFoundError("That seat does not exist in your shop.");
+  const ctx: SeatContext = { seat: row.seat, head: row.head, job: row.job };
   let canWork = true;
   try {
     assertCanWorkOn(actor, ctx.job);
@@ -200,11 +257,11 @@ export async function getSeatReport(db: Db, actor: Actor, seatId: string): Promi
       kind: ctx.seat.kind,
       position: ctx.seat.position,
       state: ctx.seat.state,
-      valveTag: valve?.tag ?? null,
+      valveTag: row.valveTag ?? null,
     },
     head: { id: ctx.head.id, label: ctx.head.label },
     job: { id: ctx.job.id, number: ctx.job.number, status: ctx.job.status },
-    stages: { coarse: await stageRecord(db, seatId, "coarse"), fine: await stageRecord(db, seatId, "fine") },
+    stages: await stageRecords(db, seatId),
     nextSeatId: await nextSeatInHead(db, ctx),
     canWork,
   };
@@ -323,25 +380,43 @@ export interface StrokeSaveResult {
   strokeCount: number;
 }
 
-/** Saves strokes idempotently (a resend with the same clientId is ignored) and re-judges the seat. */
+/**
+ * Saves strokes idempotently (a resend with the same clientId is ignored) and re-judges the seat.
+ * The session is read together with its seat, which is locked, so two saves for one seat judge
+ * it one after the other and a sign-off that lands first is seen.
+ */
 export async function saveStrokes(db: Db, actor: Actor, sessionId: string, input: StrokeInput[]): Promise<StrokeSaveResult> {
-  const ctx = await loadSession(db, actor.shopId, sessionId);
-  assertCanWorkOn(actor, ctx.job);
-  assertOwnSession(actor, ctx.session, ctx.starterName);
-  assertOpenForWork(ctx);
   return db.transaction(async (tx) => {
-    // Lock the seat row so two saves for one seat judge it one after the other.
-    const [seatNow] = await tx.select().from(seats).where(eq(seats.id, ctx.seat.id)).for("update");
-    if (!seatNow || seatNow.state === "approved") {
-      throw new ConflictError("This seat was signed off meanwhile; the strokes were not saved.");
-    }
+    // Only the columns the checks and the verdict use: this runs for every stroke.
+    const [ctx] = await tx
+      .select({
+        session: { stage: lappingSessions.stage, technicianId: lappingSessions.technicianId },
+        starterName: users.name,
+        seat: { id: seats.id, state: seats.state, cylinder: seats.cylinder, kind: seats.kind, position: seats.position },
+        job: { id: jobs.id, number: jobs.number, status: jobs.status, assignedTechnicianId: jobs.assignedTechnicianId },
+        valveId: valves.id,
+        valveLappedIn: valves.lappedInSeatId,
+      })
+      .from(lappingSessions)
+      .innerJoin(users, eq(users.id, lappingSessions.technicianId))
+      .innerJoin(seats, eq(seats.id, lappingSessions.seatId))
+      .innerJoin(heads, eq(heads.id, seats.headId))
+      .innerJoin(jobs, eq(jobs.id, heads.jobId))
+      .leftJoin(valves, eq(valves.seatId, seats.id))
+      .where(and(eq(lappingSessions.id, sessionId), eq(jobs.shopId, actor.shopId)))
+      .limit(1)
+      .for("update", { of: seats });
+    if (!ctx) throw new NotFoundError("That lapping session does not exist in your shop.");
+    assertCanWorkOn(actor, ctx.job);
+    assertOwnSession(actor, ctx.session, ctx.starterName);
+    assertOpenForWork(ctx);
     const inserted = await tx
       .insert(strokes)
       .values(input.map((s) => ({ ...s, sessionId })))
       .onConflictDoNothing({ target: [strokes.sessionId, strokes.clientId] })
       .returning({ id: strokes.id });
     await tx.update(lappingSessions).set({ lastSeenAt: new Date() }).where(eq(lappingSessions.id, sessionId));
-    if (inserted.length > 0) {
+    if (inserted.length > 0 && ctx.valveId && ctx.valveLappedIn === null) {
       // The valve in this seat is now lapped into it, and stays with it.
       await tx
         .update(valves)
@@ -349,10 +424,9 @@ export async function saveStrokes(db: Db, actor: Actor, sessionId: string, input
         .where(and(eq(valves.seatId, ctx.seat.id), isNull(valves.lappedInSeatId)));
     }
     const stage = ctx.session.stage;
-    const current = await stageRecord(tx, ctx.seat.id, stage);
-    const fine = stage === "fine" ? current : await stageRecord(tx, ctx.seat.id, "fine");
-    const next = seatStateFor(seatNow.state, stage, current.verdict, fine.verdict);
-    if (next !== seatNow.state) {
+    const { current, fine, currentStrokes } = await stageVerdicts(tx, ctx.seat.id, stage);
+    const next = seatStateFor(ctx.seat.state, stage, current, fine);
+    if (next !== ctx.seat.state) {
       await tx.update(seats).set({ state: next, updatedAt: new Date() }).where(eq(seats.id, ctx.seat.id));
       await recordAudit(tx, {
         actorId: actor.id,
@@ -360,16 +434,16 @@ export async function saveStrokes(db: Db, actor: Actor, sessionId: string, input
         entityType: "seat",
         entityId: ctx.seat.id,
         jobId: ctx.job.id,
-        before: { state: seatNow.state },
-        after: { state: next, stage, verdict: current.verdict.state, strokes: current.strokes.length },
+        before: { state: ctx.seat.state },
+        after: { state: next, stage, verdict: current.state, strokes: currentStrokes },
       });
     }
     return {
       accepted: inserted.length,
       duplicates: input.length - inserted.length,
       seatState: next,
-      verdict: current.verdict,
-      strokeCount: current.strokes.length,
+      verdict: current,
+      strokeCount: currentStrokes,
     };
   });
 }

@@ -1,0 +1,563 @@
+// Load on the production build: stroke saves and seat reads from 50 concurrent connections,
+// driven by autocannon, on the embedded PGlite database and on a PostgreSQL server.
+//
+// Each connection plays one bench phone: it laps seat after seat, one lapping session per seat
+// opened before the clock starts, and posts its strokes one per request (a fresh clientId
+// each, contrasts fading as a real seat's do), BENCH_STROKES_PER_SEAT to a seat before moving
+// on. Seat reads then fetch the seats those strokes went to. A response that is not 2xx counts
+// as an error; afterwards the database must hold one stroke per 201 answer (and at most the
+// requests still in flight when the clock stopped), none twice. For scale,
+// the PGlite run ends with the health check (no sign-in, one `select 1`) under the same load.
+// "cpu ms/req" is the app server's own CPU time per answer, read from /proc: it says what one
+// core could serve when the machine is shared, as this one usually is.
+//
+// Run: npm run bench:load   (builds first when no build exists; BENCH_REBUILD=1 forces it)
+//   BENCH_DURATION=30           seconds per measurement
+//   BENCH_CONNECTIONS=50        concurrent connections
+//   BENCH_STROKES_PER_SEAT=40   strokes a phone sends to one seat before the next
+//   BENCH_DATABASE_URL (else TEST_DATABASE_URL, else postgres://postgres@127.0.0.1:55432/postgres):
+//                               the PostgreSQL server; a fresh database is made on it and dropped after
+//   BENCH_ONLY=pglite|postgres  run one database only
+import { execFileSync, spawn, type ChildProcess } from "node:child_process";
+import { randomUUID } from "node:crypto";
+import fs from "node:fs";
+import os from "node:os";
+import path from "node:path";
+import autocannon from "autocannon";
+import { eq, sql } from "drizzle-orm";
+import { openDatabase, type Db } from "@/db/client";
+import { customers, jobs, shops, strokes, users } from "@/db/schema";
+import { DEMO_USERS, seedDemoShop } from "@/db/seed";
+import { createHeadWithSeats } from "@/lib/heads/create";
+import { buildApp, freePort, randomSecret, startServer, type RunningServer as FullServer } from "../tests/e2e/server";
+
+type RunningServer = Pick<FullServer, "baseURL" | "dataDir" | "stop">;
+
+const DURATION_S = positiveInt("BENCH_DURATION", 30);
+const CONNECTIONS = positiveInt("BENCH_CONNECTIONS", 50);
+const STROKES_PER_SEAT = positiveInt("BENCH_STROKES_PER_SEAT", 40);
+/** Seats are laid out for this many stroke saves a second; past it, phones go round their seats again. */
+const SEAT_CAPACITY_PER_S = 1200;
+const GOAL = { strokesPerS: 1000, p95Ms: 20 };
+const DEFAULT_PG = "postgres://postgres@127.0.0.1:55432/postgres";
+const SEATS_PER_HEAD = 16;
+
+function positiveInt(name: string, fallback: number): number {
+  const raw = process.env[name];
+  if (raw === undefined || raw === "") return fallback;
+  const n = Number(raw);
+  if (!Number.isInteger(n) || n < 1) throw new Error(`${name} must be a whole number of at least 1 (got ${raw}).`);
+  return n;
+}
+
+interface Fixture {
+  /** Per connection: the technician it signs in as, and its seats in the order it laps them. */
+  phones: Array<{ email: string; password: string; seatIds: string[] }>;
+  strokesBefore: number;
+}
+
+/** The demo shop plus enough heads at the bench for every phone to lap fresh seats the whole run. */
+async function prepareFixture(db: Db): Promise<Fixture> {
+  await seedDemoShop(db);
+  const [shop] = await db.select().from(shops).limit(1);
+  const [customer] = await db.select().from(customers).where(eq(customers.shopId, shop!.id)).limit(1);
+  const techs = DEMO_USERS.filter((u) => u.role === "technician");
+  const techRows = await db.select({ id: users.id, email: users.email }).from(users);
+  const techId = new Map(techRows.map((u) => [u.email, u.id]));
+  const seatsPerPhone = Math.max(2, Math.ceil((SEAT_CAPACITY_PER_S * DURATION_S) / CONNECTIONS / STROKES_PER_SEAT));
+  // Each phone's seats come from heads of one technician's jobs.
+  const phones: Fixture["phones"] = [];
+  let jobNo = 9000;
+  for (let c = 0; c < CONNECTIONS; c++) {
+    const tech = techs[c % techs.length]!;
+    const seatIds: string[] = [];
+    while (seatIds.length < seatsPerPhone) {
+      const number = `MHW-${++jobNo}`;
+      await db.transaction(async (tx) => {
+        const [job] = await tx
+          .insert(jobs)
+          .values({
+            shopId: shop!.id,
+            number,
+            customerId: customer!.id,
+            engineDescription: "Load fixture: inline-4, twin cam, 16 valves",
+            status: "at_bench",
+            assignedTechnicianId: techId.get(tech.email)!,
+          })
+          .returning({ id: jobs.id });
+        const head = await createHeadWithSeats(tx, job!.id, "Cylinder head", {
+          arrangement: "inline",
+          cylinderCount: 4,
+          intakeValvesPerCylinder: 2,
+          exhaustValvesPerCylinder: 2,
+          camshaftCount: 2,
+          journalsPerCamshaft: 5,
+        });
+        seatIds.push(...head.seats.map((s) => s.id));
+      });
+    }
+    phones.push({ email: tech.email, password: tech.password, seatIds: seatIds.slice(0, seatsPerPhone) });
+  }
+  const [{ n }] = (await db.select({ n: sql<number>`count(*)::int` }).from(strokes)) as [{ n: number }];
+  return { phones, strokesBefore: n };
+}
+
+async function countStrokes(db: Db): Promise<number> {
+  const [{ n }] = (await db.select({ n: sql<number>`count(*)::int` }).from(strokes)) as [{ n: number }];
+  return n;
+}
+
+/** Signs in through next-auth's credentials endpoint, as the sign-in form does; returns the Cookie header. */
+async function signInHttp(baseURL: string, email: string, password: string): Promise<string> {
+  const csrfRes = await fetch(`${baseURL}/api/auth/csrf`);
+  const { csrfToken } = (await csrfRes.json()) as { csrfToken: string };
+  const jar = new Map<string, string>();
+  const keep = (res: Response) => {
+    for (const c of res.headers.getSetCookie()) {
+      const [pair] = c.split(";");
+      const at = pair!.indexOf("=");
+      jar.set(pair!.slice(0, at), pair!.slice(at + 1));
+    }
+  };
+  keep(csrfRes);
+  const cookie = () => [...jar].map(([k, v]) => `${k}=${v}`).join("; ");
+  const res = await fetch(`${baseURL}/api/auth/callback/credentials`, {
+    method: "POST",
+    redirect: "manual",
+    headers: { "content-type": "application/x-www-form-urlencoded", origin: baseURL, cookie: cookie() },
+    body: new URLSearchParams({ csrfToken, email, password, callbackUrl: `${baseURL}/jobs`, json: "true" }),
+  });
+  keep(res);
+  if (![...jar.keys()].some((k) => k.endsWith("next-auth.session-token"))) {
+    throw new Error(`sign-in as ${email} failed (${res.status}): ${await res.text()}`);
+  }
+  return cookie();
+}
+
+/** Runs `work` over `items` with at most `limit` at a time. */
+async function pool<T>(items: T[], limit: number, work: (item: T, i: number) => Promise<void>): Promise<void> {
+  let next = 0;
+  await Promise.all(
+    Array.from({ length: Math.min(limit, items.length) }, async () => {
+      while (next < items.length) {
+        const i = next++;
+        await work(items[i]!, i);
+      }
+    }),
+  );
+}
+
+interface Phone {
+  cookie: string;
+  deviceId: string;
+  sessions: Array<{ sessionId: string; seatId: string }>;
+  /** Strokes built for sending so far. */
+  sent: number;
+}
+
+async function openSessions(baseURL: string, fixture: Fixture): Promise<Phone[]> {
+  const cookies = new Map<string, string>();
+  for (const p of fixture.phones) {
+    if (!cookies.has(p.email)) cookies.set(p.email, await signInHttp(baseURL, p.email, p.password));
+  }
+  const phones: Phone[] = fixture.phones.map((p, c) => ({
+    cookie: cookies.get(p.email)!,
+    deviceId: `load-phone-${String(c + 1).padStart(2, "0")}`,
+    sessions: p.seatIds.map((seatId) => ({ seatId, sessionId: randomUUID() })),
+    sent: 0,
+  }));
+  const work = phones.flatMap((phone) => phone.sessions.map((s) => ({ phone, s })));
+  await pool(work, 8, async ({ phone, s }) => {
+    const res = await fetch(`${baseURL}/api/seats/${s.seatId}/sessions`, {
+      method: "POST",
+      headers: { "content-type": "application/json", origin: baseURL, cookie: phone.cookie },
+      body: JSON.stringify({ sessionId: s.sessionId, stage: "coarse", deviceId: phone.deviceId, sampleRateHz: 48000, noiseFloorDb: -62 }),
+    });
+    if (res.status !== 201) throw new Error(`opening a session failed (${res.status}): ${await res.text()}`);
+  });
+  return phones;
+}
+
+/** A fading seat: about 12 dB at the first stroke, settling towards 0.6 dB, with some scatter. */
+function contrastAt(index: number, seat: number): number {
+  const wobble = Math.sin(seat * 12.9898 + index * 78.233) * 0.3;
+  return Math.round((0.6 + 11.4 * Math.exp(-(index - 1) / 8) + wobble) * 100) / 100;
+}
+
+/** The pid of the process listening on the server's port (next start renames itself next-server). */
+function serverPid(baseURL: string): number | null {
+  try {
+    const out = execFileSync("ss", ["-ltnpH", `sport = :${new URL(baseURL).port}`], { encoding: "utf8" });
+    const m = /pid=(\d+)/.exec(out);
+    return m ? Number(m[1]) : null;
+  } catch {
+    return null;
+  }
+}
+
+const CLOCK_TICKS = (() => {
+  try {
+    return Number(execFileSync("getconf", ["CLK_TCK"], { encoding: "utf8" }).trim()) || 100;
+  } catch {
+    return 100;
+  }
+})();
+
+/** CPU time (user + system) a process has used so far, in ms; null where /proc cannot tell. */
+function cpuMs(pid: number | null): number | null {
+  if (pid === null) return null;
+  try {
+    const fields = fs.readFileSync(`/proc/${pid}/stat`, "utf8").split(") ")[1]!.split(" ");
+    return ((Number(fields[11]) + Number(fields[12])) * 1000) / CLOCK_TICKS;
+  } catch {
+    return null;
+  }
+}
+
+interface Measured {
+  requests: number;
+  ok2xx: number;
+  created: number;
+  statuses: Map<number, number>;
+  errors: number;
+  timeouts: number;
+  seconds: number;
+  latencies: Float64Array;
+  /** Requests sent whose answer had not arrived when the clock stopped. */
+  inFlight: number;
+  /** The app server's CPU time per answered request, ms (the database server's is not included). */
+  serverCpuMsPerRequest: number | null;
+}
+
+function percentile(sorted: Float64Array, p: number): number {
+  if (sorted.length === 0) return NaN;
+  return sorted[Math.min(sorted.length - 1, Math.max(0, Math.ceil(p * sorted.length) - 1))]!;
+}
+
+/** Runs autocannon instances side by side and gathers every response's status and latency. */
+async function measure(pid: number | null, instances: Array<autocannon.Options>): Promise<Measured> {
+  const latencies: number[] = [];
+  const statuses = new Map<number, number>();
+  const cpuBefore = cpuMs(pid);
+  const started = process.hrtime.bigint();
+  const results = await Promise.all(
+    instances.map(
+      (opts) =>
+        new Promise<autocannon.Result>((resolve, reject) => {
+          const instance = autocannon(opts, (err, result) => (err ? reject(err) : resolve(result)));
+          instance.on("response", (_client, statusCode: number, _bytes: number, responseTime: number) => {
+            latencies.push(responseTime);
+            statuses.set(statusCode, (statuses.get(statusCode) ?? 0) + 1);
+          });
+        }),
+    ),
+  );
+  const seconds = Number(process.hrtime.bigint() - started) / 1e9;
+  const cpuAfter = cpuMs(pid);
+  const sorted = Float64Array.from(latencies).sort();
+  let ok2xx = 0;
+  for (const [code, n] of statuses) if (code >= 200 && code < 300) ok2xx += n;
+  return {
+    requests: latencies.length,
+    ok2xx,
+    created: statuses.get(201) ?? 0,
+    statuses,
+    errors: results.reduce((a, r) => a + r.errors, 0),
+    timeouts: results.reduce((a, r) => a + r.timeouts, 0),
+    seconds,
+    latencies: sorted,
+    inFlight: results.reduce((a, r) => a + r.requests.sent, 0) - latencies.length,
+    serverCpuMsPerRequest:
+      cpuBefore !== null && cpuAfter !== null && latencies.length > 0 ? (cpuAfter - cpuBefore) / latencies.length : null,
+  };
+}
+
+function strokeSaves(baseURL: string, pid: number | null, phones: Phone[]): Promise<Measured> {
+  return measure(
+    pid,
+    phones.map((phone, c) => {
+      // One connection per phone, so its strokes go to its seats in order.
+      return {
+        url: baseURL,
+        connections: 1,
+        duration: DURATION_S,
+        headers: { "content-type": "application/json", origin: baseURL, cookie: phone.cookie },
+        requests: [
+          {
+            method: "POST",
+            setupRequest: (req) => {
+              const round = Math.floor(phone.sent / STROKES_PER_SEAT);
+              const s = phone.sessions[round % phone.sessions.length]!;
+              const index = (phone.sent % STROKES_PER_SEAT) + 1 + Math.floor(round / phone.sessions.length) * STROKES_PER_SEAT;
+              phone.sent++;
+              const contrastDb = contrastAt(index, c * 1000 + round);
+              const stroke = {
+                clientId: randomUUID(),
+                index,
+                startS: 2 * index,
+                endS: 2 * index + 1.4,
+                onsetDb: -30 + contrastDb,
+                bodyDb: -30,
+                contrastDb,
+                flags: [],
+              };
+              return { ...req, path: `/api/sessions/${s.sessionId}/strokes`, body: JSON.stringify({ strokes: [stroke] }) };
+            },
+          },
+        ],
+      } satisfies autocannon.Options;
+    }),
+  );
+}
+
+function seatReads(baseURL: string, pid: number | null, cookie: string, seatIds: string[]): Promise<Measured> {
+  let k = 0;
+  return measure(pid, [
+    {
+      url: baseURL,
+      connections: CONNECTIONS,
+      duration: DURATION_S,
+      headers: { cookie },
+      requests: [{ method: "GET", setupRequest: (req) => ({ ...req, path: `/api/seats/${seatIds[k++ % seatIds.length]}` }) }],
+    },
+  ]);
+}
+
+interface Row {
+  database: string;
+  what: "stroke saves" | "seat reads" | "health check";
+  m: Measured;
+}
+
+/** The stack's floor for comparison: an unsigned route that runs one `select 1`. */
+function healthChecks(baseURL: string, pid: number | null): Promise<Measured> {
+  return measure(pid, [{ url: `${baseURL}/api/health`, connections: CONNECTIONS, duration: Math.min(DURATION_S, 10) }]);
+}
+
+const ms = (x: number) => x.toFixed(1);
+
+function describe(row: Row): string {
+  const { m } = row;
+  const rate = m.requests / m.seconds;
+  const failures = m.requests - m.ok2xx;
+  const other = [...m.statuses].filter(([code]) => code < 200 || code >= 300).map(([code, n]) => `${n}×${code}`);
+  return [
+    row.database.padEnd(10),
+    row.what.padEnd(13),
+    rate.toFixed(0).padStart(7),
+    (row.what === "stroke saves" ? (m.created / m.seconds).toFixed(0) : "–").padStart(9),
+    ms(percentile(m.latencies, 0.5)).padStart(6),
+    ms(percentile(m.latencies, 0.95)).padStart(6),
+    ms(percentile(m.latencies, 0.99)).padStart(6),
+    String(failures).padStart(7) + (other.length ? ` (${other.join(", ")})` : ""),
+    String(m.errors + m.timeouts).padStart(7),
+    (m.serverCpuMsPerRequest === null ? "–" : m.serverCpuMsPerRequest.toFixed(2)).padStart(11),
+  ].join("  ");
+}
+
+const HEADER = [
+  "database".padEnd(10),
+  "load".padEnd(13),
+  "req/s".padStart(7),
+  "strokes/s".padStart(9),
+  "p50 ms".padStart(6),
+  "p95 ms".padStart(6),
+  "p99 ms".padStart(6),
+  "non-2xx".padStart(7),
+  "errors".padStart(7),
+  "cpu ms/req".padStart(11),
+].join("  ");
+
+async function runOn(
+  database: "PGlite" | "PostgreSQL",
+  start: () => Promise<RunningServer>,
+  db: () => Promise<{ db: Db; close(): Promise<void> }>,
+): Promise<Row[]> {
+  const prep = await db();
+  const fixture = await prepareFixture(prep.db);
+  await prep.close();
+  const server = await start();
+  const pid = serverPid(server.baseURL);
+  let rows: Row[];
+  try {
+    const phones = await openSessions(server.baseURL, fixture);
+    console.log(`${database}: ${phones.length} phones, ${phones[0]!.sessions.length} seats each, sessions open; saving strokes for ${DURATION_S} s…`);
+    const saves = await strokeSaves(server.baseURL, pid, phones);
+    const row = { database, what: "stroke saves" as const, m: saves };
+    console.log(describe(row));
+    const touched = phones.flatMap((p) =>
+      p.sessions.slice(0, Math.min(p.sessions.length, Math.ceil(p.sent / STROKES_PER_SEAT))).map((s) => s.seatId),
+    );
+    const supervisor = DEMO_USERS.find((u) => u.role === "supervisor")!;
+    const cookie = await signInHttp(server.baseURL, supervisor.email, supervisor.password);
+    console.log(`${database}: reading ${touched.length} of those seats for ${DURATION_S} s…`);
+    const reads = await seatReads(server.baseURL, pid, cookie, touched);
+    const readRow = { database, what: "seat reads" as const, m: reads };
+    console.log(describe(readRow));
+    rows = [row, readRow];
+    if (database === "PGlite") {
+      const floor = { database, what: "health check" as const, m: await healthChecks(server.baseURL, pid) };
+      console.log(describe(floor));
+      rows.push(floor);
+    }
+  } finally {
+    await server.stop();
+  }
+  // Every stroke answered 201 is stored; beyond those, only strokes whose answer was still on
+  // its way when the clock stopped (autocannon does not wait for them).
+  const check = await db();
+  const stored = (await countStrokes(check.db)) - fixture.strokesBefore;
+  await check.close();
+  const { created, ok2xx, inFlight } = rows[0]!.m;
+  // A fresh clientId each time: no save may come back as a duplicate (200).
+  const ok = ok2xx === created && stored >= created && stored <= created + inFlight;
+  console.log(
+    `${database}: strokes stored ${stored}, answered 201 ${created} (duplicates ${ok2xx - created}), in flight at the stop ${inFlight}: ${ok ? "consistent" : "INCONSISTENT"}`,
+  );
+  if (!ok) throw new Error(`${database}: ${stored} strokes stored, but ${created} were answered 201 and ${inFlight} were in flight.`);
+  return rows;
+}
+
+/** next start on a PostgreSQL database (startServer always runs on PGlite). */
+async function startOnPostgres(secret: string, databaseUrl: string): Promise<RunningServer> {
+  const port = await freePort();
+  const baseURL = `http://127.0.0.1:${port}`;
+  const dataDir = fs.mkdtempSync(path.join(os.tmpdir(), "grindfade-load-"));
+  const nextBin = path.join(process.cwd(), "node_modules", "next", "dist", "bin", "next");
+  let output = "";
+  const child: ChildProcess = spawn(process.execPath, [nextBin, "start", "-p", String(port), "-H", "127.0.0.1"], {
+    cwd: process.cwd(),
+    env: {
+      ...process.env,
+      NODE_ENV: "production",
+      NEXTAUTH_URL: baseURL,
+      NEXTAUTH_SECRET: secret,
+      GRINDFADE_DATA_DIR: dataDir,
+      NEXT_TELEMETRY_DISABLED: "1",
+      DATABASE_URL: databaseUrl,
+    },
+    stdio: ["ignore", "pipe", "pipe"],
+  });
+  child.stdout?.on("data", (d) => (output += d));
+  child.stderr?.on("data", (d) => (output += d));
+  const stop = async () => {
+    if (child.exitCode === null) {
+      const exited = new Promise((r) => child.once("exit", r));
+      child.kill("SIGTERM");
+      const t = setTimeout(() => child.kill("SIGKILL"), 5000);
+      await exited;
+      clearTimeout(t);
+    }
+    fs.rmSync(dataDir, { recursive: true, force: true });
+  };
+  const deadline = Date.now() + 120_000;
+  for (;;) {
+    if (child.exitCode !== null) throw new Error(`next start exited (${child.exitCode}):\n${output}`);
+    try {
+      if ((await fetch(`${baseURL}/api/health`)).ok) break;
+    } catch {
+      /* not up yet */
+    }
+    if (Date.now() > deadline) {
+      await stop();
+      throw new Error(`next start did not become healthy in time:\n${output}`);
+    }
+    await new Promise((r) => setTimeout(r, 250));
+  }
+  return { baseURL, dataDir, stop };
+}
+
+/** A new, empty database on the server, or null (with the reason) when the server cannot be reached. */
+async function freshPostgres(baseUrl: string): Promise<{ url: string; drop(): Promise<void> } | { skip: string }> {
+  const { Client } = await import("pg");
+  const admin = new Client({ connectionString: baseUrl, connectionTimeoutMillis: 3000 });
+  try {
+    await admin.connect();
+  } catch (err) {
+    return { skip: err instanceof Error ? err.message || err.name : String(err) };
+  }
+  const name = `grindfade_load_${process.pid}_${Date.now().toString(36)}`;
+  await admin.query(`CREATE DATABASE ${name}`);
+  await admin.end();
+  const url = new URL(baseUrl);
+  url.pathname = `/${name}`;
+  return {
+    url: url.toString(),
+    drop: async () => {
+      const c = new Client({ connectionString: baseUrl });
+      await c.connect();
+      await c.query(`DROP DATABASE IF EXISTS ${name} WITH (FORCE)`);
+      await c.end();
+    },
+  };
+}
+
+async function main() {
+  const secret = randomSecret();
+  buildApp(secret, process.env.BENCH_REBUILD === "1");
+  const only = process.env.BENCH_ONLY;
+  const cpu = os.cpus();
+  console.log(
+    `load benchmark: ${CONNECTIONS} connections, ${DURATION_S} s each, one stroke per request, ${STROKES_PER_SEAT} strokes per seat; ` +
+      `${cpu.length} × ${cpu[0]?.model.trim() ?? "cpu"}, load average ${os.loadavg().map((x) => x.toFixed(2)).join(" ")}`,
+  );
+  const rows: Row[] = [];
+
+  if (only !== "postgres") {
+    const dir = fs.mkdtempSync(path.join(os.tmpdir(), "grindfade-load-"));
+    const pgliteDir = path.join(dir, "pglite");
+    try {
+      rows.push(
+        ...(await runOn(
+          "PGlite",
+          () => startServer(secret, { GRINDFADE_DATA_DIR: dir }),
+          () => openDatabase({ pgliteDir }),
+        )),
+      );
+    } finally {
+      fs.rmSync(dir, { recursive: true, force: true });
+    }
+  }
+
+  if (only !== "pglite") {
+    const base = process.env.BENCH_DATABASE_URL || process.env.TEST_DATABASE_URL || DEFAULT_PG;
+    const fresh = await freshPostgres(base);
+    if ("skip" in fresh) {
+      console.log(`PostgreSQL: skipped, no server reachable at ${base} (${fresh.skip}); set BENCH_DATABASE_URL to run it.`);
+    } else {
+      try {
+        rows.push(
+          ...(await runOn(
+            "PostgreSQL",
+            () => startOnPostgres(secret, fresh.url),
+            () => openDatabase({ databaseUrl: fresh.url }),
+          )),
+        );
+      } finally {
+        await fresh.drop();
+      }
+    }
+  }
+
+  console.log("");
+  console.log(HEADER);
+  for (const row of rows) console.log(describe(row));
+  console.log(`load average after: ${os.loadavg().map((x) => x.toFixed(2)).join(" ")}`);
+  const pglite = rows.find((r) => r.database === "PGlite" && r.what === "stroke saves");
+  if (pglite) {
+    const m = pglite.m;
+    const strokesPerS = m.created / m.seconds;
+    const p95 = percentile(m.latencies, 0.95);
+    const failures = m.requests - m.ok2xx + m.errors + m.timeouts;
+    const ok = strokesPerS >= GOAL.strokesPerS && p95 <= GOAL.p95Ms && failures === 0;
+    console.log(
+      `goal on PGlite: ≥ ${GOAL.strokesPerS} stroke saves/s (${strokesPerS.toFixed(0)}), p95 ≤ ${GOAL.p95Ms} ms (${ms(p95)}), no errors (${failures}): ${ok ? "met" : "MISSED"}`,
+    );
+    if (!ok) process.exitCode = 1;
+  }
+}
+
+main().catch((err: unknown) => {
+  console.error(err instanceof Error ? err.message : String(err));
+  process.exit(1);
+});
