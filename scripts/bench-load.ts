@@ -30,6 +30,7 @@ import { customers, jobs, shops, strokes, users } from "@/db/schema";
 import { DEMO_USERS, seedDemoShop } from "@/db/seed";
 import { createHeadWithSeats } from "@/lib/heads/create";
 import { buildApp, freePort, randomSecret, startServer, type RunningServer as FullServer } from "../tests/e2e/server";
+import { sessionCookie } from "../tests/e2e/http-sign-in";
 
 type RunningServer = Pick<FullServer, "baseURL" | "dataDir" | "stop">;
 
@@ -107,32 +108,6 @@ async function countStrokes(db: Db): Promise<number> {
   return n;
 }
 
-/** Signs in through next-auth's credentials endpoint, as the sign-in form does; returns the Cookie header. */
-async function signInHttp(baseURL: string, email: string, password: string): Promise<string> {
-  const csrfRes = await fetch(`${baseURL}/api/auth/csrf`);
-  const { csrfToken } = (await csrfRes.json()) as { csrfToken: string };
-  const jar = new Map<string, string>();
-  const keep = (res: Response) => {
-    for (const c of res.headers.getSetCookie()) {
-      const [pair] = c.split(";");
-      const at = pair!.indexOf("=");
-      jar.set(pair!.slice(0, at), pair!.slice(at + 1));
-    }
-  };
-  keep(csrfRes);
-  const cookie = () => [...jar].map(([k, v]) => `${k}=${v}`).join("; ");
-  const res = await fetch(`${baseURL}/api/auth/callback/credentials`, {
-    method: "POST",
-    redirect: "manual",
-    headers: { "content-type": "application/x-www-form-urlencoded", origin: baseURL, cookie: cookie() },
-    body: new URLSearchParams({ csrfToken, email, password, callbackUrl: `${baseURL}/jobs`, json: "true" }),
-  });
-  keep(res);
-  if (![...jar.keys()].some((k) => k.endsWith("next-auth.session-token"))) {
-    throw new Error(`sign-in as ${email} failed (${res.status}): ${await res.text()}`);
-  }
-  return cookie();
-}
 
 /** Runs `work` over `items` with at most `limit` at a time. */
 async function pool<T>(items: T[], limit: number, work: (item: T, i: number) => Promise<void>): Promise<void> {
@@ -158,7 +133,7 @@ interface Phone {
 async function openSessions(baseURL: string, fixture: Fixture): Promise<Phone[]> {
   const cookies = new Map<string, string>();
   for (const p of fixture.phones) {
-    if (!cookies.has(p.email)) cookies.set(p.email, await signInHttp(baseURL, p.email, p.password));
+    if (!cookies.has(p.email)) cookies.set(p.email, await sessionCookie(baseURL, p.email, p.password));
   }
   const phones: Phone[] = fixture.phones.map((p, c) => ({
     cookie: cookies.get(p.email)!,
@@ -389,7 +364,7 @@ async function runOn(
       p.sessions.slice(0, Math.min(p.sessions.length, Math.ceil(p.sent / STROKES_PER_SEAT))).map((s) => s.seatId),
     );
     const supervisor = DEMO_USERS.find((u) => u.role === "supervisor")!;
-    const cookie = await signInHttp(server.baseURL, supervisor.email, supervisor.password);
+    const cookie = await sessionCookie(server.baseURL, supervisor.email, supervisor.password);
     console.log(`${database}: reading ${touched.length} of those seats for ${DURATION_S} s…`);
     const reads = await seatReads(server.baseURL, pid, cookie, touched);
     const readRow = { database, what: "seat reads" as const, m: reads };

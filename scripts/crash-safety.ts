@@ -14,6 +14,7 @@ import { pathToFileURL } from "node:url";
 import { DEMO_USERS } from "@/db/seed";
 import { buildApp, randomSecret, startServer, type RunningServer } from "../tests/e2e/server";
 import { clusterState as pgControlState } from "../tests/helpers/pg-control";
+import { sessionCookie } from "../tests/e2e/http-sign-in";
 
 export type StopSignal = "SIGKILL" | "SIGTERM";
 
@@ -101,29 +102,6 @@ function cookiesOf(res: Response): string[] {
   return res.headers.getSetCookie().map((c) => c.split(";")[0]!);
 }
 
-async function signIn(baseURL: string, email: string, password: string): Promise<string> {
-  const csrf = await fetch(`${baseURL}/api/auth/csrf`);
-  const { csrfToken } = (await csrf.json()) as { csrfToken: string };
-  const res = await fetch(`${baseURL}/api/auth/callback/credentials`, {
-    method: "POST",
-    redirect: "manual",
-    headers: {
-      "content-type": "application/x-www-form-urlencoded",
-      cookie: cookiesOf(csrf).join("; "),
-      origin: baseURL,
-    },
-    body: new URLSearchParams({
-      csrfToken,
-      email,
-      password,
-      callbackUrl: `${baseURL}/jobs`,
-      json: "true",
-    }),
-  });
-  const session = cookiesOf(res).find((c) => c.startsWith("next-auth.session-token="));
-  if (!session) throw new Error(`sign-in as ${email} failed (HTTP ${res.status})`);
-  return session;
-}
 
 async function getJson<T>(baseURL: string, cookie: string, route: string): Promise<T> {
   const res = await fetch(`${baseURL}${route}`, { headers: { cookie } });
@@ -240,7 +218,7 @@ export async function crashRun(
     };
     const free = new Map<string, string[]>();
     for (const [k, t] of technicians.entries()) {
-      const cookie = await signIn(baseURL, t.email, t.password);
+      const cookie = await sessionCookie(baseURL, t.email, t.password);
       const wanted = Math.ceil((clientCount - k) / technicians.length);
       free.set(t.email, await waitingSeats(baseURL, cookie, jobOf[t.email]!, wanted));
     }
@@ -251,7 +229,7 @@ export async function crashRun(
       const tech = technicians[c % technicians.length]!;
       const seatId = free.get(tech.email)!.shift();
       if (!seatId) throw new Error(`not enough waiting seats for ${tech.email}`);
-      const cookie = await signIn(baseURL, tech.email, tech.password);
+      const cookie = await sessionCookie(baseURL, tech.email, tech.password);
       const sessionId = randomUUID();
       const res = await postJson(baseURL, cookie, `/api/seats/${seatId}/sessions`, {
         sessionId,

@@ -7,6 +7,7 @@ import path from "node:path";
 import { describe, expect, inject, it } from "vitest";
 import { DEMO_USERS } from "@/db/seed";
 import { goalFor, kb, pageWeights, routeOf, WEIGHT_GOALS } from "../../scripts/page-weight";
+import { sessionCookie } from "./http-sign-in";
 
 const baseURL = inject("baseURL");
 const nextDir = path.join(process.cwd(), ".next");
@@ -37,30 +38,6 @@ async function chunksLoadedByHtml(url: string, cookie?: string): Promise<string[
   return [...new Set(named)].filter((f) => !noModule.has(f));
 }
 
-async function signInCookie(email: string, password: string): Promise<string> {
-  const csrf = await fetch(`${baseURL}/api/auth/csrf`);
-  const { csrfToken } = (await csrf.json()) as { csrfToken: string };
-  const jar = new Map<string, string>();
-  const keep = (res: Response) => {
-    for (const c of res.headers.getSetCookie()) {
-      const pair = c.split(";")[0]!;
-      jar.set(pair.slice(0, pair.indexOf("=")), pair.slice(pair.indexOf("=") + 1));
-    }
-  };
-  keep(csrf);
-  const res = await fetch(`${baseURL}/api/auth/callback/credentials`, {
-    method: "POST",
-    redirect: "manual",
-    headers: {
-      "content-type": "application/x-www-form-urlencoded",
-      origin: baseURL,
-      cookie: [...jar].map(([k, v]) => `${k}=${v}`).join("; "),
-    },
-    body: new URLSearchParams({ csrfToken, email, password, json: "true" }),
-  });
-  keep(res);
-  return [...jar].map(([k, v]) => `${k}=${v}`).join("; ");
-}
 
 describe("page weight", () => {
   const weights = pageWeights(nextDir);
@@ -81,7 +58,7 @@ describe("page weight", () => {
 
   it("counts every chunk the server's HTML makes a browser load, and beyond those only boundary chunks", async () => {
     const supervisor = DEMO_USERS.find((u) => u.role === "supervisor")!;
-    const cookie = await signInCookie(supervisor.email, supervisor.password);
+    const cookie = await sessionCookie(baseURL, supervisor.email, supervisor.password);
     for (const [route, headers] of [
       ["/sign-in", undefined],
       ["/jobs", cookie],

@@ -8,32 +8,13 @@ import type { Browser } from "playwright-core";
 import { DEMO_USERS } from "@/db/seed";
 import { launchBrowser, PHONE, signIn } from "./browser";
 import { decayingSession } from "./bench-audio";
+import { signInOverHttp as httpSignIn } from "./http-sign-in";
 import { randomSecret, startServer, type RunningServer } from "./server";
 
 const baseURL = inject("baseURL");
 const tech = DEMO_USERS.find((u) => u.email.startsWith("ines"))!;
 const supervisor = DEMO_USERS.find((u) => u.role === "supervisor")!;
 
-function cookiesOf(res: Response): string[] {
-  return res.headers.getSetCookie();
-}
-
-/** next-auth's credentials flow over plain HTTP: the answer to the credentials post and the cookies. */
-async function httpSignIn(base: string, email: string, password: string) {
-  const csrfRes = await fetch(`${base}/api/auth/csrf`);
-  const { csrfToken } = (await csrfRes.json()) as { csrfToken: string };
-  const csrfCookie = cookiesOf(csrfRes).map((c) => c.split(";")[0]).join("; ");
-  const res = await fetch(`${base}/api/auth/callback/credentials`, {
-    method: "POST",
-    redirect: "manual",
-    headers: { "content-type": "application/x-www-form-urlencoded", cookie: csrfCookie, origin: base },
-    body: new URLSearchParams({ csrfToken, email, password, json: "true" }),
-  });
-  const setCookies = cookiesOf(res);
-  const jar = [csrfCookie, ...setCookies.map((c) => c.split(";")[0])].join("; ");
-  const location = res.headers.get("location") ?? ((await res.json().catch(() => ({}))) as { url?: string }).url ?? "";
-  return { res, setCookies, jar, location, csrfCookies: cookiesOf(csrfRes) };
-}
 
 describe("response headers", () => {
   it("gives every page a content security policy with a fresh nonce that its own scripts carry", async () => {
@@ -90,7 +71,7 @@ describe("changes only from our own pages", () => {
   });
 
   it("refuses a signed-in technician's forged stroke post and saves nothing", async () => {
-    const { jar } = await httpSignIn(baseURL, tech.email, tech.password);
+    const { cookie: jar } = await httpSignIn(baseURL, tech.email, tech.password);
     const jobs = (await (await fetch(`${baseURL}/api/jobs`, { headers: { cookie: jar } })).json()) as { jobs: { id: string; number: string }[] };
     expect(jobs.jobs.length).toBeGreaterThan(0);
     const sessionId = crypto.randomUUID();
@@ -112,7 +93,7 @@ describe("changes only from our own pages", () => {
 
 describe("session cookies", () => {
   it("are HttpOnly and SameSite=Lax, for the session and for the sign-in form's token", async () => {
-    const { setCookies, csrfCookies, location } = await httpSignIn(baseURL, supervisor.email, supervisor.password);
+    const { setCookies, csrfSetCookies: csrfCookies, location } = await httpSignIn(baseURL, supervisor.email, supervisor.password);
     expect(location).not.toMatch(/error=/);
     const session = setCookies.find((c) => /session-token=/.test(c));
     expect(session).toBeTruthy();
