@@ -168,7 +168,8 @@ describe("session review on a phone", () => {
     const png = Buffer.from("iVBORw0KGgoAAAANSUhEUgAAAAEAAAABCAYAAAAfFcSJAAAADUlEQVR42mNk+M9QDwADhgGAWjR9awAAAABJRU5ErkJggg==", "base64");
     await photos.locator('input[type="file"]').setInputFiles({ name: "ring.png", mimeType: "image/png", buffer: png });
     await photos.getByTestId("photo-message").getByText("Photo saved.").waitFor({ timeout: 15_000 });
-    expect(await photos.locator("img").count()).toBe(1);
+    // The list is drawn again from the server after the message shows.
+    await expect.poll(() => photos.locator("img").count(), { timeout: 15_000 }).toBe(1);
     // Something that is not an image is refused with a message, whatever it claims to be.
     await photos.locator('input[type="file"]').setInputFiles({ name: "ring.png", mimeType: "image/png", buffer: Buffer.from("not an image at all") });
     await photos.getByTestId("photo-message").getByText(/Not saved/).waitFor({ timeout: 15_000 });
