@@ -45,8 +45,9 @@ export function SeatPhotos({ seatId, canAdd }: { seatId: string; canAdd: boolean
       const res = await fetch(`/api/seats/${seatId}/photos`, { method: "POST", headers: { "content-type": file.type || "application/octet-stream" }, body: file });
       const body = (await res.json().catch(() => ({}))) as { message?: string };
       if (!res.ok) throw new Error(body.message ?? `HTTP ${res.status}`);
-      setMessage("Photo saved.");
+      // The message shows once the list holds the new photo.
       await load();
+      setMessage("Photo saved.");
     } catch (err) {
       setMessage(`Not saved: ${err instanceof Error ? err.message : String(err)}`);
     } finally {
