@@ -12,21 +12,12 @@ import { decayingContrasts } from "@/lib/audio/synth";
 import type { OutboxOp } from "@/lib/bench/outbox";
 import type { TestDatabase } from "../helpers/db";
 import { BASE_URL, counts, quietFor, seatId as findSeat, seatRow, sessionBody, setSeatState, strokeInputs, strokesOfSession, userIds } from "./helpers";
+import { mockAppContext } from "../helpers/app-mocks";
 
-const state = vi.hoisted(() => ({ session: null as null | { user: { id: string } }, t: null as TestDatabase | null }));
+const state = mockAppContext();
 // Recordings go to a directory of this test's own; storage reads the setting on first use.
 const dataDir = fs.mkdtempSync(path.join(os.tmpdir(), "grindfade-bench-data-"));
 process.env.GRINDFADE_DATA_DIR = dataDir;
-
-vi.mock("next-auth", async (orig) => ({
-  ...(await orig<typeof import("next-auth")>()),
-  getServerSession: async () => state.session,
-}));
-vi.mock("next/cache", () => ({ revalidatePath: () => {} }));
-vi.mock("@/db/client", async (orig) => ({
-  ...(await orig<typeof import("@/db/client")>()),
-  getDb: async () => state.t!.db,
-}));
 
 const { freshPglite } = await import("../helpers/db");
 const { seedDemoShop } = await import("@/db/seed");

@@ -23,24 +23,12 @@ import {
   type Persona,
 } from "./role-matrix";
 import { ROOT, listRouteHandlers, listServerActions, type HttpMethod } from "./route-tree";
+import { mockAppContext } from "../helpers/app-mocks";
 
-const state = vi.hoisted(() => ({
-  session: null as null | { user: { id: string } },
-  t: null as TestDatabase | null,
-}));
+const state = mockAppContext();
 // Storage reads its directory on first use; this test gets one of its own.
 const dataDir = fs.mkdtempSync(path.join(os.tmpdir(), "grindfade-matrix-"));
 process.env.GRINDFADE_DATA_DIR = dataDir;
-
-vi.mock("next-auth", async (orig) => ({
-  ...(await orig<typeof import("next-auth")>()),
-  getServerSession: async () => state.session,
-}));
-vi.mock("next/cache", () => ({ revalidatePath: () => {} }));
-vi.mock("@/db/client", async (orig) => ({
-  ...(await orig<typeof import("@/db/client")>()),
-  getDb: async () => state.t!.db,
-}));
 
 const { freshPglite } = await import("../helpers/db");
 const { seedDemoShop } = await import("@/db/seed");

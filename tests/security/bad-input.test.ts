@@ -7,18 +7,9 @@ import os from "node:os";
 import path from "node:path";
 import { afterAll, afterEach, beforeAll, beforeEach, describe, expect, it, vi } from "vitest";
 import type { TestDatabase } from "../helpers/db";
+import { mockAppContext } from "../helpers/app-mocks";
 
-const state = vi.hoisted(() => ({ session: null as null | { user: { id: string } }, t: null as TestDatabase | null }));
-
-vi.mock("next-auth", async (orig) => ({
-  ...(await orig<typeof import("next-auth")>()),
-  getServerSession: async () => state.session,
-}));
-vi.mock("next/cache", () => ({ revalidatePath: () => {} }));
-vi.mock("@/db/client", async (orig) => ({
-  ...(await orig<typeof import("@/db/client")>()),
-  getDb: async () => state.t!.db,
-}));
+const state = mockAppContext();
 
 // Storage reads its directory on first use; this file gets one of its own.
 const dataDir = fs.mkdtempSync(path.join(os.tmpdir(), "grindfade-bad-input-"));

@@ -3,18 +3,9 @@ import { eq, inArray, sql } from "drizzle-orm";
 import { afterAll, beforeAll, describe, expect, it, vi } from "vitest";
 import { camshafts, heads, journals, seats, valves } from "@/db/schema";
 import type { TestDatabase } from "../helpers/db";
+import { mockAppContext } from "../helpers/app-mocks";
 
-const state = vi.hoisted(() => ({ session: null as null | { user: { id: string } }, t: null as TestDatabase | null }));
-
-vi.mock("next-auth", async (orig) => ({
-  ...(await orig<typeof import("next-auth")>()),
-  getServerSession: async () => state.session,
-}));
-vi.mock("next/cache", () => ({ revalidatePath: () => {} }));
-vi.mock("@/db/client", async (orig) => ({
-  ...(await orig<typeof import("@/db/client")>()),
-  getDb: async () => state.t!.db,
-}));
+const state = mockAppContext();
 
 const { freshPglite } = await import("../helpers/db");
 const { seedDemoShop } = await import("@/db/seed");

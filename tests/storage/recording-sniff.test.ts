@@ -10,20 +10,11 @@ import { lappingSessions } from "@/db/schema";
 import type { TestDatabase } from "../helpers/db";
 import { BASE_URL, bodyOf, jsonRequest, seatId as findSeat, sessionBody, userIds } from "../bench/helpers";
 import { concat, ebmlHeader, oggOpusPage, oggVorbisPage, pngHead, wavFile } from "./fixtures";
+import { mockAppContext } from "../helpers/app-mocks";
 
-const state = vi.hoisted(() => ({ session: null as null | { user: { id: string } }, t: null as TestDatabase | null }));
+const state = mockAppContext();
 const dataDir = fs.mkdtempSync(path.join(os.tmpdir(), "grindfade-sniff-"));
 process.env.GRINDFADE_DATA_DIR = dataDir;
-
-vi.mock("next-auth", async (orig) => ({
-  ...(await orig<typeof import("next-auth")>()),
-  getServerSession: async () => state.session,
-}));
-vi.mock("next/cache", () => ({ revalidatePath: () => {} }));
-vi.mock("@/db/client", async (orig) => ({
-  ...(await orig<typeof import("@/db/client")>()),
-  getDb: async () => state.t!.db,
-}));
 
 const { freshPglite } = await import("../helpers/db");
 const { seedDemoShop } = await import("@/db/seed");
