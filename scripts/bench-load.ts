@@ -31,6 +31,7 @@ import { DEMO_USERS, seedDemoShop } from "@/db/seed";
 import { createHeadWithSeats } from "@/lib/heads/create";
 import { buildApp, freePort, randomSecret, startServer, type RunningServer as FullServer } from "../tests/e2e/server";
 import { sessionCookie } from "../tests/e2e/http-sign-in";
+import { syntheticStroke } from "../tests/helpers/strokes";
 
 type RunningServer = Pick<FullServer, "baseURL" | "dataDir" | "stop">;
 
@@ -266,16 +267,7 @@ function strokeSaves(baseURL: string, pid: number | null, phones: Phone[]): Prom
               const index = (phone.sent % STROKES_PER_SEAT) + 1 + Math.floor(round / phone.sessions.length) * STROKES_PER_SEAT;
               phone.sent++;
               const contrastDb = contrastAt(index, c * 1000 + round);
-              const stroke = {
-                clientId: randomUUID(),
-                index,
-                startS: 2 * index,
-                endS: 2 * index + 1.4,
-                onsetDb: -30 + contrastDb,
-                bodyDb: -30,
-                contrastDb,
-                flags: [],
-              };
+              const stroke = syntheticStroke(index, contrastDb);
               return { ...req, path: `/api/sessions/${s.sessionId}/strokes`, body: JSON.stringify({ strokes: [stroke] }) };
             },
           },

@@ -15,6 +15,7 @@ import { DEMO_USERS } from "@/db/seed";
 import { buildApp, randomSecret, startServer, type RunningServer } from "../tests/e2e/server";
 import { clusterState as pgControlState } from "../tests/helpers/pg-control";
 import { sessionCookie } from "../tests/e2e/http-sign-in";
+import { syntheticStroke } from "../tests/helpers/strokes";
 
 export type StopSignal = "SIGKILL" | "SIGTERM";
 
@@ -159,16 +160,7 @@ function strokesFor(count: number): Stroke[] {
     const index = k + 1;
     // A fade from 12 dB towards 0.6 dB, as a seat lapping in.
     const contrastDb = Math.round((0.6 + 11.4 * Math.exp(-k / 25)) * 100) / 100;
-    return {
-      clientId: randomUUID(),
-      index,
-      startS: 2 * index,
-      endS: 2 * index + 1.4,
-      onsetDb: -30 + contrastDb,
-      bodyDb: -30,
-      contrastDb,
-      flags: [],
-    };
+    return syntheticStroke(index, contrastDb);
   });
 }
 

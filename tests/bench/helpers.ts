@@ -7,6 +7,7 @@ import type { Db } from "@/db/client";
 import { auditEntries, heads, jobs, lappingSessions, seats, strokes, users } from "@/db/schema";
 import { seatCode } from "@/lib/heads/layout";
 import type { StrokeInput } from "@/lib/validations/bench";
+import { syntheticStroke } from "../helpers/strokes";
 
 export const BASE_URL = "http://grindfade.test";
 
@@ -74,19 +75,7 @@ export async function auditFor(db: Db, entityId: string, action: string) {
 
 /** Strokes two seconds apart with the given contrasts, numbered from `firstIndex`. */
 export function strokeInputs(contrastsDb: readonly number[], firstIndex = 1): StrokeInput[] {
-  return contrastsDb.map((contrastDb, k) => {
-    const index = firstIndex + k;
-    return {
-      clientId: randomUUID(),
-      index,
-      startS: 2 * index,
-      endS: 2 * index + 1.4,
-      onsetDb: -30 + contrastDb,
-      bodyDb: -30,
-      contrastDb,
-      flags: [],
-    };
-  });
+  return contrastsDb.map((contrastDb, k) => syntheticStroke(firstIndex + k, contrastDb));
 }
 
 export function sessionBody(stage: "coarse" | "fine", deviceId: string, sessionId: string = randomUUID()) {
