@@ -21,12 +21,12 @@ import { assertCanWorkOn } from "@/lib/auth/job-access";
 import { recordAudit } from "@/lib/audit";
 import { ConflictError, ForbiddenError, NotFoundError } from "@/lib/errors";
 import { seatCode, seatLabel } from "@/lib/heads/layout";
+import { isClosed } from "@/lib/jobs/lifecycle";
 import type { StartSessionInput, StrokeInput } from "@/lib/validations/bench";
 
 /** A phone that has sent nothing for this long no longer holds its seat. */
 export const SEAT_HOLD_SECONDS = 45;
 
-const CLOSED_JOB_STATUSES: readonly JobStatus[] = ["signed_off", "collected"];
 
 interface SeatContext {
   seat: typeof seats.$inferSelect;
@@ -60,7 +60,7 @@ function assertOpenForWork(ctx: WorkTarget): void {
       `Seat ${seatCode(ctx.seat)} is signed off. A supervisor must reopen it before more strokes are recorded.`,
     );
   }
-  if (CLOSED_JOB_STATUSES.includes(ctx.job.status)) {
+  if (isClosed(ctx.job.status)) {
     throw new ConflictError(`Job ${ctx.job.number} is signed off; its seats are read-only.`);
   }
 }
@@ -476,7 +476,7 @@ export async function endSession(db: Db, actor: Actor, sessionId: string): Promi
  */
 function assertRecordingReplaceable(ctx: Awaited<ReturnType<typeof loadSession>>): void {
   if (!ctx.session.recordingKey) return;
-  if (ctx.seat.state === "approved" || CLOSED_JOB_STATUSES.includes(ctx.job.status)) {
+  if (ctx.seat.state === "approved" || isClosed(ctx.job.status)) {
     throw new ConflictError(
       `Seat ${seatCode(ctx.seat)} is signed off and this session's recording is part of its record. A supervisor must reopen the seat before it is replaced.`,
     );

@@ -4,27 +4,19 @@
 import { randomUUID } from "node:crypto";
 import { and, asc, eq } from "drizzle-orm";
 import type { Db } from "@/db/client";
-import { heads, jobs, seatPhotos, seats, users, type JobStatus, type Seat } from "@/db/schema";
+import { heads, jobs, seatPhotos, seats, users, type Seat } from "@/db/schema";
 import { recordAudit } from "@/lib/audit";
 import type { Actor } from "@/lib/auth/guard";
 import { assertCanWorkOn } from "@/lib/auth/job-access";
-import { AppError, BadRequestError, ConflictError, NotFoundError } from "@/lib/errors";
+import { BadRequestError, ConflictError, NotFoundError, PayloadTooLargeError, UnsupportedMediaTypeError } from "@/lib/errors";
+import { isClosed } from "@/lib/jobs/lifecycle";
 import { blobStore, TooLargeError } from "./index";
 import { peekStream, sniff } from "./sniff";
 
 /** A phone camera's JPEG is 2–6 MB; 10 MB leaves room for a large PNG without taking anything. */
 export const MAX_PHOTO_BYTES = 10 * 1024 * 1024;
 
-export class PhotoTooLarge extends AppError {
-  override readonly status = 413;
-}
-export class PhotoUnsupported extends AppError {
-  override readonly status = 415;
-}
-
-export const tooLargePhoto = () => new PhotoTooLarge(`Photos are limited to ${MAX_PHOTO_BYTES / 1048576} MB. Take it again at a lower resolution.`);
-
-const CLOSED_JOB_STATUSES: readonly JobStatus[] = ["signed_off", "collected"];
+export const tooLargePhoto = () => new PayloadTooLargeError(`Photos are limited to ${MAX_PHOTO_BYTES / 1048576} MB. Take it again at a lower resolution.`);
 
 export interface SeatPhoto {
   id: string;
@@ -53,14 +45,14 @@ export async function addSeatPhoto(db: Db, actor: Actor, seatId: string, body: R
   const { seat, job } = await loadSeat(db, actor.shopId, seatId);
   assertCanWorkOn(actor, job);
   if (seat.state === "approved") throw new ConflictError("This seat is signed off. A supervisor must reopen it before photos are added.");
-  if (CLOSED_JOB_STATUSES.includes(job.status)) throw new ConflictError(`Job ${job.number} is signed off; its seats are read-only.`);
+  if (isClosed(job.status)) throw new ConflictError(`Job ${job.number} is signed off; its seats are read-only.`);
 
   const peeked = body ? await peekStream(body) : null;
   if (!peeked) throw new BadRequestError("The photo is empty.");
   const kind = sniff(peeked.head);
   if (!kind || !(kind.kind === "jpeg" || kind.kind === "png" || kind.kind === "webp")) {
     await peeked.stream.cancel().catch(() => {});
-    throw new PhotoUnsupported(
+    throw new UnsupportedMediaTypeError(
       kind?.kind === "heic"
         ? "HEIC photos cannot be shown in every browser. Set the camera to save JPEG (Most Compatible) and take it again."
         : "Photos must be JPEG, PNG or WebP images.",

@@ -2,21 +2,14 @@
 import type { Db } from "@/db/client";
 import type { Actor } from "@/lib/auth/guard";
 import { attachRecording, getSessionForUpload } from "@/lib/bench/service";
-import { AppError, BadRequestError } from "@/lib/errors";
+import { BadRequestError, PayloadTooLargeError, UnsupportedMediaTypeError } from "@/lib/errors";
 import { blobStore, TooLargeError } from "./index";
 import { peekStream, sniff, type Sniffed } from "./sniff";
 
 /** 60 minutes of Opus at 64 kbit/s is about 29 MB; anything much larger is not a bench recording. */
 export const MAX_RECORDING_BYTES = 64 * 1024 * 1024;
 
-export class PayloadTooLarge extends AppError {
-  override readonly status = 413;
-}
-export class UnsupportedType extends AppError {
-  override readonly status = 415;
-}
-
-export const tooLargeRecording = () => new PayloadTooLarge(`Recordings are limited to ${MAX_RECORDING_BYTES / 1048576} MB.`);
+export const tooLargeRecording = () => new PayloadTooLargeError(`Recordings are limited to ${MAX_RECORDING_BYTES / 1048576} MB.`);
 
 /**
  * WebM (what Chrome's and Android's recorder writes), Ogg Opus (Firefox's) and WAV (the
@@ -29,7 +22,7 @@ function acceptedRecording(s: Sniffed | null): s is Sniffed {
 
 /**
  * The body with its kind read from its first bytes, whatever the declared type says.
- * Null when the body is empty; throws UnsupportedType when it is not a recording we keep.
+ * Null when the body is empty; throws UnsupportedMediaTypeError when it is not a recording we keep.
  */
 export async function sniffRecording(
   body: ReadableStream<Uint8Array>,
@@ -39,7 +32,7 @@ export async function sniffRecording(
   const sniffed = sniff(peeked.head);
   if (!acceptedRecording(sniffed)) {
     await peeked.stream.cancel().catch(() => {});
-    throw new UnsupportedType("Recordings must be WebM, Ogg Opus or WAV audio; this file is none of them. Record again on the bench screen.");
+    throw new UnsupportedMediaTypeError("Recordings must be WebM, Ogg Opus or WAV audio; this file is none of them. Record again on the bench screen.");
   }
   return { sniffed, stream: peeked.stream };
 }

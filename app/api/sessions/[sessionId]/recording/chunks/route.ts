@@ -7,10 +7,10 @@ import { z } from "zod";
 import { getDb } from "@/db/client";
 import { guardedRoute } from "@/lib/auth/guard";
 import { getSessionForUpload } from "@/lib/bench/service";
-import { BadRequestError } from "@/lib/errors";
+import { BadRequestError, UnsupportedMediaTypeError } from "@/lib/errors";
 import { parseId } from "@/lib/http";
 import { blobStore, TooLargeError, type BlobStore } from "@/lib/storage";
-import { MAX_RECORDING_BYTES, sniffRecording, storeRecording, tooLargeRecording, UnsupportedType } from "@/lib/storage/recording-upload";
+import { MAX_RECORDING_BYTES, sniffRecording, storeRecording, tooLargeRecording } from "@/lib/storage/recording-upload";
 
 type Ctx = { params: Promise<{ sessionId: string }> };
 
@@ -149,7 +149,7 @@ export const PUT = guardedRoute("jobs:work", async (req, ctx: Ctx, actor) => {
     return NextResponse.json({ ok: true, bytes: stored.bytes }, { status: 201 });
   } catch (err) {
     // A recording that is not one will not become one by resending: start clean.
-    if (err instanceof UnsupportedType) await discard(store, id, manifest);
+    if (err instanceof UnsupportedMediaTypeError) await discard(store, id, manifest);
     throw err;
   }
 });
