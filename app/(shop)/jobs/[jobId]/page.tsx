@@ -19,6 +19,7 @@ import { can } from "@/lib/auth/roles";
 import { seatCode } from "@/lib/heads/layout";
 import { JOB_STATUS_LABELS, JOB_STATUS_TONES } from "@/lib/labels";
 import { allowedMoves, isClosed } from "@/lib/jobs/lifecycle";
+import { Fact } from "@/components/ui/fact";
 
 export const metadata: Metadata = { title: "Job" };
 
@@ -63,18 +64,9 @@ export default async function JobPage({ params }: PageProps<"/jobs/[jobId]">) {
         <p className="text-lg font-semibold">{job.customer.name}</p>
         <p className="text-stone-700">{job.engineDescription}</p>
         <dl className="mt-2 grid grid-cols-2 gap-x-6 gap-y-1 text-sm sm:grid-cols-4">
-          <div>
-            <dt className="text-stone-500">Technician</dt>
-            <dd className="font-semibold">{job.technician?.name ?? "Unassigned"}</dd>
-          </div>
-          <div>
-            <dt className="text-stone-500">Promised</dt>
-            <dd className="figure font-semibold">{job.promisedOn ?? "—"}</dd>
-          </div>
-          <div>
-            <dt className="text-stone-500">Contact</dt>
-            <dd className="font-semibold">{job.customer.phone ?? job.customer.email ?? "—"}</dd>
-          </div>
+          <Fact label="Technician">{job.technician?.name ?? "Unassigned"}</Fact>
+          <Fact label="Promised" figure>{job.promisedOn ?? "—"}</Fact>
+          <Fact label="Contact">{job.customer.phone ?? job.customer.email ?? "—"}</Fact>
         </dl>
         {job.notes ? <p className="mt-2 rounded-lg bg-amber-50 p-3 text-sm">{job.notes}</p> : null}
         <JobStatusActions jobId={job.id} moves={allowedMoves(job.status, actor.role).map((m) => ({ to: m.to, label: m.label }))} />

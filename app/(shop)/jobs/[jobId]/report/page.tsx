@@ -19,6 +19,7 @@ import { JOB_STATUS_LABELS, SEAT_STATE_LABELS } from "@/lib/labels";
 import { CLEARANCE_VERDICT_LABELS } from "@/lib/measure/clearance";
 import type { LappingStage } from "@/db/schema";
 import { seatVerdicts, type StageSummary } from "./seat-verdicts";
+import { Fact } from "@/components/ui/fact";
 
 export const metadata: Metadata = { title: "Head report" };
 // Reads the database on every request; never prerendered at build time.
@@ -103,35 +104,17 @@ export default async function HeadReportPage({ params }: PageProps<"/jobs/[jobId
         <p className="text-sm font-semibold uppercase tracking-wide text-stone-500">Head report</p>
         <h1 className="figure text-3xl font-bold">{job.number}</h1>
         <dl className="mt-2 grid grid-cols-1 gap-x-6 gap-y-1 text-sm sm:grid-cols-2 print:grid-cols-2">
-          <div>
-            <dt className="text-stone-500">Customer</dt>
-            <dd className="font-semibold">
-              {job.customer.name}
-              {job.customer.phone || job.customer.email ? (
-                <span className="font-normal text-stone-600"> · {job.customer.phone ?? job.customer.email}</span>
-              ) : null}
-            </dd>
-          </div>
-          <div>
-            <dt className="text-stone-500">Engine</dt>
-            <dd className="font-semibold">{job.engineDescription}</dd>
-          </div>
-          <div>
-            <dt className="text-stone-500">Status</dt>
-            <dd className="font-semibold">{JOB_STATUS_LABELS[job.status]}</dd>
-          </div>
-          <div>
-            <dt className="text-stone-500">Technician</dt>
-            <dd className="font-semibold">{job.technician?.name ?? "Unassigned"}</dd>
-          </div>
-          <div>
-            <dt className="text-stone-500">Promised</dt>
-            <dd className="figure font-semibold">{job.promisedOn ?? "—"}</dd>
-          </div>
-          <div>
-            <dt className="text-stone-500">Printed</dt>
-            <dd className="figure font-semibold">{stamp(new Date().toISOString())}</dd>
-          </div>
+          <Fact label="Customer">
+            {job.customer.name}
+            {job.customer.phone || job.customer.email ? (
+              <span className="font-normal text-stone-600"> · {job.customer.phone ?? job.customer.email}</span>
+            ) : null}
+          </Fact>
+          <Fact label="Engine">{job.engineDescription}</Fact>
+          <Fact label="Status">{JOB_STATUS_LABELS[job.status]}</Fact>
+          <Fact label="Technician">{job.technician?.name ?? "Unassigned"}</Fact>
+          <Fact label="Promised" figure>{job.promisedOn ?? "—"}</Fact>
+          <Fact label="Printed" figure>{stamp(new Date().toISOString())}</Fact>
         </dl>
         {job.notes ? <p className="mt-2 text-sm">{job.notes}</p> : null}
       </header>
