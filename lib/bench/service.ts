@@ -22,7 +22,19 @@ import { recordAudit } from "@/lib/audit";
 import { ConflictError, ForbiddenError, NotFoundError } from "@/lib/errors";
 import { seatCode, seatLabel } from "@/lib/heads/layout";
 import { isClosed } from "@/lib/jobs/lifecycle";
-import type { StartSessionInput, StrokeInput } from "@/lib/validations/bench";
+import type { StartSessionInput } from "@/lib/validations/bench";
+import {
+  assertOpenForWork,
+  assertOwnSession,
+  judgeStage,
+  SESSION_NOT_FOUND,
+  SESSION_ORDER,
+  seatStateFor,
+  STROKE_ORDER,
+} from "./rules";
+
+export { seatStateFor } from "./rules";
+export { saveStrokes, type StrokeSaveResult } from "./stroke-batch";
 
 /** A phone that has sent nothing for this long no longer holds its seat. */
 export const SEAT_HOLD_SECONDS = 45;
@@ -48,33 +60,8 @@ async function loadSeat(db: Reader, shopId: string, seatId: string): Promise<Sea
   return row;
 }
 
-/** What the work checks read of a seat and its job. */
-interface WorkTarget {
-  seat: Pick<SeatContext["seat"], "state" | "cylinder" | "kind" | "position">;
-  job: Pick<SeatContext["job"], "status" | "number">;
-}
 
-function assertOpenForWork(ctx: WorkTarget): void {
-  if (ctx.seat.state === "approved") {
-    throw new ConflictError(
-      `Seat ${seatCode(ctx.seat)} is signed off. A supervisor must reopen it before more strokes are recorded.`,
-    );
-  }
-  if (isClosed(ctx.job.status)) {
-    throw new ConflictError(`Job ${ctx.job.number} is signed off; its seats are read-only.`);
-  }
-}
 
-/**
- * A lapping session is one person's phone listening to a seat, so that the record says who
- * lapped: another technician (on a job open to both) starts a session of their own rather than
- * adding to it. Supervisors, who may work on any job of the shop, may also act on any session.
- */
-function assertOwnSession(actor: Actor, session: { technicianId: string }, starterName: string): void {
-  if (actor.role === "technician" && session.technicianId !== actor.id) {
-    throw new ForbiddenError(`This session was started by ${starterName}; only their phone adds to it. Start your own session on this seat.`);
-  }
-}
 
 export interface StageRecord {
   stage: LappingStage;
@@ -111,15 +98,7 @@ export interface SeatReport {
   canWork: boolean;
 }
 
-// Sessions in the order they were lapped, strokes in the order they were heard; the stroke id
-// only breaks exact ties, so every reader sees one order.
-const SESSION_ORDER = [asc(lappingSessions.startedAt), asc(lappingSessions.id)];
-const STROKE_ORDER = [...SESSION_ORDER, asc(strokes.startS), asc(strokes.index), asc(strokes.id)];
 
-/** The server's verdict on one stage's strokes in order, numbered from 1 across its sessions. */
-function judgeStage(list: ReadonlyArray<{ contrastDb: number; startS: number; flags: string[] }>): SeatVerdict {
-  return judgeSeat(list.map((s, i) => ({ contrastDb: s.contrastDb, index: i + 1, startS: s.startS, flags: s.flags })));
-}
 
 /** Both stages of a seat, with sessions, strokes and verdicts: two queries, whatever the count. */
 async function stageRecords(db: Reader, seatId: string): Promise<Record<LappingStage, StageRecord>> {
@@ -210,14 +189,6 @@ async function stageVerdicts(
   return { current, fine: stage === "fine" ? current : judgeStage(of("fine")), currentStrokes: currentList.length };
 }
 
-/** The seat's state after its strokes: our own names, decided by the server's verdicts. */
-export function seatStateFor(current: SeatState, stage: LappingStage, verdict: SeatVerdict, fineVerdict: SeatVerdict): SeatState {
-  if (current === "approved") return current;
-  if (fineVerdict.state === "settled") return "settled";
-  if (verdict.state === "not-settling") return "stalled";
-  if (verdict.state === "no-strokes" && stage === "coarse" && current === "waiting") return "waiting";
-  return "lapping";
-}
 
 async function nextSeatInHead(db: Reader, ctx: SeatContext): Promise<string | null> {
   const all = await db
@@ -368,85 +339,10 @@ async function loadSession(db: Reader, shopId: string, sessionId: string) {
     .innerJoin(jobs, eq(jobs.id, heads.jobId))
     .where(and(eq(lappingSessions.id, sessionId), eq(jobs.shopId, shopId)))
     .limit(1);
-  if (!row) throw new NotFoundError("That lapping session does not exist in your shop.");
+  if (!row) throw new NotFoundError(SESSION_NOT_FOUND);
   return row;
 }
 
-export interface StrokeSaveResult {
-  accepted: number;
-  duplicates: number;
-  seatState: SeatState;
-  verdict: SeatVerdict;
-  strokeCount: number;
-}
-
-/**
- * Saves strokes idempotently (a resend with the same clientId is ignored) and re-judges the seat.
- * The session is read together with its seat, which is locked, so two saves for one seat judge
- * it one after the other and a sign-off that lands first is seen.
- */
-export async function saveStrokes(db: Db, actor: Actor, sessionId: string, input: StrokeInput[]): Promise<StrokeSaveResult> {
-  return db.transaction(async (tx) => {
-    // Only the columns the checks and the verdict use: this runs for every stroke.
-    const [ctx] = await tx
-      .select({
-        session: { stage: lappingSessions.stage, technicianId: lappingSessions.technicianId },
-        starterName: users.name,
-        seat: { id: seats.id, state: seats.state, cylinder: seats.cylinder, kind: seats.kind, position: seats.position },
-        job: { id: jobs.id, number: jobs.number, status: jobs.status, assignedTechnicianId: jobs.assignedTechnicianId },
-        valveId: valves.id,
-        valveLappedIn: valves.lappedInSeatId,
-      })
-      .from(lappingSessions)
-      .innerJoin(users, eq(users.id, lappingSessions.technicianId))
-      .innerJoin(seats, eq(seats.id, lappingSessions.seatId))
-      .innerJoin(heads, eq(heads.id, seats.headId))
-      .innerJoin(jobs, eq(jobs.id, heads.jobId))
-      .leftJoin(valves, eq(valves.seatId, seats.id))
-      .where(and(eq(lappingSessions.id, sessionId), eq(jobs.shopId, actor.shopId)))
-      .limit(1)
-      .for("update", { of: seats });
-    if (!ctx) throw new NotFoundError("That lapping session does not exist in your shop.");
-    assertCanWorkOn(actor, ctx.job);
-    assertOwnSession(actor, ctx.session, ctx.starterName);
-    assertOpenForWork(ctx);
-    const inserted = await tx
-      .insert(strokes)
-      .values(input.map((s) => ({ ...s, sessionId })))
-      .onConflictDoNothing({ target: [strokes.sessionId, strokes.clientId] })
-      .returning({ id: strokes.id });
-    await tx.update(lappingSessions).set({ lastSeenAt: new Date() }).where(eq(lappingSessions.id, sessionId));
-    if (inserted.length > 0 && ctx.valveId && ctx.valveLappedIn === null) {
-      // The valve in this seat is now lapped into it, and stays with it.
-      await tx
-        .update(valves)
-        .set({ lappedInSeatId: ctx.seat.id, updatedAt: new Date() })
-        .where(and(eq(valves.seatId, ctx.seat.id), isNull(valves.lappedInSeatId)));
-    }
-    const stage = ctx.session.stage;
-    const { current, fine, currentStrokes } = await stageVerdicts(tx, ctx.seat.id, stage);
-    const next = seatStateFor(ctx.seat.state, stage, current, fine);
-    if (next !== ctx.seat.state) {
-      await tx.update(seats).set({ state: next, updatedAt: new Date() }).where(eq(seats.id, ctx.seat.id));
-      await recordAudit(tx, {
-        actorId: actor.id,
-        action: "seat.state_changed",
-        entityType: "seat",
-        entityId: ctx.seat.id,
-        jobId: ctx.job.id,
-        before: { state: ctx.seat.state },
-        after: { state: next, stage, verdict: current.state, strokes: currentStrokes },
-      });
-    }
-    return {
-      accepted: inserted.length,
-      duplicates: input.length - inserted.length,
-      seatState: next,
-      verdict: current,
-      strokeCount: currentStrokes,
-    };
-  });
-}
 
 export async function endSession(db: Db, actor: Actor, sessionId: string): Promise<void> {
   const ctx = await loadSession(db, actor.shopId, sessionId);

@@ -34,6 +34,10 @@ export function freePort(): Promise<number> {
 }
 
 const root = process.cwd();
+/** Extra flags for the server's node (BENCH_SERVER_NODE_ARGS, e.g. "--cpu-prof --cpu-prof-dir=/tmp/p"), for profiling. */
+function serverNodeArgs(): string[] {
+  return (process.env.BENCH_SERVER_NODE_ARGS ?? "").split(/\s+/).filter(Boolean);
+}
 const nextBin = path.join(root, "node_modules", "next", "dist", "bin", "next");
 
 export function buildApp(secret: string, force: boolean): void {
@@ -66,7 +70,7 @@ export async function startServer(
     ...extraEnv,
   };
   delete env.DATABASE_URL;
-  const child: ChildProcess = spawn(process.execPath, [nextBin, "start", "-p", String(port), "-H", "127.0.0.1"], {
+  const child: ChildProcess = spawn(process.execPath, [...serverNodeArgs(), nextBin, "start", "-p", String(port), "-H", "127.0.0.1"], {
     cwd: root,
     env,
     stdio: ["ignore", "pipe", "pipe"],

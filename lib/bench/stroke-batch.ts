@@ -1,0 +1,303 @@
+// Group commit for stroke saves. Every phone at the bench posts its strokes as they are heard, so
+// saves arrive many at a time; running each in a transaction of its own costs a handful of
+// statements per stroke. The queue below gathers the saves that arrive while the database is busy
+// and writes them together: one transaction, one statement per step for the whole batch.
+//
+// The outcome of every save is exactly what it would have been had the saves run one after
+// another in arrival order (tests/bench/stroke-batch.test.ts checks this against saveStrokes):
+// the same checks and refusals, the same strokes kept or counted as duplicates, the same verdict
+// and seat state as of that save, and one audit entry per seat state change.
+import { and, asc, eq, inArray, isNull, sql } from "drizzle-orm";
+import type { Db } from "@/db/client";
+import { heads, jobs, lappingSessions, seats, strokes, users, valves, type LappingStage, type SeatState } from "@/db/schema";
+import type { SeatVerdict } from "@/lib/audio";
+import { authorize, type Actor } from "@/lib/auth/guard";
+import { recordAudit } from "@/lib/audit";
+import { NotFoundError } from "@/lib/errors";
+import type { StrokeInput } from "@/lib/validations/bench";
+import { assertOpenForWork, assertOwnSession, judgeStage, SESSION_NOT_FOUND, seatStateFor, STROKE_ORDER } from "./rules";
+import { assertCanWorkOn } from "@/lib/auth/job-access";
+
+export interface StrokeSaveResult {
+  accepted: number;
+  duplicates: number;
+  seatState: SeatState;
+  verdict: SeatVerdict;
+  strokeCount: number;
+}
+
+/** One stroke save: who signed in (their id, from the session token), which session, what strokes. */
+export interface StrokeSave {
+  userId: string;
+  sessionId: string;
+  strokes: StrokeInput[];
+}
+
+export type StrokeSaveOutcome = { ok: true; result: StrokeSaveResult } | { ok: false; error: unknown };
+
+/** The signed-in person as the guard sees them, or null when the account is gone or disabled. */
+function actorOf(row: { id: string; shopId: string; name: string; email: string; role: Actor["role"]; active: boolean } | undefined): Actor | null {
+  if (!row || !row.active) return null;
+  return { id: row.id, shopId: row.shopId, name: row.name, email: row.email, role: row.role };
+}
+
+/**
+ * Saves strokes idempotently (a resend with the same clientId is ignored) and re-judges the seat.
+ * The session is read together with its seat, which is locked, so two saves for one seat judge
+ * it one after the other and a sign-off that lands first is seen. The actor is read again from
+ * the users table, as for every save.
+ */
+export async function saveStrokes(db: Db, actor: Actor, sessionId: string, input: StrokeInput[]): Promise<StrokeSaveResult> {
+  const [outcome] = await saveStrokeBatch(db, [{ userId: actor.id, sessionId, strokes: input }]);
+  if (!outcome!.ok) throw outcome!.error;
+  return outcome!.result;
+}
+
+/**
+ * Saves a batch as one transaction. A refusal (not signed in, not allowed, not found, signed off)
+ * belongs to its own save and leaves the others alone. If the database refuses the batch as a
+ * whole, each save is run on its own, so that one bad save cannot fail the rest.
+ */
+export async function saveStrokeBatch(db: Db, batch: StrokeSave[]): Promise<StrokeSaveOutcome[]> {
+  if (batch.length === 0) return [];
+  try {
+    return await db.transaction((tx) => writeBatch(tx as unknown as Db, batch));
+  } catch (err) {
+    if (batch.length === 1) return [{ ok: false, error: err }];
+    const outcomes: StrokeSaveOutcome[] = [];
+    for (const save of batch) outcomes.push(...(await saveStrokeBatch(db, [save])));
+    return outcomes;
+  }
+}
+
+async function writeBatch(tx: Db, batch: StrokeSave[]): Promise<StrokeSaveOutcome[]> {
+  const userIds = [...new Set(batch.map((s) => s.userId))];
+  const sessionIds = [...new Set(batch.map((s) => s.sessionId))];
+  const people = await tx
+    .select({ id: users.id, shopId: users.shopId, name: users.name, email: users.email, role: users.role, active: users.active })
+    .from(users)
+    .where(inArray(users.id, userIds));
+  const personById = new Map(people.map((p) => [p.id, p]));
+  // The sessions with their seats locked, in seat order: two batches (on a PostgreSQL server,
+  // from two processes) always lock shared seats in the same order.
+  const contexts = await tx
+    .select({
+      sessionId: lappingSessions.id,
+      session: { stage: lappingSessions.stage, technicianId: lappingSessions.technicianId },
+      starterName: users.name,
+      seat: { id: seats.id, state: seats.state, cylinder: seats.cylinder, kind: seats.kind, position: seats.position },
+      job: { id: jobs.id, shopId: jobs.shopId, number: jobs.number, status: jobs.status, assignedTechnicianId: jobs.assignedTechnicianId },
+      valveId: valves.id,
+      valveLappedIn: valves.lappedInSeatId,
+    })
+    .from(lappingSessions)
+    .innerJoin(users, eq(users.id, lappingSessions.technicianId))
+    .innerJoin(seats, eq(seats.id, lappingSessions.seatId))
+    .innerJoin(heads, eq(heads.id, seats.headId))
+    .innerJoin(jobs, eq(jobs.id, heads.jobId))
+    .leftJoin(valves, eq(valves.seatId, seats.id))
+    .where(inArray(lappingSessions.id, sessionIds))
+    .orderBy(asc(seats.id))
+    .for("update", { of: seats });
+  const contextBySession = new Map(contexts.map((c) => [c.sessionId, c]));
+
+  // The same checks, in the same order, as a save on its own.
+  type Ctx = (typeof contexts)[number];
+  const outcomes: Array<StrokeSaveOutcome | null> = batch.map(() => null);
+  const accepted: Array<{ save: StrokeSave; at: number; actor: Actor; ctx: Ctx }> = [];
+  batch.forEach((save, at) => {
+    try {
+      const actor = authorize(actorOf(personById.get(save.userId)), "jobs:work");
+      const ctx = contextBySession.get(save.sessionId);
+      if (!ctx || ctx.job.shopId !== actor.shopId) throw new NotFoundError(SESSION_NOT_FOUND);
+      assertCanWorkOn(actor, ctx.job);
+      assertOwnSession(actor, ctx.session, ctx.starterName);
+      assertOpenForWork(ctx);
+      accepted.push({ save, at, actor, ctx });
+    } catch (err) {
+      outcomes[at] = { ok: false, error: err };
+    }
+  });
+  if (accepted.length === 0) return outcomes as StrokeSaveOutcome[];
+
+  // One insert for every stroke of the batch; a stroke already stored (or sent twice in this
+  // batch) under its session and clientId is skipped, as on its own.
+  const rows = accepted.flatMap(({ save }) => save.strokes.map((s) => ({ ...s, sessionId: save.sessionId })));
+  const inserted = await tx
+    .insert(strokes)
+    .values(rows)
+    .onConflictDoNothing({ target: [strokes.sessionId, strokes.clientId] })
+    .returning({ id: strokes.id, sessionId: strokes.sessionId, clientId: strokes.clientId });
+  // Which save stored each new stroke: the first one in arrival order that carried it.
+  const firstCarrier = new Map<string, number>();
+  accepted.forEach(({ save }, k) => {
+    for (const s of save.strokes) {
+      const key = `${save.sessionId}/${s.clientId}`;
+      if (!firstCarrier.has(key)) firstCarrier.set(key, k);
+    }
+  });
+  const storedBy = new Map<string, number>();
+  const acceptedCount = accepted.map(() => 0);
+  for (const row of inserted) {
+    const k = firstCarrier.get(`${row.sessionId}/${row.clientId}`)!;
+    storedBy.set(row.id, k);
+    acceptedCount[k]!++;
+  }
+
+  await tx
+    .update(lappingSessions)
+    .set({ lastSeenAt: new Date() })
+    .where(inArray(lappingSessions.id, [...new Set(accepted.map((a) => a.save.sessionId))]));
+
+  // The valve in a seat is lapped into it by the seat's first stored stroke, and stays with it.
+  const lappedSeats = new Set<string>();
+  accepted.forEach(({ ctx }, k) => {
+    if (acceptedCount[k]! > 0 && ctx.valveId && ctx.valveLappedIn === null) lappedSeats.add(ctx.seat.id);
+  });
+  if (lappedSeats.size > 0) {
+    await tx
+      .update(valves)
+      .set({ lappedInSeatId: sql`${valves.seatId}`, updatedAt: new Date() })
+      .where(and(inArray(valves.seatId, [...lappedSeats]), isNull(valves.lappedInSeatId)));
+  }
+
+  // Every stroke of the touched seats, in the order the verdict reads them.
+  const seatIds = [...new Set(accepted.map((a) => a.ctx.seat.id))];
+  const seatStrokes = await tx
+    .select({
+      id: strokes.id,
+      seatId: lappingSessions.seatId,
+      stage: lappingSessions.stage,
+      startS: strokes.startS,
+      contrastDb: strokes.contrastDb,
+      flags: strokes.flags,
+    })
+    .from(strokes)
+    .innerJoin(lappingSessions, eq(lappingSessions.id, strokes.sessionId))
+    .where(inArray(lappingSessions.seatId, seatIds))
+    .orderBy(asc(lappingSessions.seatId), ...STROKE_ORDER);
+  const bySeat = new Map<string, typeof seatStrokes>();
+  for (const s of seatStrokes) {
+    const list = bySeat.get(s.seatId);
+    if (list) list.push(s);
+    else bySeat.set(s.seatId, [s]);
+  }
+
+  // Each save's verdict sees the strokes stored before it and its own, as it would on its own.
+  const stateNow = new Map<string, SeatState>();
+  const changes: Array<{ actor: Actor; ctx: Ctx; before: SeatState; after: SeatState; stage: LappingStage; verdict: SeatVerdict; count: number }> = [];
+  accepted.forEach(({ save, at, actor, ctx }, k) => {
+    const visible = (bySeat.get(ctx.seat.id) ?? []).filter((s) => {
+      const by = storedBy.get(s.id);
+      return by === undefined || by <= k;
+    });
+    const stage = ctx.session.stage;
+    const currentList = visible.filter((s) => s.stage === stage);
+    const current = judgeStage(currentList);
+    const fine = stage === "fine" ? current : judgeStage(visible.filter((s) => s.stage === "fine"));
+    const before = stateNow.get(ctx.seat.id) ?? ctx.seat.state;
+    const next = seatStateFor(before, stage, current, fine);
+    if (next !== before) {
+      stateNow.set(ctx.seat.id, next);
+      changes.push({ actor, ctx, before, after: next, stage, verdict: current, count: currentList.length });
+    }
+    outcomes[at] = {
+      ok: true,
+      result: {
+        accepted: acceptedCount[k]!,
+        duplicates: save.strokes.length - acceptedCount[k]!,
+        seatState: next,
+        verdict: current,
+        strokeCount: currentList.length,
+      },
+    };
+  });
+
+  for (const [seatId, state] of stateNow) {
+    await tx.update(seats).set({ state, updatedAt: new Date() }).where(eq(seats.id, seatId));
+  }
+  for (const c of changes) {
+    await recordAudit(tx, {
+      actorId: c.actor.id,
+      action: "seat.state_changed",
+      entityType: "seat",
+      entityId: c.ctx.seat.id,
+      jobId: c.ctx.job.id,
+      before: { state: c.before },
+      after: { state: c.after, stage: c.stage, verdict: c.verdict.state, strokes: c.count },
+    });
+  }
+  return outcomes as StrokeSaveOutcome[];
+}
+
+/** At most this many strokes go into one batch (PostgreSQL takes at most 65,535 values per statement). */
+export const MAX_BATCH_STROKES = 2000;
+
+interface Waiting {
+  save: StrokeSave;
+  resolve(result: StrokeSaveResult): void;
+  reject(error: unknown): void;
+}
+
+/**
+ * Group commit: a save that finds the database idle is written at once; saves that arrive while
+ * a batch is being written wait and go together into the next one. Nothing is held back on a
+ * timer, so a lone phone sees no added delay.
+ */
+export class StrokeSaveQueue {
+  private readonly waiting: Waiting[] = [];
+  private running = 0;
+
+  constructor(
+    private readonly write: (batch: StrokeSave[]) => Promise<StrokeSaveOutcome[]>,
+    /** Batches written at the same time: 1 for PGlite, which runs one transaction at a time. */
+    private readonly concurrency = 1,
+    private readonly maxStrokes = MAX_BATCH_STROKES,
+  ) {}
+
+  submit(save: StrokeSave): Promise<StrokeSaveResult> {
+    return new Promise<StrokeSaveResult>((resolve, reject) => {
+      this.waiting.push({ save, resolve, reject });
+      this.pump();
+    });
+  }
+
+  private pump(): void {
+    while (this.running < this.concurrency && this.waiting.length > 0) {
+      let strokeCount = this.waiting[0]!.save.strokes.length;
+      let take = 1;
+      while (take < this.waiting.length && strokeCount + this.waiting[take]!.save.strokes.length <= this.maxStrokes) {
+        strokeCount += this.waiting[take]!.save.strokes.length;
+        take++;
+      }
+      const batch = this.waiting.splice(0, take);
+      this.running++;
+      this.write(batch.map((w) => w.save))
+        .then(
+          (outcomes) =>
+            outcomes.forEach((o, i) => (o.ok ? batch[i]!.resolve(o.result) : batch[i]!.reject(o.error))),
+          (err: unknown) => batch.forEach((w) => w.reject(err)),
+        )
+        .finally(() => {
+          this.running--;
+          this.pump();
+        });
+    }
+  }
+}
+
+// One queue per open database, on globalThis: Next bundles this module more than once, and the
+// production server's own request path (server.ts) is a bundle of its own.
+type GlobalWithQueues = typeof globalThis & { __grindfadeStrokeQueues?: WeakMap<Db, StrokeSaveQueue> };
+
+/** The process's queue for a database (PGlite: one batch at a time; a server: a few). */
+export function strokeQueueFor(db: Db, kind: "pglite" | "postgres"): StrokeSaveQueue {
+  const g = globalThis as GlobalWithQueues;
+  g.__grindfadeStrokeQueues ??= new WeakMap();
+  let queue = g.__grindfadeStrokeQueues.get(db);
+  if (!queue) {
+    queue = new StrokeSaveQueue((batch) => saveStrokeBatch(db, batch), kind === "pglite" ? 1 : 4);
+    g.__grindfadeStrokeQueues.set(db, queue);
+  }
+  return queue;
+}
