@@ -6,47 +6,21 @@ import { getServerSession } from "next-auth";
 import type { NextRequest } from "next/server";
 import { getDb } from "@/db/client";
 import { users, type UserRole } from "@/db/schema";
-import { errorResponse, ForbiddenError, UnauthorizedError } from "@/lib/errors";
+import { errorResponse } from "@/lib/errors";
+import { authorize, type Actor } from "./authorize";
 import { authOptions } from "./options";
-import { can, type Permission } from "./roles";
+import type { Permission } from "./roles";
 
-export interface Actor {
-  id: string;
-  shopId: string;
-  name: string;
-  email: string;
-  role: UserRole;
-}
+export { authorize, forbiddenMessage, type Actor } from "./authorize";
 
-/** Pure decision, shared by every entry point: who may pass, with which error otherwise. */
-export function authorize(actor: Actor | null, permission?: Permission): Actor {
-  if (!actor) throw new UnauthorizedError();
-  if (permission && !can(actor.role, permission)) {
-    throw new ForbiddenError(forbiddenMessage(permission));
-  }
-  return actor;
-}
-
-export function forbiddenMessage(permission: Permission): string {
-  switch (permission) {
-    case "users:manage":
-      return "Only an admin can manage people.";
-    case "jobs:audit":
-      return "Only a supervisor can audit and sign off work.";
-    case "jobs:work":
-      return "Only technicians and supervisors can record work on a job.";
-    case "jobs:manage":
-      return "Only a supervisor or an admin can book in and edit jobs.";
-    case "specs:manage":
-      return "Only a supervisor or an admin can change the specifications library.";
-    default:
-      return "Your role does not allow this.";
-  }
+/** Who the session cookie says is signed in, before the users table is read. */
+export async function sessionUser(): Promise<{ id: string; role?: UserRole } | null> {
+  const session = await getServerSession(authOptions);
+  return session?.user?.id ? { id: session.user.id, role: session.user.role } : null;
 }
 
 export async function currentActor(): Promise<Actor | null> {
-  const session = await getServerSession(authOptions);
-  const id = session?.user?.id;
+  const id = (await sessionUser())?.id;
   if (!id) return null;
   const db = await getDb();
   const [row] = await db

@@ -3,7 +3,7 @@
 import { asc } from "drizzle-orm";
 import { jobs, lappingSessions, seats, strokes, type LappingStage, type SeatState } from "@/db/schema";
 import { judgeSeat, type SeatVerdict } from "@/lib/audio";
-import type { Actor } from "@/lib/auth/guard";
+import type { Actor } from "@/lib/auth/authorize";
 import { ConflictError, ForbiddenError } from "@/lib/errors";
 import { seatCode } from "@/lib/heads/layout";
 import { isClosed } from "@/lib/jobs/lifecycle";

@@ -11,7 +11,7 @@ import { and, asc, eq, inArray, isNull, sql } from "drizzle-orm";
 import type { Db } from "@/db/client";
 import { heads, jobs, lappingSessions, seats, strokes, users, valves, type LappingStage, type SeatState } from "@/db/schema";
 import type { SeatVerdict } from "@/lib/audio";
-import { authorize, type Actor } from "@/lib/auth/guard";
+import { authorize, type Actor } from "@/lib/auth/authorize";
 import { recordAudit } from "@/lib/audit";
 import { NotFoundError } from "@/lib/errors";
 import type { StrokeInput } from "@/lib/validations/bench";
@@ -250,7 +250,7 @@ export class StrokeSaveQueue {
 
   constructor(
     private readonly write: (batch: StrokeSave[]) => Promise<StrokeSaveOutcome[]>,
-    /** Batches written at the same time: 1 for PGlite, which runs one transaction at a time. */
+    /** Batches written at the same time. */
     private readonly concurrency = 1,
     private readonly maxStrokes = MAX_BATCH_STROKES,
   ) {}
@@ -290,13 +290,16 @@ export class StrokeSaveQueue {
 // production server's own request path (server.ts) is a bundle of its own.
 type GlobalWithQueues = typeof globalThis & { __grindfadeStrokeQueues?: WeakMap<Db, StrokeSaveQueue> };
 
-/** The process's queue for a database (PGlite: one batch at a time; a server: a few). */
-export function strokeQueueFor(db: Db, kind: "pglite" | "postgres"): StrokeSaveQueue {
+/**
+ * The process's queue for a database. One batch at a time: PGlite runs one transaction at a time
+ * anyway, and on a server one batch of many saves costs about what one save did.
+ */
+export function strokeQueueFor(db: Db): StrokeSaveQueue {
   const g = globalThis as GlobalWithQueues;
   g.__grindfadeStrokeQueues ??= new WeakMap();
   let queue = g.__grindfadeStrokeQueues.get(db);
   if (!queue) {
-    queue = new StrokeSaveQueue((batch) => saveStrokeBatch(db, batch), kind === "pglite" ? 1 : 4);
+    queue = new StrokeSaveQueue((batch) => saveStrokeBatch(db, batch));
     g.__grindfadeStrokeQueues.set(db, queue);
   }
   return queue;

@@ -1,0 +1,40 @@
+// Who may do what, decided from a signed-in person's role: pure, with no tie to next-auth, so the
+// production server's own stroke path (lib/server/stroke-save.ts) uses the same decision.
+import type { UserRole } from "@/db/schema";
+import { ForbiddenError, UnauthorizedError } from "@/lib/errors";
+import { can, type Permission } from "./roles";
+
+export interface Actor {
+  id: string;
+  shopId: string;
+  name: string;
+  email: string;
+  role: UserRole;
+}
+
+/** Pure decision, shared by every entry point: who may pass, with which error otherwise. */
+export function authorize(actor: Actor | null, permission?: Permission): Actor {
+  if (!actor) throw new UnauthorizedError();
+  if (permission && !can(actor.role, permission)) {
+    throw new ForbiddenError(forbiddenMessage(permission));
+  }
+  return actor;
+}
+
+export function forbiddenMessage(permission: Permission): string {
+  switch (permission) {
+    case "users:manage":
+      return "Only an admin can manage people.";
+    case "jobs:audit":
+      return "Only a supervisor can audit and sign off work.";
+    case "jobs:work":
+      return "Only technicians and supervisors can record work on a job.";
+    case "jobs:manage":
+      return "Only a supervisor or an admin can book in and edit jobs.";
+    case "specs:manage":
+      return "Only a supervisor or an admin can change the specifications library.";
+    default:
+      return "Your role does not allow this.";
+  }
+}
+

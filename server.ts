@@ -1,0 +1,64 @@
+// The production server (`npm start`): Next.js's own request handler for everything, except the
+// one request that arrives many times a second from every phone at the bench — a stroke save —
+// which is answered directly (lib/server/stroke-save.ts) by the same code as its route handler,
+// without Next.js's per-request routing and rendering pipeline. It gets the same gate as every
+// other request: the origin check and headers of proxy.ts and next.config.ts, and the signed-in
+// check from the session cookie. `npm run dev` runs plain `next dev`, where the route handler
+// answers the same request.
+//
+// Built into .next/grindfade-server.mjs by `npm run build` (scripts/build-server.mjs).
+import http from "node:http";
+import { parseArgs } from "node:util";
+
+const { values: args } = parseArgs({
+  options: { port: { type: "string", short: "p" }, hostname: { type: "string", short: "H" } },
+  strict: false,
+});
+const port = Number(args.port ?? process.env.PORT ?? 3000);
+const hostname = String(args.hostname ?? process.env.HOSTNAME ?? "0.0.0.0");
+
+async function main(): Promise<void> {
+  (process.env as Record<string, string | undefined>).NODE_ENV ??= "production";
+  const { default: next } = await import("next");
+  const app = next({ dev: false, hostname, port, dir: process.cwd() });
+  const handle = app.getRequestHandler();
+  // Runs instrumentation.ts: the database is opened (or the start refused) before we listen.
+  await app.prepare();
+  // Only now: next/server, which the stroke path uses, needs what Next.js sets up as it prepares.
+  const { answerStrokeSave, strokeSaveTarget } = await import("@/lib/server/stroke-save");
+
+  const server = http.createServer((req, res) => {
+    const sessionId = strokeSaveTarget(req.method, req.url);
+    if (sessionId === null) {
+      void handle(req, res);
+      return;
+    }
+    answerStrokeSave(req, res, sessionId).catch((err: unknown) => {
+      console.error(err);
+      if (!res.headersSent) {
+        res.statusCode = 500;
+        res.setHeader("Content-Type", "application/json");
+      }
+      res.end(JSON.stringify({ error: "internal", message: "Something went wrong on the server. Try again in a moment." }));
+    });
+  });
+  server.keepAliveTimeout = 5_000;
+
+  // As `next start` does: stop taking connections, then exit. The database's own handler
+  // (db/shutdown.ts) holds the exit until the database is closed.
+  for (const signal of ["SIGTERM", "SIGINT"] as const) {
+    process.once(signal, () => {
+      server.close(() => process.exit(signal === "SIGTERM" ? 143 : 130));
+      server.closeIdleConnections();
+    });
+  }
+
+  server.listen(port, hostname, () => {
+    console.log(`Grindfade listening on http://${hostname}:${port}`);
+  });
+}
+
+void main().catch((err: unknown) => {
+  console.error(`Grindfade cannot start: ${err instanceof Error ? err.message : String(err)}`);
+  process.exit(1);
+});
