@@ -18,7 +18,7 @@
 //   BENCH_DATABASE_URL (else TEST_DATABASE_URL, else postgres://postgres@127.0.0.1:55432/postgres):
 //                               the PostgreSQL server; a fresh database is made on it and dropped after
 //   BENCH_ONLY=pglite|postgres  run one database only
-import { execFileSync, spawn, type ChildProcess } from "node:child_process";
+import { execFileSync } from "node:child_process";
 import { randomUUID } from "node:crypto";
 import fs from "node:fs";
 import os from "node:os";
@@ -385,55 +385,6 @@ async function runOn(
   return rows;
 }
 
-/** next start on a PostgreSQL database (startServer always runs on PGlite). */
-async function startOnPostgres(secret: string, databaseUrl: string): Promise<RunningServer> {
-  const port = await freePort();
-  const baseURL = `http://127.0.0.1:${port}`;
-  const dataDir = fs.mkdtempSync(path.join(os.tmpdir(), "grindfade-load-"));
-  const nextBin = path.join(process.cwd(), "node_modules", "next", "dist", "bin", "next");
-  let output = "";
-  const child: ChildProcess = spawn(process.execPath, [nextBin, "start", "-p", String(port), "-H", "127.0.0.1"], {
-    cwd: process.cwd(),
-    env: {
-      ...process.env,
-      NODE_ENV: "production",
-      NEXTAUTH_URL: baseURL,
-      NEXTAUTH_SECRET: secret,
-      GRINDFADE_DATA_DIR: dataDir,
-      NEXT_TELEMETRY_DISABLED: "1",
-      DATABASE_URL: databaseUrl,
-    },
-    stdio: ["ignore", "pipe", "pipe"],
-  });
-  child.stdout?.on("data", (d) => (output += d));
-  child.stderr?.on("data", (d) => (output += d));
-  const stop = async () => {
-    if (child.exitCode === null) {
-      const exited = new Promise((r) => child.once("exit", r));
-      child.kill("SIGTERM");
-      const t = setTimeout(() => child.kill("SIGKILL"), 5000);
-      await exited;
-      clearTimeout(t);
-    }
-    fs.rmSync(dataDir, { recursive: true, force: true });
-  };
-  const deadline = Date.now() + 120_000;
-  for (;;) {
-    if (child.exitCode !== null) throw new Error(`next start exited (${child.exitCode}):\n${output}`);
-    try {
-      if ((await fetch(`${baseURL}/api/health`)).ok) break;
-    } catch {
-      /* not up yet */
-    }
-    if (Date.now() > deadline) {
-      await stop();
-      throw new Error(`next start did not become healthy in time:\n${output}`);
-    }
-    await new Promise((r) => setTimeout(r, 250));
-  }
-  return { baseURL, dataDir, stop };
-}
-
 /** A new, empty database on the server, or null (with the reason) when the server cannot be reached. */
 async function freshPostgres(baseUrl: string): Promise<{ url: string; drop(): Promise<void> } | { skip: string }> {
   const { Client } = await import("pg");
@@ -496,7 +447,7 @@ async function main() {
         rows.push(
           ...(await runOn(
             "PostgreSQL",
-            () => startOnPostgres(secret, fresh.url),
+            () => startServer(secret, {}, { databaseUrl: fresh.url }),
             () => openDatabase({ databaseUrl: fresh.url }),
           )),
         );

@@ -255,10 +255,20 @@ export class StrokeSaveQueue {
     private readonly maxStrokes = MAX_BATCH_STROKES,
   ) {}
 
+  private scheduled = false;
+
   submit(save: StrokeSave): Promise<StrokeSaveResult> {
     return new Promise<StrokeSaveResult>((resolve, reject) => {
       this.waiting.push({ save, resolve, reject });
-      this.pump();
+      // Not at once: the requests that arrived together are still being read; they join when
+      // this turn of the event loop has handled its input.
+      if (!this.scheduled) {
+        this.scheduled = true;
+        setImmediate(() => {
+          this.scheduled = false;
+          this.pump();
+        });
+      }
     });
   }
 

@@ -2,9 +2,9 @@
 // pipeline, with the same gate proxy.ts and next.config.ts give every other request: the origin
 // check, the security headers and the signed-in check, then the same code as the route handler.
 import type http from "node:http";
-import { Readable } from "node:stream";
 import { tokenUser } from "@/lib/auth/token";
 import { postStrokes } from "@/lib/bench/stroke-ingest";
+import { MAX_JSON_BYTES } from "@/lib/http";
 import { API_POLICY, checkOrigin, COMMON_HEADERS } from "@/lib/security/headers";
 
 const STROKE_SAVE = /^\/api\/sessions\/([^/]+)\/strokes$/;
@@ -20,6 +20,37 @@ export function strokeSaveTarget(method: string | undefined, url: string | undef
   } catch {
     return m[1]!;
   }
+}
+
+/**
+ * The body, read no further than one byte past the JSON limit: the route's own reader (readJson)
+ * then refuses an oversized one with 413, as it does for the route handler. Whatever is left of
+ * such a body is discarded and the connection closed after the answer.
+ */
+function readBody(req: http.IncomingMessage, res: http.ServerResponse): Promise<Buffer> {
+  const declared = Number(req.headers["content-length"]);
+  if (Number.isFinite(declared) && declared > MAX_JSON_BYTES) {
+    res.setHeader("Connection", "close");
+    req.resume();
+    return Promise.resolve(Buffer.alloc(0));
+  }
+  return new Promise((resolve, reject) => {
+    const chunks: Buffer[] = [];
+    let total = 0;
+    const onData = (chunk: Buffer) => {
+      chunks.push(chunk);
+      total += chunk.byteLength;
+      if (total > MAX_JSON_BYTES) {
+        req.off("data", onData);
+        res.setHeader("Connection", "close");
+        req.resume();
+        resolve(Buffer.concat(chunks, total));
+      }
+    };
+    req.on("data", onData);
+    req.once("end", () => resolve(Buffer.concat(chunks, total)));
+    req.once("error", reject);
+  });
 }
 
 function requestHeaders(req: http.IncomingMessage): Headers {
@@ -43,12 +74,9 @@ export async function answerStrokeSave(req: http.IncomingMessage, res: http.Serv
     req.resume();
     response = Response.json({ error: "forbidden", message: verdict.message }, { status: 403 });
   } else {
-    const request = new Request(`http://${headers.get("host") ?? "localhost"}${req.url}`, {
-      method: "POST",
-      headers,
-      body: Readable.toWeb(req) as ReadableStream<Uint8Array>,
-      duplex: "half",
-    } as RequestInit);
+    // A declared length over the limit is left in the headers, where readJson refuses it.
+    const body = new Uint8Array(await readBody(req, res));
+    const request = new Request(`http://${headers.get("host") ?? "localhost"}${req.url}`, { method: "POST", headers, body });
     response = await postStrokes(request, sessionId, () => tokenUser(request));
   }
   const body = Buffer.from(await response.arrayBuffer());

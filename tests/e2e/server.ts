@@ -1,4 +1,4 @@
-// A production build of the app served by `next start` on a free port with a data directory
+// A production build of the app served as `npm start` serves it (server.ts) on a free port with a data directory
 // of its own: shared by the end-to-end tests and the bench benchmark.
 import { spawn, spawnSync, type ChildProcess } from "node:child_process";
 import fs from "node:fs";
@@ -20,6 +20,8 @@ export interface RunningServer {
 export interface StartOptions {
   /** Serve this data directory (kept on stop) instead of a fresh one (removed on stop). */
   dataDir?: string;
+  /** Run on this PostgreSQL database instead of PGlite. */
+  databaseUrl?: string;
 }
 
 export function freePort(): Promise<number> {
@@ -39,15 +41,26 @@ function serverNodeArgs(): string[] {
   return (process.env.BENCH_SERVER_NODE_ARGS ?? "").split(/\s+/).filter(Boolean);
 }
 const nextBin = path.join(root, "node_modules", "next", "dist", "bin", "next");
+/** The production server, as `npm start` runs it (server.ts, bundled by `npm run build`). */
+export const SERVER_BUNDLE = path.join(root, ".next", "grindfade-server.cjs");
 
+/** The command line of the production server on a port, as `npm start` runs it. */
+export function serverCommand(port: number): string[] {
+  return [...serverNodeArgs(), SERVER_BUNDLE, "-p", String(port), "-H", "127.0.0.1"];
+}
+
+/** `npm run build`: next build, then the server bundle (also made alone when only it is missing). */
 export function buildApp(secret: string, force: boolean): void {
-  if (!force && fs.existsSync(path.join(root, ".next", "BUILD_ID"))) return;
-  const build = spawnSync(process.execPath, [nextBin, "build"], {
-    cwd: root,
-    env: { ...process.env, NEXTAUTH_SECRET: secret, NEXT_TELEMETRY_DISABLED: "1" },
-    encoding: "utf8",
-  });
-  if (build.status !== 0) throw new Error(`next build failed:\n${build.stdout}\n${build.stderr}`);
+  const run = (args: string[], what: string) => {
+    const r = spawnSync(process.execPath, args, {
+      cwd: root,
+      env: { ...process.env, NEXTAUTH_SECRET: secret, NEXT_TELEMETRY_DISABLED: "1" },
+      encoding: "utf8",
+    });
+    if (r.status !== 0) throw new Error(`${what} failed:\n${r.stdout}\n${r.stderr}`);
+  };
+  if (force || !fs.existsSync(path.join(root, ".next", "BUILD_ID"))) run([nextBin, "build"], "next build");
+  if (force || !fs.existsSync(SERVER_BUNDLE)) run([path.join(root, "scripts", "build-server.mjs")], "the server bundle");
 }
 
 export async function startServer(
@@ -69,20 +82,27 @@ export async function startServer(
     NEXT_TELEMETRY_DISABLED: "1",
     ...extraEnv,
   };
-  delete env.DATABASE_URL;
-  const child: ChildProcess = spawn(process.execPath, [...serverNodeArgs(), nextBin, "start", "-p", String(port), "-H", "127.0.0.1"], {
+  if (options.databaseUrl) env.DATABASE_URL = options.databaseUrl;
+  else delete env.DATABASE_URL;
+  const child: ChildProcess = spawn(process.execPath, serverCommand(port), {
     cwd: root,
     env,
     stdio: ["ignore", "pipe", "pipe"],
   });
   child.stdout?.on("data", (d) => (output += d));
   child.stderr?.on("data", (d) => (output += d));
+  // BENCH_SERVER_LOG=file: a copy of everything the server prints, for looking into a benchmark.
+  const logFile = process.env.BENCH_SERVER_LOG;
+  if (logFile) {
+    child.stdout?.on("data", (d) => fs.appendFileSync(logFile, d));
+    child.stderr?.on("data", (d) => fs.appendFileSync(logFile, d));
+  }
   const exited = new Promise<{ code: number | null; signal: NodeJS.Signals | null }>((resolve) =>
     child.once("exit", (code, signal) => resolve({ code, signal })),
   );
   const deadline = Date.now() + 120_000;
   for (;;) {
-    if (child.exitCode !== null) throw new Error(`next start exited (${child.exitCode}):\n${output}`);
+    if (child.exitCode !== null) throw new Error(`the server exited (${child.exitCode}):\n${output}`);
     try {
       if ((await fetch(`${baseURL}/api/health`)).ok) break;
     } catch {
@@ -90,7 +110,7 @@ export async function startServer(
     }
     if (Date.now() > deadline) {
       child.kill("SIGKILL");
-      throw new Error(`next start did not become healthy in time:\n${output}`);
+      throw new Error(`the server did not become healthy in time:\n${output}`);
     }
     await new Promise((r) => setTimeout(r, 250));
   }

@@ -5,11 +5,11 @@ import fs from "node:fs";
 import os from "node:os";
 import path from "node:path";
 import { describe, expect, it } from "vitest";
+import { serverCommand } from "./server";
 
 function startServer(env: Record<string, string>): Promise<{ code: number | null; stderr: string; stdout: string }> {
   return new Promise((resolve) => {
-    const nextBin = path.join(process.cwd(), "node_modules", "next", "dist", "bin", "next");
-    const child = spawn(process.execPath, [nextBin, "start", "-p", "0", "-H", "127.0.0.1"], {
+    const child = spawn(process.execPath, serverCommand(0), {
       env: { ...process.env, NODE_ENV: "production", NEXTAUTH_SECRET: randomBytes(24).toString("base64url"), ...env },
       stdio: ["ignore", "pipe", "pipe"],
     });
