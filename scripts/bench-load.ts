@@ -251,7 +251,11 @@ async function measure(pid: number | null, instances: Array<autocannon.Options>)
     timeouts: results.reduce((a, r) => a + r.timeouts, 0),
     seconds,
     latencies: sorted,
-    inFlight: results.reduce((a, r) => a + r.requests.sent, 0) - latencies.length,
+    // At most one request per connection can be unanswered when the clock stops.
+    inFlight: Math.min(
+      instances.reduce((a, o) => a + (o.connections ?? 1), 0),
+      results.reduce((a, r) => a + r.requests.sent, 0) - latencies.length,
+    ),
     serverCpuMsPerRequest:
       cpuBefore !== null && cpuAfter !== null && latencies.length > 0 ? (cpuAfter - cpuBefore) / latencies.length : null,
   };

@@ -41,7 +41,9 @@ export function assertOwnSession(actor: Actor, session: { technicianId: string }
 // Sessions in the order they were lapped, strokes in the order they were heard; the stroke id
 // only breaks exact ties, so every reader sees one order.
 export const SESSION_ORDER = [asc(lappingSessions.startedAt), asc(lappingSessions.id)];
-export const STROKE_ORDER = [...SESSION_ORDER, asc(strokes.startS), asc(strokes.index), asc(strokes.id)];
+/** The columns of that order, all ascending (for an aggregate's own ORDER BY). */
+export const STROKE_ORDER_COLUMNS = [lappingSessions.startedAt, lappingSessions.id, strokes.startS, strokes.index, strokes.id] as const;
+export const STROKE_ORDER = STROKE_ORDER_COLUMNS.map((c) => asc(c));
 
 /** The server's verdict on one stage's strokes in order, numbered from 1 across its sessions. */
 export function judgeStage(list: ReadonlyArray<{ contrastDb: number; startS: number; flags: string[] }>): SeatVerdict {

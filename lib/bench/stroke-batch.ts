@@ -15,7 +15,7 @@ import { authorize, type Actor } from "@/lib/auth/authorize";
 import { recordAudit } from "@/lib/audit";
 import { NotFoundError } from "@/lib/errors";
 import type { StrokeInput } from "@/lib/validations/bench";
-import { assertOpenForWork, assertOwnSession, judgeStage, SESSION_NOT_FOUND, seatStateFor, STROKE_ORDER } from "./rules";
+import { assertOpenForWork, assertOwnSession, judgeStage, SESSION_NOT_FOUND, seatStateFor, STROKE_ORDER_COLUMNS } from "./rules";
 import { assertCanWorkOn } from "@/lib/auth/job-access";
 
 export interface StrokeSaveResult {
@@ -161,36 +161,56 @@ async function writeBatch(tx: Db, batch: StrokeSave[]): Promise<StrokeSaveOutcom
       .where(and(inArray(valves.seatId, [...lappedSeats]), isNull(valves.lappedInSeatId)));
   }
 
-  // Every stroke of the touched seats, in the order the verdict reads them.
+  // Every stroke of the touched seats, in the order the verdict reads them: one row per seat and
+  // stage with the strokes' figures joined into text, because reading a row per stroke costs
+  // PGlite far more than the statement itself. A float's text is what the row would have
+  // carried, so the numbers are the same. `by` is the stroke's place among the strokes this
+  // batch stored (0 for one stored before).
   const seatIds = [...new Set(accepted.map((a) => a.ctx.seat.id))];
-  const seatStrokes = await tx
+  const order = sql.join(
+    STROKE_ORDER_COLUMNS.map((c) => sql`${c}`),
+    sql`, `,
+  );
+  const storedIds = inserted.length ? sql`array[${sql.join(inserted.map((r) => sql`${r.id}`), sql`, `)}]::uuid[]` : sql`'{}'::uuid[]`;
+  const curves = await tx
     .select({
-      id: strokes.id,
       seatId: lappingSessions.seatId,
       stage: lappingSessions.stage,
-      startS: strokes.startS,
-      contrastDb: strokes.contrastDb,
-      flags: strokes.flags,
+      startS: sql<string>`string_agg(${strokes.startS}::text, ',' order by ${order})`,
+      contrastDb: sql<string>`string_agg(${strokes.contrastDb}::text, ',' order by ${order})`,
+      flags: sql<string>`string_agg(array_to_string(${strokes.flags}, '|'), ',' order by ${order})`,
+      by: sql<string>`string_agg(coalesce(array_position(${storedIds}, ${strokes.id}), 0)::text, ',' order by ${order})`,
     })
     .from(strokes)
     .innerJoin(lappingSessions, eq(lappingSessions.id, strokes.sessionId))
     .where(inArray(lappingSessions.seatId, seatIds))
-    .orderBy(asc(lappingSessions.seatId), ...STROKE_ORDER);
-  const bySeat = new Map<string, typeof seatStrokes>();
-  for (const s of seatStrokes) {
-    const list = bySeat.get(s.seatId);
-    if (list) list.push(s);
-    else bySeat.set(s.seatId, [s]);
+    .groupBy(lappingSessions.seatId, lappingSessions.stage);
+  const storerOf = inserted.map((r) => storedBy.get(r.id)!);
+  const bySeat = new Map<string, Array<{ stage: LappingStage; startS: number; contrastDb: number; flags: string[]; by: number | undefined }>>();
+  for (const c of curves) {
+    const starts = c.startS.split(",");
+    const contrasts = c.contrastDb.split(",");
+    const flags = c.flags.split(",");
+    const by = c.by.split(",");
+    const list = bySeat.get(c.seatId) ?? [];
+    for (let n = 0; n < starts.length; n++) {
+      const place = Number(by[n]);
+      list.push({
+        stage: c.stage,
+        startS: Number(starts[n]),
+        contrastDb: Number(contrasts[n]),
+        flags: flags[n] ? flags[n]!.split("|") : [],
+        by: place > 0 ? storerOf[place - 1] : undefined,
+      });
+    }
+    bySeat.set(c.seatId, list);
   }
 
   // Each save's verdict sees the strokes stored before it and its own, as it would on its own.
   const stateNow = new Map<string, SeatState>();
   const changes: Array<{ actor: Actor; ctx: Ctx; before: SeatState; after: SeatState; stage: LappingStage; verdict: SeatVerdict; count: number }> = [];
   accepted.forEach(({ save, at, actor, ctx }, k) => {
-    const visible = (bySeat.get(ctx.seat.id) ?? []).filter((s) => {
-      const by = storedBy.get(s.id);
-      return by === undefined || by <= k;
-    });
+    const visible = (bySeat.get(ctx.seat.id) ?? []).filter((s) => s.by === undefined || s.by <= k);
     const stage = ctx.session.stage;
     const currentList = visible.filter((s) => s.stage === stage);
     const current = judgeStage(currentList);

@@ -9,12 +9,13 @@ import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import type { Db } from "@/db/client";
 import { auditEntries, customers, jobs, lappingSessions, shops, strokes, valves, type LappingStage } from "@/db/schema";
 import { seedDemoShop } from "@/db/seed";
+import { getSeatReport } from "@/lib/bench/service";
 import { saveStrokeBatch, StrokeSaveQueue, type StrokeSave, type StrokeSaveOutcome } from "@/lib/bench/stroke-batch";
 import { AppError } from "@/lib/errors";
 import { seatCode } from "@/lib/heads/layout";
 import { createHeadWithSeats } from "@/lib/heads/create";
 import type { StrokeInput } from "@/lib/validations/bench";
-import { freshPglite, type TestDatabase } from "../helpers/db";
+import { freshPglite, freshServerDatabase, serverUrl, type TestDatabase } from "../helpers/db";
 import { userIds } from "./helpers";
 
 const INES = "ines@millrace.example";
@@ -184,16 +185,20 @@ async function record(db: Db, tw: Twin) {
   return out;
 }
 
-beforeAll(async () => {
-  t = await freshPglite();
-  await seedDemoShop(t.db);
-  people = await userIds(t.db);
-});
-afterAll(async () => {
-  await t?.cleanup();
-});
+const server = serverUrl();
+const backends: Array<[string, () => Promise<TestDatabase>]> = [["PGlite", freshPglite]];
+if (server) backends.push(["PostgreSQL server", () => freshServerDatabase(server)]);
 
-describe("a batch of stroke saves", () => {
+describe.each(backends)("a batch of stroke saves on %s", (_name, open) => {
+  beforeAll(async () => {
+    t = await open();
+    await seedDemoShop(t.db);
+    people = await userIds(t.db);
+  });
+  afterAll(async () => {
+    await t?.cleanup();
+  });
+
   it.each([11, 29, 47])("ends exactly as the same saves one at a time (script %i)", async (seed) => {
     const one = await twin(t.db, `TWIN-${seed}-A`);
     const many = await twin(t.db, `TWIN-${seed}-B`);
@@ -206,7 +211,7 @@ describe("a batch of stroke saves", () => {
     }
 
     const rand = prng(seed * 7 + 1);
-    const batched = [];
+    const batched: Array<ReturnType<typeof comparable>> = [];
     let sizes = 0;
     for (let at = 0; at < steps.length; ) {
       const size = 1 + Math.floor(rand() * 24);
@@ -225,6 +230,16 @@ describe("a batch of stroke saves", () => {
     expect([...statuses].sort()).toEqual([200, 201, 403, 404]);
     expect(serial.some((o) => "duplicates" in o && o.duplicates! > 0 && o.accepted! > 0)).toBe(true);
     expect(await record(t.db, many)).toEqual(await record(t.db, one));
+    // Independently of both: each stage's last answered verdict is what the seat's report judges
+    // from its strokes read one row at a time.
+    const rhea = { id: people.get(RHEA)!, shopId: (await t.db.select().from(shops).limit(1))[0]!.id, name: "Rhea", email: RHEA, role: "supervisor" as const };
+    for (const [code, seatId] of many.seatIds) {
+      const report = await getSeatReport(t.db, rhea, seatId);
+      for (const stage of ["coarse", "fine"] as const) {
+        const last = steps.map((st, i) => ({ st, o: batched[i]! })).filter(({ st, o }) => st.seat === code && st.stage === stage && o.ok).pop();
+        if (last) expect((last.o as { verdict: unknown }).verdict).toEqual(report.stages[stage].verdict);
+      }
+    }
     // And the seats did move: the record being compared is not empty.
     const changed = Object.values(await record(t.db, one)).filter((r) => (r as { changes: unknown[] }).changes.length > 0);
     expect(changed.length).toBeGreaterThan(4);
