@@ -121,13 +121,26 @@ async function writeBatch(tx: Db, batch: StrokeSave[]): Promise<StrokeSaveOutcom
   if (accepted.length === 0) return outcomes as StrokeSaveOutcome[];
 
   // One insert for every stroke of the batch; a stroke already stored (or sent twice in this
-  // batch) under its session and clientId is skipped, as on its own.
+  // batch) under its session and clientId is skipped, as on its own. The values go in as one
+  // array per column (unnest): on PGlite that is about twice as fast as a VALUES row per stroke.
   const rows = accepted.flatMap(({ save }) => save.strokes.map((s) => ({ ...s, sessionId: save.sessionId })));
-  const inserted = await tx
-    .insert(strokes)
-    .values(rows)
-    .onConflictDoNothing({ target: [strokes.sessionId, strokes.clientId] })
-    .returning({ id: strokes.id, sessionId: strokes.sessionId, clientId: strokes.clientId });
+  const column = <K extends keyof (typeof rows)[number]>(key: K) => sql.param(rows.map((r) => r[key]));
+  const names = [strokes.sessionId, strokes.clientId, strokes.index, strokes.startS, strokes.endS, strokes.onsetDb, strokes.bodyDb, strokes.contrastDb, strokes.flags];
+  type Stored = { id: string; session_id: string; client_id: string };
+  const result: unknown = await tx.execute(sql`
+    insert into ${strokes} (${sql.join(names.map((c) => sql.identifier(c.name)), sql`, `)})
+    select s, c, i, st, en, o, b, k, coalesce(string_to_array(nullif(f, ''), '|'), '{}')
+    from unnest(${column("sessionId")}::uuid[], ${column("clientId")}::uuid[], ${column("index")}::int[],
+      ${column("startS")}::real[], ${column("endS")}::real[], ${column("onsetDb")}::real[], ${column("bodyDb")}::real[],
+      ${column("contrastDb")}::real[], ${sql.param(rows.map((r) => r.flags.join("|")))}::text[]) as u(s, c, i, st, en, o, b, k, f)
+    on conflict (${sql.identifier(strokes.sessionId.name)}, ${sql.identifier(strokes.clientId.name)}) do nothing
+    returning ${sql.identifier(strokes.id.name)}, ${sql.identifier(strokes.sessionId.name)}, ${sql.identifier(strokes.clientId.name)}`);
+  // PGlite and node-postgres both answer with { rows }.
+  const inserted = ((result as { rows: Stored[] }).rows).map((r) => ({
+    id: r.id,
+    sessionId: r.session_id,
+    clientId: r.client_id,
+  }));
   // Which save stored each new stroke: the first one in arrival order that carried it.
   const firstCarrier = new Map<string, number>();
   accepted.forEach(({ save }, k) => {
