@@ -16,6 +16,7 @@ import { seatCode } from "@/lib/heads/layout";
 import { createHeadWithSeats } from "@/lib/heads/create";
 import type { StrokeInput } from "@/lib/validations/bench";
 import { freshPglite, freshServerDatabase, serverUrl, type TestDatabase } from "../helpers/db";
+import { syntheticStroke } from "../helpers/strokes";
 import { userIds } from "./helpers";
 
 const INES = "ines@millrace.example";
@@ -112,16 +113,7 @@ function script(seed: number, seats: string[], length: number): Step[] {
         counters.set(key, index);
         const fade = key.endsWith("/coarse") ? 0.5 + 11 * Math.exp(-(index - 1) / 6) : 0.3 + 3 * Math.exp(-(index - 1) / 4);
         const contrastDb = Math.round((fade + (rand() - 0.5) * 0.4) * 100) / 100;
-        const stroke: StrokeInput = {
-          clientId: randomUUID(),
-          index,
-          startS: 2 * index,
-          endS: 2 * index + 1.4,
-          onsetDb: -30 + contrastDb,
-          bodyDb: -30,
-          contrastDb,
-          flags: rand() < 0.05 ? ["too-quiet"] : [],
-        };
+        const stroke: StrokeInput = { ...syntheticStroke(index, contrastDb), flags: rand() < 0.05 ? ["too-quiet"] : [] };
         const [toSeat, toStage] = key.split("/") as [string, LappingStage];
         sent.push({ seat: toSeat, stage: toStage, stroke });
         return stroke;
@@ -248,16 +240,7 @@ describe.each(backends)("a batch of stroke saves on %s", (_name, open) => {
   it("keeps the other saves when one save's strokes are refused by the database", async () => {
     const tw = await twin(t.db, "TWIN-BAD");
     const [code] = [...tw.sessions.keys()];
-    const good = (index: number): StrokeInput => ({
-      clientId: randomUUID(),
-      index,
-      startS: 2 * index,
-      endS: 2 * index + 1.4,
-      onsetDb: -20,
-      bodyDb: -30,
-      contrastDb: 10,
-      flags: [],
-    });
+    const good = (index: number): StrokeInput => syntheticStroke(index, 10);
     // Past validation (the route's schema would refuse it), the table's own check refuses it.
     const bad: StrokeInput = { ...good(2), contrastDb: 99 };
     const saves = [good(1), bad, good(3)].map((s) => ({ userId: people.get(INES)!, sessionId: tw.sessions.get(code!)!.coarse, strokes: [s] }));
