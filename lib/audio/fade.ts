@@ -28,14 +28,21 @@ interface Solve {
   sse: number;
 }
 
+// The model's decay terms exp(-i / decay), kept between the two passes of a solve so that each is
+// computed once; grown as longer curves come (a fit runs to completion before the next).
+let decayTerms = new Float64Array(64);
+
 function solveForDecay(y: ArrayLike<number>, decay: number): Solve {
   const n = y.length;
+  if (decayTerms.length < n) decayTerms = new Float64Array(Math.max(n, decayTerms.length * 2));
+  const terms = decayTerms;
   let se = 0;
   let see = 0;
   let sy = 0;
   let sey = 0;
   for (let i = 0; i < n; i++) {
     const e = Math.exp(-i / decay);
+    terms[i] = e;
     se += e;
     see += e * e;
     sy += y[i];
@@ -58,7 +65,7 @@ function solveForDecay(y: ArrayLike<number>, decay: number): Solve {
   }
   let sse = 0;
   for (let i = 0; i < n; i++) {
-    const r = y[i] - (floor + amp * Math.exp(-i / decay));
+    const r = y[i] - (floor + amp * terms[i]);
     sse += r * r;
   }
   return { floor, amp, sse };

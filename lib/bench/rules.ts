@@ -8,6 +8,14 @@ import { ConflictError, ForbiddenError } from "@/lib/errors";
 import { seatCode } from "@/lib/heads/layout";
 import { isClosed } from "@/lib/jobs/lifecycle";
 
+/** A phone that has sent nothing for this long no longer holds its seat. */
+export const SEAT_HOLD_SECONDS = 45;
+/**
+ * A session's last sign of life is written again only when older than this: the hold is 45 s,
+ * and a phone sends a stroke every couple of seconds, so writing it on every save is wasted work.
+ */
+export const SEAT_HOLD_REFRESH_SECONDS = 5;
+
 export const SESSION_NOT_FOUND = "That lapping session does not exist in your shop.";
 
 /** What the work checks read of a seat and its job. */

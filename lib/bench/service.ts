@@ -28,6 +28,7 @@ import {
   assertOwnSession,
   judgeStage,
   SESSION_NOT_FOUND,
+  SEAT_HOLD_SECONDS,
   SESSION_ORDER,
   seatStateFor,
   STROKE_ORDER,
@@ -36,8 +37,7 @@ import {
 export { seatStateFor } from "./rules";
 export { saveStrokes, type StrokeSaveResult } from "./stroke-batch";
 
-/** A phone that has sent nothing for this long no longer holds its seat. */
-export const SEAT_HOLD_SECONDS = 45;
+export { SEAT_HOLD_SECONDS } from "./rules";
 
 
 interface SeatContext {

@@ -7,7 +7,7 @@
 // another in arrival order (tests/bench/stroke-batch.test.ts checks this against saveStrokes):
 // the same checks and refusals, the same strokes kept or counted as duplicates, the same verdict
 // and seat state as of that save, and one audit entry per seat state change.
-import { and, asc, eq, inArray, isNull, sql } from "drizzle-orm";
+import { and, asc, eq, inArray, isNull, lt, sql } from "drizzle-orm";
 import type { Db } from "@/db/client";
 import { heads, jobs, lappingSessions, seats, strokes, users, valves, type LappingStage, type SeatState } from "@/db/schema";
 import type { SeatVerdict } from "@/lib/audio";
@@ -15,7 +15,7 @@ import { authorize, type Actor } from "@/lib/auth/authorize";
 import { recordAudit } from "@/lib/audit";
 import { NotFoundError } from "@/lib/errors";
 import type { StrokeInput } from "@/lib/validations/bench";
-import { assertOpenForWork, assertOwnSession, judgeStage, SESSION_NOT_FOUND, seatStateFor, STROKE_ORDER_COLUMNS } from "./rules";
+import { assertOpenForWork, assertOwnSession, judgeStage, SEAT_HOLD_REFRESH_SECONDS, SESSION_NOT_FOUND, seatStateFor, STROKE_ORDER_COLUMNS } from "./rules";
 import { assertCanWorkOn } from "@/lib/auth/job-access";
 
 export interface StrokeSaveResult {
@@ -157,10 +157,16 @@ async function writeBatch(tx: Db, batch: StrokeSave[]): Promise<StrokeSaveOutcom
     acceptedCount[k]!++;
   }
 
+  const now = new Date();
   await tx
     .update(lappingSessions)
-    .set({ lastSeenAt: new Date() })
-    .where(inArray(lappingSessions.id, [...new Set(accepted.map((a) => a.save.sessionId))]));
+    .set({ lastSeenAt: now })
+    .where(
+      and(
+        inArray(lappingSessions.id, [...new Set(accepted.map((a) => a.save.sessionId))]),
+        lt(lappingSessions.lastSeenAt, new Date(now.getTime() - SEAT_HOLD_REFRESH_SECONDS * 1000)),
+      ),
+    );
 
   // The valve in a seat is lapped into it by the seat's first stored stroke, and stays with it.
   const lappedSeats = new Set<string>();

@@ -9,6 +9,7 @@ import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import type { Db } from "@/db/client";
 import { auditEntries, customers, jobs, lappingSessions, shops, strokes, valves, type LappingStage } from "@/db/schema";
 import { seedDemoShop } from "@/db/seed";
+import { SEAT_HOLD_REFRESH_SECONDS } from "@/lib/bench/rules";
 import { getSeatReport } from "@/lib/bench/service";
 import { saveStrokeBatch, StrokeSaveQueue, type StrokeSave, type StrokeSaveOutcome } from "@/lib/bench/stroke-batch";
 import { AppError } from "@/lib/errors";
@@ -235,6 +236,26 @@ describe.each(backends)("a batch of stroke saves on %s", (_name, open) => {
     // And the seats did move: the record being compared is not empty.
     const changed = Object.values(await record(t.db, one)).filter((r) => (r as { changes: unknown[] }).changes.length > 0);
     expect(changed.length).toBeGreaterThan(4);
+  });
+
+  it(`writes a session's sign of life again only when it is older than ${SEAT_HOLD_REFRESH_SECONDS} s`, async () => {
+    const tw = await twin(t.db, "TWIN-SEEN");
+    const sessionId = [...tw.sessions.values()][0]!.coarse;
+    const seen = async () => (await t.db.select({ at: lappingSessions.lastSeenAt }).from(lappingSessions).where(eq(lappingSessions.id, sessionId)))[0]!.at.getTime();
+    const setSeen = (secondsAgo: number) =>
+      t.db.update(lappingSessions).set({ lastSeenAt: new Date(Date.now() - secondsAgo * 1000) }).where(eq(lappingSessions.id, sessionId));
+    const save = async (index: number) => {
+      const [o] = await saveStrokeBatch(t.db, [{ userId: people.get(INES)!, sessionId, strokes: [syntheticStroke(index, 8)] }]);
+      expect(o!.ok).toBe(true);
+    };
+    await setSeen(SEAT_HOLD_REFRESH_SECONDS - 2);
+    const fresh = await seen();
+    await save(1);
+    expect(await seen()).toBe(fresh);
+    await setSeen(SEAT_HOLD_REFRESH_SECONDS + 2);
+    const before = Date.now();
+    await save(2);
+    expect(await seen()).toBeGreaterThanOrEqual(before - 5);
   });
 
   it("keeps the other saves when one save's strokes are refused by the database", async () => {
