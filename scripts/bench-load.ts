@@ -214,7 +214,10 @@ function percentile(sorted: Float64Array, p: number): number {
 }
 
 /** Runs autocannon instances side by side and gathers every response's status and latency. */
-async function measure(pid: number | null, instances: Array<autocannon.Options>): Promise<Measured> {
+/** An autocannon instance, started `startAfterMs` after the others' clock starts. */
+type Instance = autocannon.Options & { startAfterMs?: number };
+
+async function measure(pid: number | null, instances: Instance[]): Promise<Measured> {
   const latencies: number[] = [];
   const corrected: number[] = [];
   const statuses = new Map<number, number>();
@@ -222,7 +225,9 @@ async function measure(pid: number | null, instances: Array<autocannon.Options>)
   const started = process.hrtime.bigint();
   const results = await Promise.all(
     instances.map(
-      (opts) =>
+      ({ startAfterMs = 0, ...opts }) =>
+        new Promise((wait) => setTimeout(wait, startAfterMs)).then(
+          () =>
         new Promise<autocannon.Result>((resolve, reject) => {
           const instance = autocannon(opts, (err, result) => (err ? reject(err) : resolve(result)));
           // Paced runs: a late answer also delays the saves that were due meanwhile on this
@@ -235,6 +240,7 @@ async function measure(pid: number | null, instances: Array<autocannon.Options>)
             statuses.set(statusCode, (statuses.get(statusCode) ?? 0) + 1);
           });
         }),
+        ),
     ),
   );
   const seconds = Number(process.hrtime.bigint() - started) / 1e9;
@@ -276,7 +282,8 @@ function strokeSaves(baseURL: string, pid: number | null, phones: Phone[], rateP
         url: baseURL,
         connections: 1,
         duration: DURATION_S,
-        ...(ratePerS ? { connectionRate: ratePerS / phones.length } : {}),
+        // Paced phones are not in step: each starts its own rhythm a fraction of an interval later.
+        ...(ratePerS ? { connectionRate: ratePerS / phones.length, startAfterMs: (c * 1000) / ratePerS } : {}),
         headers: { "content-type": "application/json", origin: baseURL, cookie: phone.cookie },
         requests: [
           {
@@ -292,7 +299,7 @@ function strokeSaves(baseURL: string, pid: number | null, phones: Phone[], rateP
             },
           },
         ],
-      } satisfies autocannon.Options;
+      } satisfies Instance;
     }),
   );
 }

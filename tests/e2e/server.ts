@@ -44,9 +44,12 @@ const nextBin = path.join(root, "node_modules", "next", "dist", "bin", "next");
 /** The production server, as `npm start` runs it (server.ts, bundled by `npm run build`). */
 export const SERVER_BUNDLE = path.join(root, ".next", "grindfade-server.cjs");
 
+/** `npm start`'s launcher, which runs SERVER_BUNDLE. */
+export const START_SCRIPT = path.join(root, "scripts", "start.mjs");
+
 /** The command line of the production server on a port, as `npm start` runs it. */
 export function serverCommand(port: number): string[] {
-  return [...serverNodeArgs(), SERVER_BUNDLE, "-p", String(port), "-H", "127.0.0.1"];
+  return [...serverNodeArgs(), START_SCRIPT, "-p", String(port), "-H", "127.0.0.1"];
 }
 
 /** `npm run build`: next build, then the server bundle (also made alone when only it is missing). */

@@ -7,9 +7,10 @@ import path from "node:path";
 import { describe, expect, it } from "vitest";
 import { serverCommand } from "./server";
 
-function startServer(env: Record<string, string>): Promise<{ code: number | null; stderr: string; stdout: string }> {
+function startServer(env: Record<string, string>, cwd = process.cwd()): Promise<{ code: number | null; stderr: string; stdout: string }> {
   return new Promise((resolve) => {
     const child = spawn(process.execPath, serverCommand(0), {
+      cwd,
       env: { ...process.env, NODE_ENV: "production", NEXTAUTH_SECRET: randomBytes(24).toString("base64url"), ...env },
       stdio: ["ignore", "pipe", "pipe"],
     });
@@ -43,5 +44,13 @@ describe("server start-up", () => {
     expect(r.stderr).toMatch(/GRINDFADE_DATA_DIR.*left untouched/);
     expect(fs.readdirSync(path.join(dir, "pglite"))).toEqual(["notes.txt"]);
     fs.rmSync(dir, { recursive: true, force: true });
+  });
+
+  it("says to build first when there is no production build", async () => {
+    const empty = fs.mkdtempSync(path.join(os.tmpdir(), "grindfade-nobuild-"));
+    const r = await startServer({}, empty);
+    expect(r.code).toBe(1);
+    expect(r.stderr.trim()).toBe("Grindfade cannot start: there is no production build here. Run `npm run build` first.");
+    fs.rmSync(empty, { recursive: true, force: true });
   });
 });
