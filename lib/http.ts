@@ -83,7 +83,11 @@ export async function readJson<T>(req: Request, schema: ZodType<T>, maxBytes: nu
 
 const uuid = z.string().uuid();
 
+export function isUuid(value: unknown): value is string {
+  return uuid.safeParse(value).success;
+}
+
 export function parseId(value: string, what: string): string {
-  if (!uuid.safeParse(value).success) throw new BadRequestError(`${what} must be a UUID.`);
+  if (!isUuid(value)) throw new BadRequestError(`${what} must be a UUID.`);
   return value;
 }

@@ -8,7 +8,7 @@ import { forbiddenMessage } from "@/lib/auth/authorize";
 import { can } from "@/lib/auth/roles";
 import type { UserRole } from "@/db/schema";
 import { errorResponse, ForbiddenError, UnauthorizedError } from "@/lib/errors";
-import { parseId, readJson } from "@/lib/http";
+import { isUuid, parseId, readJson } from "@/lib/http";
 import { strokeBatchSchema } from "@/lib/validations/bench";
 import { strokeQueueFor } from "./stroke-batch";
 
@@ -22,7 +22,8 @@ export type SignedInUser = { id: string; role?: UserRole } | null;
 export async function postStrokes(req: Request, rawSessionId: string, signedIn: () => Promise<SignedInUser>): Promise<Response> {
   try {
     const user = await signedIn();
-    if (!user) throw new UnauthorizedError();
+    // A session naming no well-formed user id is not a session of ours.
+    if (!user || !isUuid(user.id)) throw new UnauthorizedError();
     // The role in the session answers early; the save checks it again against the users table.
     if (user.role && !can(user.role, "jobs:work")) throw new ForbiddenError(forbiddenMessage("jobs:work"));
     const sessionId = parseId(rawSessionId, "sessionId");

@@ -27,6 +27,13 @@ export function strokeSaveTarget(method: string | undefined, url: string | undef
  * then refuses an oversized one with 413, as it does for the route handler. Whatever is left of
  * such a body is discarded and the connection closed after the answer.
  */
+/** The phone went away before its body arrived: there is nobody to answer, and nothing was saved. */
+export class RequestAbortedError extends Error {
+  constructor() {
+    super("The request was cut off before its body arrived.");
+  }
+}
+
 function readBody(req: http.IncomingMessage, res: http.ServerResponse): Promise<Buffer> {
   const declared = Number(req.headers["content-length"]);
   if (Number.isFinite(declared) && declared > MAX_JSON_BYTES) {
@@ -49,7 +56,10 @@ function readBody(req: http.IncomingMessage, res: http.ServerResponse): Promise<
     };
     req.on("data", onData);
     req.once("end", () => resolve(Buffer.concat(chunks, total)));
-    req.once("error", reject);
+    req.once("error", () => reject(new RequestAbortedError()));
+    req.once("close", () => {
+      if (!req.complete) reject(new RequestAbortedError());
+    });
   });
 }
 
@@ -75,7 +85,13 @@ export async function answerStrokeSave(req: http.IncomingMessage, res: http.Serv
     response = Response.json({ error: "forbidden", message: verdict.message }, { status: 403 });
   } else {
     // A declared length over the limit is left in the headers, where readJson refuses it.
-    const body = new Uint8Array(await readBody(req, res));
+    let body: Uint8Array<ArrayBuffer>;
+    try {
+      body = new Uint8Array(await readBody(req, res));
+    } catch (err) {
+      if (err instanceof RequestAbortedError) return;
+      throw err;
+    }
     const request = new Request(`http://${headers.get("host") ?? "localhost"}${req.url}`, { method: "POST", headers, body });
     response = await postStrokes(request, sessionId, () => tokenUser(request));
   }

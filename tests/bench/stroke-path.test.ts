@@ -4,12 +4,13 @@
 // and the server's answers must carry the gate every other answer has — the origin check, the
 // security headers and the API's content security policy.
 import http from "node:http";
+import net from "node:net";
 import type { AddressInfo } from "node:net";
 import { randomUUID } from "node:crypto";
 import { eq } from "drizzle-orm";
 import { encode } from "next-auth/jwt";
 import { strokes } from "@/db/schema";
-import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { afterAll, beforeAll, describe, expect, it, vi } from "vitest";
 import { API_POLICY, COMMON_HEADERS } from "@/lib/security/headers";
 import { mockAppContext } from "../helpers/app-mocks";
 import { NextRequest } from "next/server";
@@ -153,5 +154,45 @@ describe("stroke saves on the production server's own path", () => {
     }
     const stored = await state.t!.db.select().from(strokes).where(eq(strokes.sessionId, ines));
     expect(stored).toEqual([]);
+  });
+
+  it("refuses a session whose user id is not one of ours with 401, on both paths", async () => {
+    const ines = await openSession("ines@millrace.example", "1I2");
+    const [s1] = strokeInputs([12]);
+    const forged = `next-auth.session-token=${await encode({ token: { uid: "1; drop table users", role: "technician" }, secret: SECRET })}`;
+    const res = await fetch(`${base}/api/sessions/${ines}/strokes`, {
+      method: "POST",
+      headers: { "content-type": "application/json", origin: base, cookie: forged },
+      body: JSON.stringify({ strokes: [s1] }),
+    });
+    expect(res.status).toBe(401);
+    state.session = { user: { id: "1; drop table users" } };
+    const routeRes = await strokesRoute.POST(jsonRequest(`/api/sessions/${ines}/strokes`, { strokes: [s1] }), { params: Promise.resolve({ sessionId: ines }) });
+    expect(routeRes.status).toBe(401);
+  });
+
+  it("lets a phone that drops mid-request go, with nothing saved, logged or left hanging", async () => {
+    const ines = await openSession("ines@millrace.example", "2I1");
+    const errors = vi.spyOn(console, "error");
+    const cookie = await cookieFor("ines@millrace.example");
+    const body = JSON.stringify({ strokes: strokeInputs([12, 11]) });
+    await new Promise<void>((resolve, reject) => {
+      const socket = net.connect((server.address() as AddressInfo).port, "127.0.0.1", () => {
+        socket.write(
+          `POST /api/sessions/${ines}/strokes HTTP/1.1\r\nHost: 127.0.0.1\r\nOrigin: ${base}\r\nCookie: ${cookie}\r\n` +
+            `Content-Type: application/json\r\nContent-Length: ${body.length}\r\n\r\n${body.slice(0, 20)}`,
+          () => setTimeout(() => socket.destroy(), 50),
+        );
+      });
+      socket.on("close", () => resolve());
+      socket.on("error", reject);
+    });
+    await new Promise((r) => setTimeout(r, 100));
+    expect(errors).not.toHaveBeenCalled();
+    errors.mockRestore();
+    expect(await state.t!.db.select().from(strokes).where(eq(strokes.sessionId, ines))).toEqual([]);
+    // The server still answers the next phone.
+    const { server: next } = await both({ email: "ines@millrace.example", sessionId: ines, body });
+    expect(next.status).toBe(201);
   });
 });
