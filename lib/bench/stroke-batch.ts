@@ -7,7 +7,7 @@
 // another in arrival order (tests/bench/stroke-batch.test.ts checks this against saveStrokes):
 // the same checks and refusals, the same strokes kept or counted as duplicates, the same verdict
 // and seat state as of that save, and one audit entry per seat state change.
-import { and, asc, eq, inArray, isNull, lt, sql } from "drizzle-orm";
+import { and, asc, eq, inArray, isNull, sql } from "drizzle-orm";
 import type { Db } from "@/db/client";
 import { heads, jobs, lappingSessions, seats, strokes, users, valves, type LappingStage, type SeatState } from "@/db/schema";
 import type { SeatVerdict } from "@/lib/audio";
@@ -83,7 +83,7 @@ async function writeBatch(tx: Db, batch: StrokeSave[]): Promise<StrokeSaveOutcom
   const contexts = await tx
     .select({
       sessionId: lappingSessions.id,
-      session: { stage: lappingSessions.stage, technicianId: lappingSessions.technicianId },
+      session: { stage: lappingSessions.stage, technicianId: lappingSessions.technicianId, lastSeenAt: lappingSessions.lastSeenAt },
       starterName: users.name,
       seat: { id: seats.id, state: seats.state, cylinder: seats.cylinder, kind: seats.kind, position: seats.position },
       job: { id: jobs.id, shopId: jobs.shopId, number: jobs.number, status: jobs.status, assignedTechnicianId: jobs.assignedTechnicianId },
@@ -157,16 +157,14 @@ async function writeBatch(tx: Db, batch: StrokeSave[]): Promise<StrokeSaveOutcom
     acceptedCount[k]!++;
   }
 
+  // The sessions were read under the seats' lock, so their last sign of life is current; most
+  // saves find it fresh and skip the statement.
   const now = new Date();
-  await tx
-    .update(lappingSessions)
-    .set({ lastSeenAt: now })
-    .where(
-      and(
-        inArray(lappingSessions.id, [...new Set(accepted.map((a) => a.save.sessionId))]),
-        lt(lappingSessions.lastSeenAt, new Date(now.getTime() - SEAT_HOLD_REFRESH_SECONDS * 1000)),
-      ),
-    );
+  const staleBefore = now.getTime() - SEAT_HOLD_REFRESH_SECONDS * 1000;
+  const stale = [...new Set(accepted.filter((a) => a.ctx.session.lastSeenAt.getTime() < staleBefore).map((a) => a.save.sessionId))];
+  if (stale.length > 0) {
+    await tx.update(lappingSessions).set({ lastSeenAt: now }).where(inArray(lappingSessions.id, stale));
+  }
 
   // The valve in a seat is lapped into it by the seat's first stored stroke, and stays with it.
   const lappedSeats = new Set<string>();
