@@ -30,6 +30,7 @@ import { openDatabase, type Db } from "@/db/client";
 import { customers, jobs, shops, strokes, users } from "@/db/schema";
 import { DEMO_USERS, seedDemoShop } from "@/db/seed";
 import { createHeadWithSeats } from "@/lib/heads/create";
+import { DEFAULT_HEAD_LAYOUT } from "@/lib/heads/layout";
 import { buildApp, freePort, randomSecret, startServer, type RunningServer as FullServer } from "../tests/e2e/server";
 import { sessionCookie } from "../tests/e2e/http-sign-in";
 import { syntheticStroke } from "../tests/helpers/strokes";
@@ -90,14 +91,7 @@ async function prepareFixture(db: Db): Promise<Fixture> {
             assignedTechnicianId: techId.get(tech.email)!,
           })
           .returning({ id: jobs.id });
-        const head = await createHeadWithSeats(tx, job!.id, "Cylinder head", {
-          arrangement: "inline",
-          cylinderCount: 4,
-          intakeValvesPerCylinder: 2,
-          exhaustValvesPerCylinder: 2,
-          camshaftCount: 2,
-          journalsPerCamshaft: 5,
-        });
+        const head = await createHeadWithSeats(tx, job!.id, "Cylinder head", DEFAULT_HEAD_LAYOUT);
         seatIds.push(...head.seats.map((s) => s.id));
       });
     }

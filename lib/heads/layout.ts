@@ -23,6 +23,16 @@ export const headLayoutSchema = z
 
 export type HeadLayout = z.infer<typeof headLayoutSchema>;
 
+/** The head a new job starts from: an inline four, two intake and two exhaust valves a cylinder, twin cams of five journals. */
+export const DEFAULT_HEAD_LAYOUT: HeadLayout = {
+  arrangement: "inline",
+  cylinderCount: 4,
+  intakeValvesPerCylinder: 2,
+  exhaustValvesPerCylinder: 2,
+  camshaftCount: 2,
+  journalsPerCamshaft: 5,
+};
+
 export interface SeatPosition {
   cylinder: number;
   kind: "intake" | "exhaust";

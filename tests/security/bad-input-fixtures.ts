@@ -12,7 +12,7 @@ import { camshafts, customers, engineSpecs, heads, jobs, journals, mailOutbox, s
 import type { Actor } from "@/lib/auth/guard";
 import { startSession } from "@/lib/bench/service";
 import { createHeadWithSeats } from "@/lib/heads/create";
-import { seatCode } from "@/lib/heads/layout";
+import { DEFAULT_HEAD_LAYOUT, seatCode } from "@/lib/heads/layout";
 import { setUpTorqueSheet } from "@/lib/heads/sheets";
 import { addSeatPhoto } from "@/lib/storage/photos";
 import { storeRecording } from "@/lib/storage/recording-upload";
@@ -118,14 +118,7 @@ export async function buildFixtures(db: Db): Promise<Fixtures> {
       engineSpecId: spec!.id,
     })
     .returning();
-  await createHeadWithSeats(db, job!.id, "Cylinder head", {
-    arrangement: "inline",
-    cylinderCount: 4,
-    intakeValvesPerCylinder: 2,
-    exhaustValvesPerCylinder: 2,
-    camshaftCount: 2,
-    journalsPerCamshaft: 5,
-  });
+  await createHeadWithSeats(db, job!.id, "Cylinder head", DEFAULT_HEAD_LAYOUT);
   const other = await headIds(db, "FLE-0141");
   const otherSession = randomUUID();
   await startSession(db, wren, other.seats.get("1I1")!, { sessionId: otherSession, stage: "coarse", deviceId: "phone-wren-1" });

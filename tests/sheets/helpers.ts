@@ -16,7 +16,7 @@ import {
   valves,
 } from "@/db/schema";
 import type { Actor } from "@/lib/auth/guard";
-import { seatCode } from "@/lib/heads/layout";
+import { DEFAULT_HEAD_LAYOUT, seatCode } from "@/lib/heads/layout";
 
 export const form = (o: Record<string, string>): FormData => {
   const f = new FormData();
@@ -104,12 +104,7 @@ export function jobForm(overrides: Record<string, unknown> = {}): Record<string,
     assignedTechnicianId: "",
     notes: "",
     headLabel: "Cylinder head",
-    arrangement: "inline",
-    cylinderCount: 4,
-    intakeValvesPerCylinder: 2,
-    exhaustValvesPerCylinder: 2,
-    camshaftCount: 2,
-    journalsPerCamshaft: 5,
+    ...DEFAULT_HEAD_LAYOUT,
     ...overrides,
   };
 }

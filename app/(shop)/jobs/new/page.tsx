@@ -5,6 +5,7 @@ import { JobForm } from "@/components/jobs/job-form";
 import { Forbidden } from "@/components/ui/forbidden";
 import { currentActor, forbiddenMessage } from "@/lib/auth/guard";
 import { can } from "@/lib/auth/roles";
+import { DEFAULT_HEAD_LAYOUT } from "@/lib/heads/layout";
 
 export const metadata: Metadata = { title: "Book in a job" };
 
@@ -34,12 +35,7 @@ export default async function NewJobPage() {
           assignedTechnicianId: "",
           notes: "",
           headLabel: "Cylinder head",
-          arrangement: "inline",
-          cylinderCount: 4,
-          intakeValvesPerCylinder: 2,
-          exhaustValvesPerCylinder: 2,
-          camshaftCount: 2,
-          journalsPerCamshaft: 5,
+          ...DEFAULT_HEAD_LAYOUT,
         }}
       />
     </div>
