@@ -123,6 +123,13 @@ async function postJson(
   });
 }
 
+/** Posts a phone's i-th stroke alone; the answer's body, or null when it did not arrive whole. */
+async function sendStroke(baseURL: string, phone: Phone, i: number) {
+  const res = await postJson(baseURL, phone.cookie, `/api/sessions/${phone.sessionId}/strokes`, { strokes: [phone.strokes[i]] });
+  const body = (await res.json().catch(() => null)) as { accepted?: number; duplicates?: number } | null;
+  return { res, body };
+}
+
 interface SeatApi {
   seat: { id: string; code: string; state: string };
   canWork: boolean;
@@ -270,18 +277,7 @@ export async function crashRun(
           phone.sentAt[i] = Date.now();
           let outcome: Outcome;
           try {
-            const res = await postJson(
-              baseURL,
-              phone.cookie,
-              `/api/sessions/${phone.sessionId}/strokes`,
-              {
-                strokes: [phone.strokes[i]],
-              },
-            );
-            const body = (await res.json().catch(() => null)) as {
-              accepted?: number;
-              duplicates?: number;
-            } | null;
+            const { res, body } = await sendStroke(baseURL, phone, i);
             if (res.ok) {
               // A 2xx status is the success answer the outbox acts on, even when a kill cuts the
               // body off; a body that did arrive must say the stroke was new.
@@ -391,18 +387,7 @@ export async function crashRun(
         for (let i = 0; i < phone.strokes.length; i++) {
           const acked = phone.outcome[i] === "acked";
           if (acked && ackedSeen++ % 10 !== 0) continue;
-          const res = await postJson(
-            baseURL,
-            phone.cookie,
-            `/api/sessions/${phone.sessionId}/strokes`,
-            {
-              strokes: [phone.strokes[i]],
-            },
-          );
-          const body = (await res.json().catch(() => null)) as {
-            accepted?: number;
-            duplicates?: number;
-          } | null;
+          const { res, body } = await sendStroke(baseURL, phone, i);
           if (acked) {
             resentAcknowledged++;
             if (res.ok && body?.accepted === 0 && body.duplicates === 1)
