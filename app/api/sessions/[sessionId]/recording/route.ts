@@ -3,6 +3,7 @@ import { NextResponse } from "next/server";
 import { getDb } from "@/db/client";
 import { heads, jobs, lappingSessions, seats } from "@/db/schema";
 import { guardedRoute } from "@/lib/auth/guard";
+import { SESSION_NOT_FOUND } from "@/lib/bench/rules";
 import { getSessionForUpload } from "@/lib/bench/service";
 import { NotFoundError } from "@/lib/errors";
 import { parseId } from "@/lib/http";
@@ -63,7 +64,7 @@ export const GET = guardedRoute("jobs:read", async (req, ctx: RouteContext<"/api
     .where(and(eq(lappingSessions.id, id), eq(jobs.shopId, actor.shopId)))
     .limit(1);
   // Another shop's session answers exactly like a missing one, so ids reveal nothing.
-  if (!row) throw new NotFoundError("That lapping session does not exist in your shop.");
+  if (!row) throw new NotFoundError(SESSION_NOT_FOUND);
   const noRecording = new NotFoundError("This session was not recorded.");
   if (!row.key) throw noRecording;
   const store = blobStore();
