@@ -1,6 +1,6 @@
 // Who may do what, decided from a signed-in person's role: pure, with no tie to next-auth, so the
 // production server's own stroke path (lib/server/stroke-save.ts) uses the same decision.
-import type { UserRole } from "@/db/schema";
+import { users, type UserRole } from "@/db/schema";
 import { ForbiddenError, UnauthorizedError } from "@/lib/errors";
 import { can, type Permission } from "./roles";
 
@@ -10,6 +10,22 @@ export interface Actor {
   name: string;
   email: string;
   role: UserRole;
+}
+
+/** What every entry point reads of the signed-in person, on every request. */
+export const actorColumns = {
+  id: users.id,
+  shopId: users.shopId,
+  name: users.name,
+  email: users.email,
+  role: users.role,
+  active: users.active,
+};
+
+/** The person as the guard sees them, or null when the account is gone or disabled. */
+export function actorFromRow(row: (Actor & { active: boolean }) | undefined): Actor | null {
+  if (!row || !row.active) return null;
+  return { id: row.id, shopId: row.shopId, name: row.name, email: row.email, role: row.role };
 }
 
 /** Pure decision, shared by every entry point: who may pass, with which error otherwise. */

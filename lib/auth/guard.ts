@@ -7,7 +7,7 @@ import type { NextRequest } from "next/server";
 import { getDb } from "@/db/client";
 import { users, type UserRole } from "@/db/schema";
 import { errorResponse } from "@/lib/errors";
-import { authorize, type Actor } from "./authorize";
+import { actorColumns, actorFromRow, authorize, type Actor } from "./authorize";
 import { authOptions } from "./options";
 import type { Permission } from "./roles";
 
@@ -23,20 +23,8 @@ export async function currentActor(): Promise<Actor | null> {
   const id = (await sessionUser())?.id;
   if (!id) return null;
   const db = await getDb();
-  const [row] = await db
-    .select({
-      id: users.id,
-      shopId: users.shopId,
-      name: users.name,
-      email: users.email,
-      role: users.role,
-      active: users.active,
-    })
-    .from(users)
-    .where(eq(users.id, id))
-    .limit(1);
-  if (!row || !row.active) return null;
-  return { id: row.id, shopId: row.shopId, name: row.name, email: row.email, role: row.role };
+  const [row] = await db.select(actorColumns).from(users).where(eq(users.id, id)).limit(1);
+  return actorFromRow(row);
 }
 
 /** For server actions and server components: throws Unauthorized/Forbidden errors. */

@@ -11,7 +11,7 @@ import { and, asc, eq, inArray, isNull, sql } from "drizzle-orm";
 import type { Db } from "@/db/client";
 import { heads, jobs, lappingSessions, seats, strokes, users, valves, type LappingStage, type SeatState } from "@/db/schema";
 import type { SeatVerdict } from "@/lib/audio";
-import { authorize, type Actor } from "@/lib/auth/authorize";
+import { actorColumns, actorFromRow, authorize, type Actor } from "@/lib/auth/authorize";
 import { recordAudit } from "@/lib/audit";
 import { NotFoundError } from "@/lib/errors";
 import type { StrokeInput } from "@/lib/validations/bench";
@@ -34,12 +34,6 @@ export interface StrokeSave {
 }
 
 export type StrokeSaveOutcome = { ok: true; result: StrokeSaveResult } | { ok: false; error: unknown };
-
-/** The signed-in person as the guard sees them, or null when the account is gone or disabled. */
-function actorOf(row: { id: string; shopId: string; name: string; email: string; role: Actor["role"]; active: boolean } | undefined): Actor | null {
-  if (!row || !row.active) return null;
-  return { id: row.id, shopId: row.shopId, name: row.name, email: row.email, role: row.role };
-}
 
 /**
  * Saves strokes idempotently (a resend with the same clientId is ignored) and re-judges the seat.
@@ -73,10 +67,7 @@ export async function saveStrokeBatch(db: Db, batch: StrokeSave[]): Promise<Stro
 async function writeBatch(tx: Db, batch: StrokeSave[]): Promise<StrokeSaveOutcome[]> {
   const userIds = [...new Set(batch.map((s) => s.userId))];
   const sessionIds = [...new Set(batch.map((s) => s.sessionId))];
-  const people = await tx
-    .select({ id: users.id, shopId: users.shopId, name: users.name, email: users.email, role: users.role, active: users.active })
-    .from(users)
-    .where(inArray(users.id, userIds));
+  const people = await tx.select(actorColumns).from(users).where(inArray(users.id, userIds));
   const personById = new Map(people.map((p) => [p.id, p]));
   // The sessions with their seats locked, in seat order: two batches (on a PostgreSQL server,
   // from two processes) always lock shared seats in the same order.
@@ -107,7 +98,7 @@ async function writeBatch(tx: Db, batch: StrokeSave[]): Promise<StrokeSaveOutcom
   const accepted: Array<{ save: StrokeSave; at: number; actor: Actor; ctx: Ctx }> = [];
   batch.forEach((save, at) => {
     try {
-      const actor = authorize(actorOf(personById.get(save.userId)), "jobs:work");
+      const actor = authorize(actorFromRow(personById.get(save.userId)), "jobs:work");
       const ctx = contextBySession.get(save.sessionId);
       if (!ctx || ctx.job.shopId !== actor.shopId) throw new NotFoundError(SESSION_NOT_FOUND);
       assertCanWorkOn(actor, ctx.job);
@@ -136,11 +127,7 @@ async function writeBatch(tx: Db, batch: StrokeSave[]): Promise<StrokeSaveOutcom
     on conflict (${sql.identifier(strokes.sessionId.name)}, ${sql.identifier(strokes.clientId.name)}) do nothing
     returning ${sql.identifier(strokes.id.name)}, ${sql.identifier(strokes.sessionId.name)}, ${sql.identifier(strokes.clientId.name)}`);
   // PGlite and node-postgres both answer with { rows }.
-  const inserted = ((result as { rows: Stored[] }).rows).map((r) => ({
-    id: r.id,
-    sessionId: r.session_id,
-    clientId: r.client_id,
-  }));
+  const inserted = (result as { rows: Stored[] }).rows;
   // Which save stored each new stroke: the first one in arrival order that carried it.
   const firstCarrier = new Map<string, number>();
   accepted.forEach(({ save }, k) => {
@@ -149,13 +136,10 @@ async function writeBatch(tx: Db, batch: StrokeSave[]): Promise<StrokeSaveOutcom
       if (!firstCarrier.has(key)) firstCarrier.set(key, k);
     }
   });
-  const storedBy = new Map<string, number>();
+  // storerOf[n]: the save that stored the n-th new stroke.
+  const storerOf = inserted.map((row) => firstCarrier.get(`${row.session_id}/${row.client_id}`)!);
   const acceptedCount = accepted.map(() => 0);
-  for (const row of inserted) {
-    const k = firstCarrier.get(`${row.sessionId}/${row.clientId}`)!;
-    storedBy.set(row.id, k);
-    acceptedCount[k]!++;
-  }
+  for (const k of storerOf) acceptedCount[k]!++;
 
   // The sessions were read under the seats' lock, so their last sign of life is current; most
   // saves find it fresh and skip the statement.
@@ -202,7 +186,6 @@ async function writeBatch(tx: Db, batch: StrokeSave[]): Promise<StrokeSaveOutcom
     .innerJoin(lappingSessions, eq(lappingSessions.id, strokes.sessionId))
     .where(inArray(lappingSessions.seatId, seatIds))
     .groupBy(lappingSessions.seatId, lappingSessions.stage);
-  const storerOf = inserted.map((r) => storedBy.get(r.id)!);
   const bySeat = new Map<string, Array<{ stage: LappingStage; startS: number; contrastDb: number; flags: string[]; by: number | undefined }>>();
   for (const c of curves) {
     const starts = c.startS.split(",");
