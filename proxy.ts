@@ -4,7 +4,7 @@
 // authorisation happens in each page, action and route handler (lib/auth/guard.ts).
 import { getToken } from "next-auth/jwt";
 import { NextResponse, type NextRequest } from "next/server";
-import { API_POLICY, checkOrigin, newNonce, pagePolicy } from "@/lib/security/headers";
+import { API_POLICY, checkRequestOrigin, newNonce, pagePolicy } from "@/lib/security/headers";
 
 const dev = process.env.NODE_ENV === "development";
 
@@ -19,11 +19,6 @@ function isPublic(pathname: string): boolean {
   );
 }
 
-function allowedOrigins(): string[] {
-  const url = process.env.NEXTAUTH_URL;
-  return url ? [url] : [];
-}
-
 export async function proxy(req: NextRequest) {
   const { pathname, search } = req.nextUrl;
   const isApi = pathname.startsWith("/api/");
@@ -31,13 +26,7 @@ export async function proxy(req: NextRequest) {
   // next-auth's own routes carry their own CSRF token; everything else that changes state must
   // come from one of our pages (server actions are also checked by Next.js itself).
   if (!pathname.startsWith("/api/auth/")) {
-    const verdict = checkOrigin({
-      method: req.method,
-      origin: req.headers.get("origin"),
-      referer: req.headers.get("referer"),
-      hosts: [req.headers.get("host"), req.headers.get("x-forwarded-host")],
-      allowedOrigins: allowedOrigins(),
-    });
+    const verdict = checkRequestOrigin(req.method, req.headers);
     if (!verdict.ok) {
       const res = NextResponse.json({ error: "forbidden", message: verdict.message }, { status: 403 });
       res.headers.set("Content-Security-Policy", API_POLICY);

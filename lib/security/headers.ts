@@ -110,3 +110,19 @@ export function checkOrigin(input: OriginInput): OriginVerdict {
   }
   return { ok: true };
 }
+
+/**
+ * checkOrigin for a request as it arrived: its own Origin, Referer and Host headers (and
+ * X-Forwarded-Host behind a proxy), with NEXTAUTH_URL's origin also allowed. proxy.ts and the
+ * production server's stroke path both ask this.
+ */
+export function checkRequestOrigin(method: string, headers: Headers): OriginVerdict {
+  const url = process.env.NEXTAUTH_URL;
+  return checkOrigin({
+    method,
+    origin: headers.get("origin"),
+    referer: headers.get("referer"),
+    hosts: [headers.get("host"), headers.get("x-forwarded-host")],
+    allowedOrigins: url ? [url] : [],
+  });
+}

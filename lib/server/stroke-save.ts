@@ -5,7 +5,7 @@ import type http from "node:http";
 import { tokenUser } from "@/lib/auth/token";
 import { postStrokes } from "@/lib/bench/stroke-ingest";
 import { MAX_JSON_BYTES } from "@/lib/http";
-import { API_POLICY, checkOrigin, COMMON_HEADERS } from "@/lib/security/headers";
+import { API_POLICY, checkRequestOrigin, COMMON_HEADERS } from "@/lib/security/headers";
 
 const STROKE_SAVE = /^\/api\/sessions\/([^/]+)\/strokes$/;
 
@@ -72,13 +72,7 @@ function requestHeaders(req: http.IncomingMessage): Headers {
 export async function answerStrokeSave(req: http.IncomingMessage, res: http.ServerResponse, sessionId: string): Promise<void> {
   const headers = requestHeaders(req);
   // The same refusal as proxy.ts gives every other change that does not come from our pages.
-  const verdict = checkOrigin({
-    method: "POST",
-    origin: headers.get("origin"),
-    referer: headers.get("referer"),
-    hosts: [headers.get("host"), headers.get("x-forwarded-host")],
-    allowedOrigins: process.env.NEXTAUTH_URL ? [process.env.NEXTAUTH_URL] : [],
-  });
+  const verdict = checkRequestOrigin("POST", headers);
   let response: Response;
   if (!verdict.ok) {
     req.resume();
