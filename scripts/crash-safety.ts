@@ -16,6 +16,7 @@ import { buildApp, randomSecret, startServer, type RunningServer } from "../test
 import { clusterState as pgControlState } from "../tests/helpers/pg-control";
 import { sessionCookie } from "../tests/e2e/http-sign-in";
 import { syntheticStroke } from "../tests/helpers/strokes";
+import type { StrokeInput } from "@/lib/validations/bench";
 
 export type StopSignal = "SIGKILL" | "SIGTERM";
 
@@ -71,24 +72,13 @@ export interface CrashRun {
   problems: string[];
 }
 
-interface Stroke {
-  clientId: string;
-  index: number;
-  startS: number;
-  endS: number;
-  onsetDb: number;
-  bodyDb: number;
-  contrastDb: number;
-  flags: string[];
-}
-
 type Outcome = "unsent" | "acked" | "refused" | "no-answer";
 
 interface Phone {
   cookie: string;
   seatId: string;
   sessionId: string;
-  strokes: Stroke[];
+  strokes: StrokeInput[];
   outcome: Outcome[];
   sentAt: number[];
 }
@@ -162,7 +152,7 @@ async function waitingSeats(
   return seats;
 }
 
-function strokesFor(count: number): Stroke[] {
+function strokesFor(count: number): StrokeInput[] {
   return Array.from({ length: count }, (_, k) => {
     const index = k + 1;
     // A fade from 12 dB towards 0.6 dB, as a seat lapping in.
