@@ -6,16 +6,16 @@ import { randomUUID } from "node:crypto";
 import fs from "node:fs";
 import path from "node:path";
 import bcrypt from "bcryptjs";
-import { and, asc, eq, sql } from "drizzle-orm";
+import { and, eq, sql } from "drizzle-orm";
 import type { Db } from "@/db/client";
-import { camshafts, customers, engineSpecs, heads, jobs, journals, mailOutbox, seats, shops, users, valves } from "@/db/schema";
-import type { Actor } from "@/lib/auth/guard";
+import { customers, engineSpecs, jobs, mailOutbox, shops, users, valves } from "@/db/schema";
 import { startSession } from "@/lib/bench/service";
 import { createHeadWithSeats } from "@/lib/heads/create";
-import { DEFAULT_HEAD_LAYOUT, seatCode } from "@/lib/heads/layout";
+import { DEFAULT_HEAD_LAYOUT } from "@/lib/heads/layout";
 import { setUpTorqueSheet } from "@/lib/heads/sheets";
 import { addSeatPhoto } from "@/lib/storage/photos";
 import { storeRecording } from "@/lib/storage/recording-upload";
+import { actorOf, demoHead } from "../sheets/helpers";
 import { jpegHead, wavFile } from "../storage/fixtures";
 
 export const INES = "ines@millrace.example";
@@ -58,31 +58,18 @@ export interface Fixtures {
   };
 }
 
-async function actorOf(db: Db, email: string): Promise<Actor> {
-  const [u] = await db.select().from(users).where(eq(users.email, email));
-  if (!u) throw new Error(`no user ${email}`);
-  return { id: u.id, shopId: u.shopId, name: u.name, email: u.email, role: u.role };
-}
-
+/** The demo head's ids, from the sheets tests' reader, with its valves by seat code. */
 async function headIds(db: Db, jobNumber: string): Promise<HeadIds> {
-  const [row] = await db
-    .select({ jobId: jobs.id, headId: heads.id })
-    .from(jobs)
-    .innerJoin(heads, eq(heads.jobId, jobs.id))
-    .where(eq(jobs.number, jobNumber));
-  if (!row) throw new Error(`no job ${jobNumber}`);
-  const [cam] = await db.select().from(camshafts).where(eq(camshafts.headId, row.headId)).orderBy(asc(camshafts.position)).limit(1);
-  const [journal] = await db.select().from(journals).where(eq(journals.camshaftId, cam!.id)).orderBy(asc(journals.position)).limit(1);
-  const seatRows = await db.select().from(seats).where(eq(seats.headId, row.headId));
-  const valveRows = await db.select().from(valves).where(eq(valves.headId, row.headId));
-  const seatMap = new Map(seatRows.map((s) => [seatCode(s), s.id]));
-  const byId = new Map(seatRows.map((s) => [s.id, seatCode(s)]));
+  const head = await demoHead(db, jobNumber);
+  const valveRows = await db.select().from(valves).where(eq(valves.headId, head.headId));
+  const codeOf = new Map([...head.seatByCode].map(([code, id]) => [id, code]));
   return {
-    ...row,
-    camshaftId: cam!.id,
-    journalId: journal!.id,
-    seats: seatMap,
-    valveIn: new Map(valveRows.filter((v) => v.seatId).map((v) => [byId.get(v.seatId!)!, v.id])),
+    jobId: head.jobId,
+    headId: head.headId,
+    camshaftId: head.camshafts[0]!.id,
+    journalId: head.camshafts[0]!.journalIds[0]!,
+    seats: head.seatByCode,
+    valveIn: new Map(valveRows.filter((v) => v.seatId).map((v) => [codeOf.get(v.seatId!)!, v.id])),
   };
 }
 
