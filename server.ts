@@ -6,8 +6,9 @@
 // check from the session cookie. `npm run dev` runs plain `next dev`, where the route handler
 // answers the same request.
 //
-// Built into .next/grindfade-server.mjs by `npm run build` (scripts/build-server.mjs).
+// Built into .next/grindfade-server.cjs by `npm run build` (scripts/server-bundles.mjs).
 import http from "node:http";
+import path from "node:path";
 import { parseArgs } from "node:util";
 
 const { values: args } = parseArgs({
@@ -18,7 +19,11 @@ const port = Number(args.port ?? process.env.PORT ?? 3000);
 const hostname = String(args.hostname ?? process.env.HOSTNAME ?? "0.0.0.0");
 
 async function main(): Promise<void> {
-  (process.env as Record<string, string | undefined>).NODE_ENV ??= "production";
+  const env = process.env as Record<string, string | undefined>;
+  env.NODE_ENV ??= "production";
+  // PGlite on a thread of its own, built beside this file: the database's work then runs on the
+  // second core instead of taking turns with HTTP on this one. GRINDFADE_DB_THREAD=off keeps it here.
+  env.GRINDFADE_DB_THREAD ??= path.join(__dirname, "grindfade-db-thread.cjs");
   const { default: next } = await import("next");
   const app = next({ dev: false, hostname, port, dir: process.cwd() });
   const handle = app.getRequestHandler();

@@ -9,12 +9,15 @@ import * as schema from "./schema";
 import { DatabaseStartError, DatabaseStoppingError } from "@/lib/errors";
 import { serverEnv } from "@/lib/env";
 import { installGracefulShutdown } from "./shutdown";
+import { registerStrokeWriter } from "./stroke-writers";
 
 export type Db = PgDatabase<PgQueryResultHKT, typeof schema>;
 
 export interface DatabaseHandle {
   db: Db;
   kind: "pglite" | "postgres";
+  /** PGlite runs on a thread of its own (db/pglite-thread.ts). */
+  onThread?: boolean;
   /** True while a query or transaction is running or waiting for its turn. */
   busy(): boolean;
   close(): Promise<void>;
@@ -65,22 +68,45 @@ export function checkPgliteDirectory(dir: string): "new" | "existing" {
   return "existing";
 }
 
-async function openPglite(dir: string): Promise<DatabaseHandle> {
+/** Where PGlite runs: on the app's own thread, or on a thread of its own (the built db/pglite-thread script). */
+export interface PgliteOptions {
+  thread?: { script: string | URL; execArgv?: string[] };
+}
+
+function cannotOpen(dir: string, err: unknown): DatabaseStartError {
+  return new DatabaseStartError(
+    `GRINDFADE_DATA_DIR: the database in ${dir} could not be opened (${String(err)}). ` +
+      `It may be damaged or in use by another process; stop other Grindfade processes, ` +
+      `or restore it from a backup. It was left untouched.`,
+  );
+}
+
+async function openPglite(dir: string, options: PgliteOptions = {}): Promise<DatabaseHandle> {
   checkPgliteDirectory(dir);
   fs.mkdirSync(dir, { recursive: true });
-  const { PGlite } = await import("@electric-sql/pglite");
   const { drizzle } = await import("drizzle-orm/pglite");
   const { migrate } = await import("drizzle-orm/pglite/migrator");
+  if (options.thread) {
+    const { RemotePglite } = await import("./pglite-remote");
+    let remote: Awaited<ReturnType<typeof RemotePglite.open>>;
+    try {
+      remote = await RemotePglite.open(dir, options.thread.script, { execArgv: options.thread.execArgv });
+    } catch (err) {
+      throw cannotOpen(dir, err);
+    }
+    // drizzle's PGlite driver calls only what RemotePglite answers: query, exec and transaction.
+    const db = drizzle({ client: remote as never, schema }) as unknown as Db;
+    await migrate(db as never, { migrationsFolder: migrationsFolder() });
+    registerStrokeWriter(db, (batch) => remote.saveStrokeBatch(batch));
+    return { db, kind: "pglite", onThread: true, busy: () => remote.busy(), close: () => remote.close() };
+  }
+  const { PGlite } = await import("@electric-sql/pglite");
   let client: InstanceType<typeof PGlite>;
   try {
     client = new PGlite(dir);
     await client.waitReady;
   } catch (err) {
-    throw new DatabaseStartError(
-      `GRINDFADE_DATA_DIR: the database in ${dir} could not be opened (${String(err)}). ` +
-        `It may be damaged or in use by another process; stop other Grindfade processes, ` +
-        `or restore it from a backup. It was left untouched.`,
-    );
+    throw cannotOpen(dir, err);
   }
   const busy = countActivity(client);
   const db = drizzle({ client, schema });
@@ -135,10 +161,11 @@ async function openPostgres(url: string): Promise<DatabaseHandle> {
 export async function openDatabase(options: {
   databaseUrl?: string;
   pgliteDir?: string;
+  pglite?: PgliteOptions;
 }): Promise<DatabaseHandle> {
   if (options.databaseUrl) return openPostgres(options.databaseUrl);
   if (!options.pgliteDir) throw new DatabaseStartError("No database configured.");
-  return openPglite(options.pgliteDir);
+  return openPglite(options.pgliteDir, options.pglite);
 }
 
 // On globalThis, not in module variables: Next bundles this module more than once (start-up
@@ -154,7 +181,8 @@ export function getDatabase(): Promise<DatabaseHandle> {
   if (!g.__grindfadeDb) {
     const env = serverEnv();
     const opening = (async () => {
-      const handle = await openDatabase({ databaseUrl: env.DATABASE_URL, pgliteDir: env.pgliteDir });
+      const thread = env.GRINDFADE_DB_THREAD && env.GRINDFADE_DB_THREAD !== "off" ? { script: env.GRINDFADE_DB_THREAD } : undefined;
+      const handle = await openDatabase({ databaseUrl: env.DATABASE_URL, pgliteDir: env.pgliteDir, pglite: { thread } });
       if (env.GRINDFADE_SEED === "demo") {
         const { seedDemoShop } = await import("./seed");
         await seedDemoShop(handle.db);

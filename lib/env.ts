@@ -17,6 +17,9 @@ const schema = z.object({
   GRINDFADE_SIGNIN_LOCK_MINUTES: z.coerce.number().int().min(1).max(24 * 60).default(15),
   // Wrong passwords from one network address (any accounts) before it must wait.
   GRINDFADE_SIGNIN_MAX_PER_ADDRESS: z.coerce.number().int().min(1).max(10_000).default(30),
+  // The built database thread (db/pglite-thread.ts) that PGlite runs on; the production server
+  // sets it. "off", or unset, keeps PGlite on the app's own thread, as `next dev` and tests do.
+  GRINDFADE_DB_THREAD: z.string().trim().min(1).optional(),
   NEXTAUTH_SECRET: z.string().min(16).optional(),
   NEXTAUTH_URL: z.string().url().optional(),
   // Recordings and photos go to this S3 bucket instead of the data directory when it is set.

@@ -79,25 +79,25 @@ export interface ApiErrorBody {
   fieldErrors?: Record<string, string[]>;
 }
 
-export function errorResponse(err: unknown): NextResponse<ApiErrorBody> {
+/** The status and JSON body an error is answered with (errorResponse, and the production server's own stroke path). */
+export function errorAnswer(err: unknown): { status: number; body: ApiErrorBody } {
   if (err instanceof ZodError) {
-    return NextResponse.json(
-      { error: "bad_request", message: "Some values are not valid.", fieldErrors: fieldErrorsOf(err) },
-      { status: 400 },
-    );
+    return { status: 400, body: { error: "bad_request", message: "Some values are not valid.", fieldErrors: fieldErrorsOf(err) } };
   }
   if (err instanceof AppError) {
     const body: ApiErrorBody = { error: codeFor(err.status), message: err.message };
     if (err instanceof BadRequestError && Object.keys(err.fieldErrors).length) {
       body.fieldErrors = err.fieldErrors;
     }
-    return NextResponse.json(body, { status: err.status });
+    return { status: err.status, body };
   }
   console.error(err);
-  return NextResponse.json(
-    { error: "internal", message: "Something went wrong on the server. Try again in a moment." },
-    { status: 500 },
-  );
+  return { status: 500, body: { error: "internal", message: "Something went wrong on the server. Try again in a moment." } };
+}
+
+export function errorResponse(err: unknown): NextResponse<ApiErrorBody> {
+  const { status, body } = errorAnswer(err);
+  return NextResponse.json(body, { status });
 }
 
 function codeFor(status: number): string {

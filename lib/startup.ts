@@ -7,8 +7,8 @@ import { startMailWorker } from "@/lib/mail/worker";
 
 export async function startServer(): Promise<void> {
   try {
-    const { kind } = await getDatabase();
-    console.log(`Grindfade database ready (${kind}).`);
+    const { kind, onThread } = await getDatabase();
+    console.log(`Grindfade database ready (${kind}${onThread ? ", on its own thread" : ""}).`);
     // Tests shorten the worker's pause between passes; 30 s is plenty for a shop.
     const intervalMs = Number(process.env.GRINDFADE_MAIL_INTERVAL_MS) || 30_000;
     const worker = startMailWorker(getDb, Math.max(250, intervalMs));

@@ -2,6 +2,7 @@
 // server's own request path (server.ts), which runs outside Next.js's request context and so
 // cannot use getServerSession. The token is the same one next-auth writes and checks.
 import { hkdfSync } from "node:crypto";
+import type { IncomingHttpHeaders } from "node:http";
 import { jwtDecrypt } from "jose";
 import { getToken, type JWT } from "next-auth/jwt";
 import type { UserRole } from "@/db/schema";
@@ -20,9 +21,29 @@ function encryptionKey(secret: string): Uint8Array {
   return key;
 }
 
+// The same phone sends the same token with every stroke: a token read once is kept, by its exact
+// text, until it expires. A token is sealed (A256GCM), so the same text always opens to the same
+// claims; only tokens that opened are kept, at most MAX_KEPT, the oldest going first.
+const MAX_KEPT = 5000;
+const CLOCK_TOLERANCE_S = 15;
+const opened = new Map<string, { secret: string; payload: JWT }>();
+
+function stillValid(payload: JWT): boolean {
+  const exp = typeof payload.exp === "number" ? payload.exp : Number.POSITIVE_INFINITY;
+  return Date.now() / 1000 <= exp + CLOCK_TOLERANCE_S;
+}
+
 async function decode({ token, secret }: { token?: string; secret: string | Buffer }): Promise<JWT | null> {
   if (!token) return null;
-  const { payload } = await jwtDecrypt(token, encryptionKey(String(secret)), { clockTolerance: 15 });
+  const key = String(secret);
+  const kept = opened.get(token);
+  if (kept && kept.secret === key) {
+    if (stillValid(kept.payload)) return kept.payload;
+    opened.delete(token);
+  }
+  const { payload } = await jwtDecrypt(token, encryptionKey(key), { clockTolerance: CLOCK_TOLERANCE_S });
+  if (opened.size >= MAX_KEPT) opened.delete(opened.keys().next().value!);
+  opened.set(token, { secret: key, payload: payload as JWT });
   return payload as JWT;
 }
 
@@ -44,9 +65,11 @@ function parseCookies(header: string | null): Map<string, string> {
   return jar;
 }
 
-export async function tokenUser(req: Request): Promise<{ id: string; role: UserRole } | null> {
+/** Who the session cookie names: from a web Request's headers, or from Node's own request headers. */
+export async function tokenUser(headers: Headers | IncomingHttpHeaders): Promise<{ id: string; role: UserRole } | null> {
+  const cookie = headers instanceof Headers ? headers.get("cookie") : (headers.cookie ?? null);
   const token = await getToken({
-    req: { headers: req.headers, cookies: parseCookies(req.headers.get("cookie")) } as unknown as Parameters<typeof getToken>[0]["req"],
+    req: { headers, cookies: parseCookies(cookie) } as unknown as Parameters<typeof getToken>[0]["req"],
     secret: process.env.NEXTAUTH_SECRET,
     decode,
   });

@@ -17,6 +17,7 @@ import { NotFoundError } from "@/lib/errors";
 import type { StrokeInput } from "@/lib/validations/bench";
 import { assertOpenForWork, assertOwnSession, judgeStage, SEAT_HOLD_REFRESH_SECONDS, SESSION_NOT_FOUND, seatStateFor, STROKE_ORDER_COLUMNS } from "./rules";
 import { assertCanWorkOn } from "@/lib/auth/job-access";
+import { strokeWriterFor } from "@/db/stroke-writers";
 
 export interface StrokeSaveResult {
   accepted: number;
@@ -329,7 +330,9 @@ export function strokeQueueFor(db: Db): StrokeSaveQueue {
   g.__grindfadeStrokeQueues ??= new WeakMap();
   let queue = g.__grindfadeStrokeQueues.get(db);
   if (!queue) {
-    queue = new StrokeSaveQueue((batch) => saveStrokeBatch(db, batch));
+    // On the database thread when PGlite runs there (db/pglite-thread.ts), else here.
+    const write = strokeWriterFor(db) ?? ((batch: StrokeSave[]) => saveStrokeBatch(db, batch));
+    queue = new StrokeSaveQueue(write);
     g.__grindfadeStrokeQueues.set(db, queue);
   }
   return queue;

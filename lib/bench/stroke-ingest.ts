@@ -7,19 +7,24 @@ import { getDb } from "@/db/client";
 import { forbiddenMessage } from "@/lib/auth/authorize";
 import { can } from "@/lib/auth/roles";
 import type { UserRole } from "@/db/schema";
-import { errorResponse, ForbiddenError, UnauthorizedError } from "@/lib/errors";
+import { errorAnswer, ForbiddenError, UnauthorizedError } from "@/lib/errors";
 import { isUuid, parseId, readJson } from "@/lib/http";
+import type { ZodType } from "zod";
 import { strokeBatchSchema } from "@/lib/validations/bench";
 import { strokeQueueFor } from "./stroke-batch";
 
 /** Who the request's session says is signed in; the users table has the last word. */
 export type SignedInUser = { id: string; role?: UserRole } | null;
 
+/** How the two doors hand over the body: read and checked against the schema, as readJson does. */
+export type BodyReader = <T>(schema: ZodType<T>) => Promise<T>;
+
 /**
  * Saves one or more strokes; a stroke already saved under its clientId is counted as a duplicate.
- * 201 when something new was stored, 200 when everything was a resend.
+ * 201 when something new was stored, 200 when everything was a resend. The answer's status and
+ * JSON body, for either door to send.
  */
-export async function postStrokes(req: Request, rawSessionId: string, signedIn: () => Promise<SignedInUser>): Promise<Response> {
+export async function answerStrokes(readBody: BodyReader, rawSessionId: string, signedIn: () => Promise<SignedInUser>): Promise<{ status: number; body: unknown }> {
   try {
     const user = await signedIn();
     // A session naming no well-formed user id is not a session of ours.
@@ -27,10 +32,16 @@ export async function postStrokes(req: Request, rawSessionId: string, signedIn: 
     // The role in the session answers early; the save checks it again against the users table.
     if (user.role && !can(user.role, "jobs:work")) throw new ForbiddenError(forbiddenMessage("jobs:work"));
     const sessionId = parseId(rawSessionId, "sessionId");
-    const { strokes } = await readJson(req, strokeBatchSchema);
+    const { strokes } = await readBody(strokeBatchSchema);
     const result = await strokeQueueFor(await getDb()).submit({ userId: user.id, sessionId, strokes });
-    return NextResponse.json(result, { status: result.accepted > 0 ? 201 : 200 });
+    return { status: result.accepted > 0 ? 201 : 200, body: result };
   } catch (err) {
-    return errorResponse(err);
+    return errorAnswer(err);
   }
+}
+
+/** The route handler's door. */
+export async function postStrokes(req: Request, rawSessionId: string, signedIn: () => Promise<SignedInUser>): Promise<Response> {
+  const { status, body } = await answerStrokes((schema) => readJson(req, schema), rawSessionId, signedIn);
+  return NextResponse.json(body, { status });
 }

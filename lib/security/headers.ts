@@ -116,7 +116,7 @@ export function checkOrigin(input: OriginInput): OriginVerdict {
  * X-Forwarded-Host behind a proxy), with NEXTAUTH_URL's origin also allowed. proxy.ts and the
  * production server's stroke path both ask this.
  */
-export function checkRequestOrigin(method: string, headers: Headers): OriginVerdict {
+export function checkRequestOrigin(method: string, headers: Pick<Headers, "get">): OriginVerdict {
   const url = process.env.NEXTAUTH_URL;
   return checkOrigin({
     method,

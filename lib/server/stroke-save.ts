@@ -3,8 +3,8 @@
 // check, the security headers and the signed-in check, then the same code as the route handler.
 import type http from "node:http";
 import { tokenUser } from "@/lib/auth/token";
-import { postStrokes } from "@/lib/bench/stroke-ingest";
-import { MAX_JSON_BYTES } from "@/lib/http";
+import { answerStrokes } from "@/lib/bench/stroke-ingest";
+import { MAX_JSON_BYTES, readJsonBytes } from "@/lib/http";
 import { API_POLICY, checkRequestOrigin, COMMON_HEADERS } from "@/lib/security/headers";
 
 const STROKE_SAVE = /^\/api\/sessions\/([^/]+)\/strokes$/;
@@ -55,7 +55,7 @@ function readBody(req: http.IncomingMessage, res: http.ServerResponse): Promise<
       }
     };
     req.on("data", onData);
-    req.once("end", () => resolve(Buffer.concat(chunks, total)));
+    req.once("end", () => resolve(chunks.length === 1 ? chunks[0]! : Buffer.concat(chunks, total)));
     req.once("error", () => reject(new RequestAbortedError()));
     req.once("close", () => {
       if (!req.complete) reject(new RequestAbortedError());
@@ -63,37 +63,42 @@ function readBody(req: http.IncomingMessage, res: http.ServerResponse): Promise<
   });
 }
 
-function requestHeaders(req: http.IncomingMessage): Headers {
-  const headers = new Headers();
-  for (let i = 0; i < req.rawHeaders.length; i += 2) headers.append(req.rawHeaders[i]!, req.rawHeaders[i + 1]!);
-  return headers;
+/** A header as Headers.get gives it: repeated values joined with ", ", null when absent. */
+function header(req: http.IncomingMessage, name: string): string | null {
+  const value = req.headers[name];
+  if (value === undefined) return null;
+  return Array.isArray(value) ? value.join(", ") : value;
+}
+
+// Node's request headers, read as the web Headers that proxy.ts's origin check takes.
+function originHeaders(req: http.IncomingMessage): Pick<Headers, "get"> {
+  return { get: (name: string) => header(req, name.toLowerCase()) };
 }
 
 export async function answerStrokeSave(req: http.IncomingMessage, res: http.ServerResponse, sessionId: string): Promise<void> {
-  const headers = requestHeaders(req);
   // The same refusal as proxy.ts gives every other change that does not come from our pages.
-  const verdict = checkRequestOrigin("POST", headers);
-  let response: Response;
+  const verdict = checkRequestOrigin("POST", originHeaders(req));
+  let answer: { status: number; body: unknown };
   if (!verdict.ok) {
     req.resume();
-    response = Response.json({ error: "forbidden", message: verdict.message }, { status: 403 });
+    answer = { status: 403, body: { error: "forbidden", message: verdict.message } };
   } else {
-    // A declared length over the limit is left in the headers, where readJson refuses it.
-    let body: Uint8Array<ArrayBuffer>;
+    let body: Buffer;
     try {
-      body = new Uint8Array(await readBody(req, res));
+      body = await readBody(req, res);
     } catch (err) {
       if (err instanceof RequestAbortedError) return;
       throw err;
     }
-    const request = new Request(`http://${headers.get("host") ?? "localhost"}${req.url}`, { method: "POST", headers, body });
-    response = await postStrokes(request, sessionId, () => tokenUser(request));
+    // A declared length over the limit is passed on, where readJsonBytes refuses it as readJson does.
+    const head = { contentType: header(req, "content-type"), contentLength: header(req, "content-length") };
+    answer = await answerStrokes((schema) => Promise.resolve().then(() => readJsonBytes(head, body, schema)), sessionId, () => tokenUser(req.headers));
   }
-  const body = Buffer.from(await response.arrayBuffer());
-  res.statusCode = response.status;
+  const json = Buffer.from(JSON.stringify(answer.body));
+  res.statusCode = answer.status;
   for (const [key, value] of Object.entries(COMMON_HEADERS)) res.setHeader(key, value);
   res.setHeader("Content-Security-Policy", API_POLICY);
-  response.headers.forEach((value, key) => res.setHeader(key, value));
-  res.setHeader("Content-Length", body.byteLength);
-  res.end(body);
+  res.setHeader("Content-Type", "application/json");
+  res.setHeader("Content-Length", json.byteLength);
+  res.end(json);
 }

@@ -1,19 +1,20 @@
 // The production server's stroke path reads who is signed in from the session cookie itself
 // (lib/auth/token.ts), with the key derived once. These tokens are written by next-auth's own
 // encode, so the check is against what next-auth produces, not against our own writer.
-import { afterEach, describe, expect, it } from "vitest";
+import { afterEach, describe, expect, it, vi } from "vitest";
 import { encode } from "next-auth/jwt";
 import { tokenUser } from "@/lib/auth/token";
 
 const SECRET = "token-test-secret-0123456789abcdef";
 
-function requestWith(cookie: string | null, url = "http://grindfade.test/api/sessions/x/strokes"): Request {
-  return new Request(url, { method: "POST", headers: cookie ? { cookie } : {} });
+function requestWith(cookie: string | null, url = "http://grindfade.test/api/sessions/x/strokes"): Headers {
+  return new Request(url, { method: "POST", headers: cookie ? { cookie } : {} }).headers;
 }
 
 const savedUrl = process.env.NEXTAUTH_URL;
 const savedSecret = process.env.NEXTAUTH_SECRET;
 afterEach(() => {
+  vi.useRealTimers();
   process.env.NEXTAUTH_URL = savedUrl;
   process.env.NEXTAUTH_SECRET = savedSecret;
 });
@@ -67,5 +68,32 @@ describe("the session token on a plain request", () => {
     expect(await tokenUser(requestWith(`next-auth.session-token=${jwt}`))).not.toBeNull();
     process.env.NEXTAUTH_SECRET = "a-rotated-secret-9876543210fedcba";
     expect(await tokenUser(requestWith(`next-auth.session-token=${jwt}`))).toBeNull();
+  });
+
+  it("reads Node's own request headers as the production server passes them", async () => {
+    process.env.NEXTAUTH_SECRET = SECRET;
+    process.env.NEXTAUTH_URL = "http://grindfade.test";
+    const jwt = await encode({ token: { uid: "user-6", role: "technician" }, secret: SECRET });
+    expect(await tokenUser({ cookie: `a=b; next-auth.session-token=${jwt}`, host: "grindfade.test" })).toEqual({ id: "user-6", role: "technician" });
+    expect(await tokenUser({ host: "grindfade.test" })).toBeNull();
+    // A bearer token, as next-auth's getToken reads it when there is no cookie.
+    expect(await tokenUser({ authorization: `Bearer ${encodeURIComponent(jwt)}` })).toEqual({ id: "user-6", role: "technician" });
+  });
+
+  it("stops answering for a token it has read once as soon as that token expires", async () => {
+    process.env.NEXTAUTH_SECRET = SECRET;
+    process.env.NEXTAUTH_URL = "http://grindfade.test";
+    vi.useFakeTimers({ toFake: ["Date"] });
+    vi.setSystemTime(new Date("2026-12-02T08:00:00Z"));
+    const jwt = await encode({ token: { uid: "user-7", role: "technician" }, secret: SECRET, maxAge: 3600 });
+    expect(await tokenUser(requestWith(`next-auth.session-token=${jwt}`))).toEqual({ id: "user-7", role: "technician" });
+    // Within next-auth's 15 s of clock tolerance past the expiry: still good.
+    vi.setSystemTime(new Date("2026-12-02T09:00:10Z"));
+    expect(await tokenUser(requestWith(`next-auth.session-token=${jwt}`))).toEqual({ id: "user-7", role: "technician" });
+    vi.setSystemTime(new Date("2026-12-02T09:00:20Z"));
+    expect(await tokenUser(requestWith(`next-auth.session-token=${jwt}`))).toBeNull();
+    // What decides is the token's own expiry against the clock, not a mark left by an earlier read.
+    vi.setSystemTime(new Date("2026-12-02T08:30:00Z"));
+    expect(await tokenUser(requestWith(`next-auth.session-token=${jwt}`))).toEqual({ id: "user-7", role: "technician" });
   });
 });

@@ -16,6 +16,7 @@ import { AppError } from "@/lib/errors";
 import { seatCode } from "@/lib/heads/layout";
 import { createHeadWithSeats } from "@/lib/heads/create";
 import type { StrokeInput } from "@/lib/validations/bench";
+import { strokeWriterFor } from "@/db/stroke-writers";
 import { freshPglite, freshServerDatabase, serverUrl, type TestDatabase } from "../helpers/db";
 import { syntheticStroke } from "../helpers/strokes";
 import { userIds } from "./helpers";
@@ -179,8 +180,19 @@ async function record(db: Db, tw: Twin) {
 }
 
 const server = serverUrl();
-const backends: Array<[string, () => Promise<TestDatabase>]> = [["PGlite", freshPglite]];
+const backends: Array<[string, () => Promise<TestDatabase>]> = [
+  ["PGlite", () => freshPglite()],
+  // As the production server runs it: the batches are written on the database thread, while the
+  // one-at-a-time saves they are compared with run here and reach it statement by statement.
+  ["PGlite on a thread of its own", () => freshPglite({ thread: true })],
+];
 if (server) backends.push(["PostgreSQL server", () => freshServerDatabase(server)]);
+
+/** A batch as the save queue writes it: on the database's thread when it has one (db/stroke-writers.ts). */
+function writeBatch(db: Db, batch: StrokeSave[]): Promise<StrokeSaveOutcome[]> {
+  const writer = strokeWriterFor(db);
+  return writer ? writer(batch) : saveStrokeBatch(db, batch);
+}
 
 describe.each(backends)("a batch of stroke saves on %s", (_name, open) => {
   beforeAll(async () => {
@@ -209,7 +221,7 @@ describe.each(backends)("a batch of stroke saves on %s", (_name, open) => {
     for (let at = 0; at < steps.length; ) {
       const size = 1 + Math.floor(rand() * 24);
       const chunk = steps.slice(at, at + size);
-      const outcomes = await saveStrokeBatch(t.db, chunk.map((s) => saveFor(many, s)));
+      const outcomes = await writeBatch(t.db, chunk.map((s) => saveFor(many, s)));
       expect(outcomes).toHaveLength(chunk.length);
       batched.push(...outcomes.map((o) => comparable(o, many)));
       at += size;
@@ -265,7 +277,7 @@ describe.each(backends)("a batch of stroke saves on %s", (_name, open) => {
     // Past validation (the route's schema would refuse it), the table's own check refuses it.
     const bad: StrokeInput = { ...good(2), contrastDb: 99 };
     const saves = [good(1), bad, good(3)].map((s) => ({ userId: people.get(INES)!, sessionId: tw.sessions.get(code!)!.coarse, strokes: [s] }));
-    const outcomes = await saveStrokeBatch(t.db, saves);
+    const outcomes = await writeBatch(t.db, saves);
     expect(outcomes.map((o) => o.ok)).toEqual([true, false, true]);
     const stored = await t.db
       .select({ index: strokes.index })

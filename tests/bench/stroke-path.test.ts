@@ -29,31 +29,6 @@ let base: string;
 let ids: Map<string, string>;
 const saved = { secret: process.env.NEXTAUTH_SECRET, url: process.env.NEXTAUTH_URL };
 
-beforeAll(async () => {
-  state.t = await freshPglite();
-  await seedDemoShop(state.t.db);
-  ids = await userIds(state.t.db);
-  server = http.createServer((req, res) => {
-    const sessionId = strokeSaveTarget(req.method, req.url);
-    if (sessionId === null) {
-      res.statusCode = 599; // would have gone to Next.js
-      res.end();
-      return;
-    }
-    void answerStrokeSave(req, res, sessionId);
-  });
-  await new Promise<void>((r) => server.listen(0, "127.0.0.1", r));
-  base = `http://127.0.0.1:${(server.address() as AddressInfo).port}`;
-  process.env.NEXTAUTH_SECRET = SECRET;
-  process.env.NEXTAUTH_URL = base;
-});
-afterAll(async () => {
-  process.env.NEXTAUTH_SECRET = saved.secret;
-  process.env.NEXTAUTH_URL = saved.url;
-  await new Promise((r) => server?.close(r));
-  await state.t?.cleanup();
-});
-
 async function cookieFor(email: string): Promise<string> {
   const user = ids.get(email)!;
   const role = email.startsWith("admin") ? "admin" : email.startsWith("rhea") ? "supervisor" : "technician";
@@ -96,7 +71,37 @@ async function both(sent: Sent) {
   return { server, route: { status: routeRes.status, body: await routeRes.json() } };
 }
 
-describe("stroke saves on the production server's own path", () => {
+// Both as `next dev` keeps PGlite (on the app's thread) and as the production server runs it (on a
+// thread of its own, where the save queue's batches are written).
+describe.each([
+  ["on the app's thread", false],
+  ["on a thread of its own", true],
+])("stroke saves on the production server's own path, PGlite %s", (_where, thread) => {
+  beforeAll(async () => {
+    state.t = await freshPglite({ thread });
+    await seedDemoShop(state.t.db);
+    ids = await userIds(state.t.db);
+    server = http.createServer((req, res) => {
+      const sessionId = strokeSaveTarget(req.method, req.url);
+      if (sessionId === null) {
+        res.statusCode = 599; // would have gone to Next.js
+        res.end();
+        return;
+      }
+      void answerStrokeSave(req, res, sessionId);
+    });
+    await new Promise<void>((r) => server.listen(0, "127.0.0.1", r));
+    base = `http://127.0.0.1:${(server.address() as AddressInfo).port}`;
+    process.env.NEXTAUTH_SECRET = SECRET;
+    process.env.NEXTAUTH_URL = base;
+  });
+  afterAll(async () => {
+    process.env.NEXTAUTH_SECRET = saved.secret;
+    process.env.NEXTAUTH_URL = saved.url;
+    await new Promise((r) => server?.close(r));
+    await state.t?.cleanup();
+  });
+
   it("routes only POST /api/sessions/{id}/strokes to it", () => {
     const id = randomUUID();
     expect(strokeSaveTarget("POST", `/api/sessions/${id}/strokes`)).toBe(id);

@@ -10,10 +10,29 @@ export interface TestDatabase extends DatabaseHandle {
   dir?: string;
 }
 
-export async function freshPglite(): Promise<TestDatabase> {
+let threadScript: Promise<string> | null = null;
+
+/**
+ * The database thread (db/pglite-thread.ts) built as `npm run build` builds it, once per test
+ * process, under node_modules/.cache so that its packages resolve as they do from .next.
+ */
+export function builtThreadScript(): Promise<string> {
+  threadScript ??= (async () => {
+    const outdir = fs.mkdtempSync(path.join(process.cwd(), "node_modules", ".cache", "grindfade-thread-"));
+    // @ts-expect-error -- a plain .mjs build script without types
+    const { buildServerBundles } = (await import("../../scripts/server-bundles.mjs")) as { buildServerBundles(outdir: string, entries?: string[]): Promise<Record<string, string>> };
+    const built = await buildServerBundles(outdir, ["db/pglite-thread.ts"]);
+    return path.resolve(built["db/pglite-thread.ts"]!);
+  })();
+  return threadScript;
+}
+
+/** A fresh PGlite; `thread: true` runs it on a thread of its own, as the production server does. */
+export async function freshPglite(options: { thread?: boolean } = {}): Promise<TestDatabase> {
   const dir = fs.mkdtempSync(path.join(os.tmpdir(), "grindfade-test-"));
   const pgliteDir = path.join(dir, "pglite");
-  const handle = await openDatabase({ pgliteDir });
+  const thread = options.thread ? { script: await builtThreadScript() } : undefined;
+  const handle = await openDatabase({ pgliteDir, pglite: { thread } });
   return {
     ...handle,
     dir: pgliteDir,
