@@ -3,15 +3,36 @@
 import { NextResponse } from "next/server";
 import { ZodError } from "zod";
 
+// Every error carries the kinds it is (its class and those above it) under a process-wide symbol,
+// and `instanceof` reads them: the production server's own bundle, Next.js's bundle and the
+// database thread each hold a copy of these classes, and an error made by one copy must still be
+// recognised by another (a refusal from the database thread, answered by the server's stroke path).
+const KINDS = Symbol.for("grindfade.error.kinds");
+
 export class AppError extends Error {
+  static readonly kind: string = "AppError";
   readonly status: number = 500;
   constructor(message: string) {
     super(message);
     this.name = new.target.name;
+    const kinds: string[] = [];
+    for (let c: unknown = new.target; typeof c === "function" && c !== Error; c = Object.getPrototypeOf(c)) {
+      const kind = (c as { kind?: unknown }).kind;
+      if (typeof kind === "string" && Object.hasOwn(c, "kind")) kinds.push(kind);
+    }
+    Object.defineProperty(this, KINDS, { value: kinds, enumerable: false });
+  }
+
+  static [Symbol.hasInstance](value: unknown): boolean {
+    if (typeof value !== "object" || value === null) return false;
+    const kinds = (value as { [KINDS]?: unknown })[KINDS];
+    if (Array.isArray(kinds)) return kinds.includes((this as unknown as { kind: string }).kind);
+    return Function.prototype[Symbol.hasInstance].call(this, value);
   }
 }
 
 export class BadRequestError extends AppError {
+  static override readonly kind: string = "BadRequestError";
   override readonly status = 400;
   constructor(
     message: string,
@@ -22,6 +43,7 @@ export class BadRequestError extends AppError {
 }
 
 export class UnauthorizedError extends AppError {
+  static override readonly kind: string = "UnauthorizedError";
   override readonly status = 401;
   constructor(message = "Sign in to continue.") {
     super(message);
@@ -29,6 +51,7 @@ export class UnauthorizedError extends AppError {
 }
 
 export class ForbiddenError extends AppError {
+  static override readonly kind: string = "ForbiddenError";
   override readonly status = 403;
   constructor(message = "Your role does not allow this.") {
     super(message);
@@ -36,27 +59,33 @@ export class ForbiddenError extends AppError {
 }
 
 export class NotFoundError extends AppError {
+  static override readonly kind: string = "NotFoundError";
   override readonly status = 404;
 }
 
 export class ConflictError extends AppError {
+  static override readonly kind: string = "ConflictError";
   override readonly status = 409;
 }
 
 export class PayloadTooLargeError extends AppError {
+  static override readonly kind: string = "PayloadTooLargeError";
   override readonly status = 413;
 }
 
 export class UnsupportedMediaTypeError extends AppError {
+  static override readonly kind: string = "UnsupportedMediaTypeError";
   override readonly status = 415;
 }
 
 export class DatabaseStartError extends AppError {
+  static override readonly kind: string = "DatabaseStartError";
   override readonly status = 503;
 }
 
 /** The server is stopping: the request was not carried out and can be sent again. */
 export class DatabaseStoppingError extends AppError {
+  static override readonly kind: string = "DatabaseStoppingError";
   override readonly status = 503;
   constructor(message = "Grindfade is restarting; nothing was changed. Send it again in a moment.") {
     super(message);

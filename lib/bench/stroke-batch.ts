@@ -18,6 +18,7 @@ import type { StrokeInput } from "@/lib/validations/bench";
 import { assertOpenForWork, assertOwnSession, judgeStage, SEAT_HOLD_REFRESH_SECONDS, SESSION_NOT_FOUND, seatStateFor, STROKE_ORDER_COLUMNS } from "./rules";
 import { assertCanWorkOn } from "@/lib/auth/job-access";
 import { strokeWriterFor } from "@/db/stroke-writers";
+import { statementsFor, type Statements } from "./statements";
 
 export interface StrokeSaveResult {
   accepted: number;
@@ -56,7 +57,8 @@ export async function saveStrokes(db: Db, actor: Actor, sessionId: string, input
 export async function saveStrokeBatch(db: Db, batch: StrokeSave[]): Promise<StrokeSaveOutcome[]> {
   if (batch.length === 0) return [];
   try {
-    return await db.transaction((tx) => writeBatch(tx as unknown as Db, batch));
+    const statements = statementsFor(db);
+    return await db.transaction((tx) => writeBatch(tx as unknown as Db, batch, statements));
   } catch (err) {
     if (batch.length === 1) return [{ ok: false, error: err }];
     const outcomes: StrokeSaveOutcome[] = [];
@@ -65,36 +67,68 @@ export async function saveStrokeBatch(db: Db, batch: StrokeSave[]): Promise<Stro
   }
 }
 
-async function writeBatch(tx: Db, batch: StrokeSave[]): Promise<StrokeSaveOutcome[]> {
+type Context = {
+  sessionId: string;
+  session: { stage: LappingStage; technicianId: string; lastSeenAt: Date };
+  starterName: string;
+  seat: { id: string; state: SeatState; cylinder: number; kind: (typeof seats.$inferSelect)["kind"]; position: number };
+  job: { id: string; shopId: string; number: string; status: (typeof jobs.$inferSelect)["status"]; assignedTechnicianId: string | null };
+  valveId: string | null;
+  valveLappedIn: string | null;
+};
+
+async function writeBatch(tx: Db, batch: StrokeSave[], statements: Statements): Promise<StrokeSaveOutcome[]> {
+  await statements.begin(tx);
   const userIds = [...new Set(batch.map((s) => s.userId))];
   const sessionIds = [...new Set(batch.map((s) => s.sessionId))];
-  const people = await tx.select(actorColumns).from(users).where(inArray(users.id, userIds));
-  const personById = new Map(people.map((p) => [p.id, p]));
+  // Every statement below has one text whatever the batch, so that it can be planned once
+  // (lib/bench/statements.ts): lists go in as one array each.
+  type Person = { id: string; shop_id: string; name: string; email: string; role: Actor["role"]; active: boolean };
+  const people = await statements.rows<Person>(
+    tx,
+    "stroke_people",
+    sql`select ${users.id}, ${users.shopId}, ${users.name}, ${users.email}, ${users.role}, ${users.active} from ${users} where ${users.id} = any(${sql.param(userIds)}::uuid[])`,
+  );
+  const personById = new Map(people.map((p) => [p.id, { id: p.id, shopId: p.shop_id, name: p.name, email: p.email, role: p.role, active: p.active }]));
   // The sessions with their seats locked, in seat order: two batches (on a PostgreSQL server,
   // from two processes) always lock shared seats in the same order.
-  const contexts = await tx
-    .select({
-      sessionId: lappingSessions.id,
-      session: { stage: lappingSessions.stage, technicianId: lappingSessions.technicianId, lastSeenAt: lappingSessions.lastSeenAt },
-      starterName: users.name,
-      seat: { id: seats.id, state: seats.state, cylinder: seats.cylinder, kind: seats.kind, position: seats.position },
-      job: { id: jobs.id, shopId: jobs.shopId, number: jobs.number, status: jobs.status, assignedTechnicianId: jobs.assignedTechnicianId },
-      valveId: valves.id,
-      valveLappedIn: valves.lappedInSeatId,
-    })
-    .from(lappingSessions)
-    .innerJoin(users, eq(users.id, lappingSessions.technicianId))
-    .innerJoin(seats, eq(seats.id, lappingSessions.seatId))
-    .innerJoin(heads, eq(heads.id, seats.headId))
-    .innerJoin(jobs, eq(jobs.id, heads.jobId))
-    .leftJoin(valves, eq(valves.seatId, seats.id))
-    .where(inArray(lappingSessions.id, sessionIds))
-    .orderBy(asc(seats.id))
-    .for("update", { of: seats });
+  type ContextRow = {
+    session_id: string; stage: LappingStage; technician_id: string; last_seen_at: string | Date; starter_name: string;
+    seat_id: string; seat_state: SeatState; cylinder: number; kind: Context["seat"]["kind"]; position: number;
+    job_id: string; shop_id: string; number: string; status: Context["job"]["status"]; assigned_technician_id: string | null;
+    valve_id: string | null; lapped_in_seat_id: string | null;
+  };
+  const contextRows = await statements.rows<ContextRow>(
+    tx,
+    "stroke_contexts",
+    sql`select ${lappingSessions.id} as session_id, ${lappingSessions.stage} as stage, ${lappingSessions.technicianId} as technician_id,
+        ${lappingSessions.lastSeenAt} as last_seen_at, ${users.name} as starter_name,
+        ${seats.id} as seat_id, ${seats.state} as seat_state, ${seats.cylinder} as cylinder, ${seats.kind} as kind, ${seats.position} as position,
+        ${jobs.id} as job_id, ${jobs.shopId} as shop_id, ${jobs.number} as number, ${jobs.status} as status, ${jobs.assignedTechnicianId} as assigned_technician_id,
+        ${valves.id} as valve_id, ${valves.lappedInSeatId} as lapped_in_seat_id
+      from ${lappingSessions}
+      inner join ${users} on ${users.id} = ${lappingSessions.technicianId}
+      inner join ${seats} on ${seats.id} = ${lappingSessions.seatId}
+      inner join ${heads} on ${heads.id} = ${seats.headId}
+      inner join ${jobs} on ${jobs.id} = ${heads.jobId}
+      left join ${valves} on ${valves.seatId} = ${seats.id}
+      where ${lappingSessions.id} = any(${sql.param(sessionIds)}::uuid[])
+      order by ${seats.id}
+      for update of ${seats}`,
+  );
+  const contexts: Context[] = contextRows.map((r) => ({
+    sessionId: r.session_id,
+    session: { stage: r.stage, technicianId: r.technician_id, lastSeenAt: new Date(r.last_seen_at) },
+    starterName: r.starter_name,
+    seat: { id: r.seat_id, state: r.seat_state, cylinder: r.cylinder, kind: r.kind, position: r.position },
+    job: { id: r.job_id, shopId: r.shop_id, number: r.number, status: r.status, assignedTechnicianId: r.assigned_technician_id },
+    valveId: r.valve_id,
+    valveLappedIn: r.lapped_in_seat_id,
+  }));
   const contextBySession = new Map(contexts.map((c) => [c.sessionId, c]));
 
   // The same checks, in the same order, as a save on its own.
-  type Ctx = (typeof contexts)[number];
+  type Ctx = Context;
   const outcomes: Array<StrokeSaveOutcome | null> = batch.map(() => null);
   const accepted: Array<{ save: StrokeSave; at: number; actor: Actor; ctx: Ctx }> = [];
   batch.forEach((save, at) => {
@@ -119,16 +153,18 @@ async function writeBatch(tx: Db, batch: StrokeSave[]): Promise<StrokeSaveOutcom
   const column = <K extends keyof (typeof rows)[number]>(key: K) => sql.param(rows.map((r) => r[key]));
   const names = [strokes.sessionId, strokes.clientId, strokes.index, strokes.startS, strokes.endS, strokes.onsetDb, strokes.bodyDb, strokes.contrastDb, strokes.flags];
   type Stored = { id: string; session_id: string; client_id: string };
-  const result: unknown = await tx.execute(sql`
+  const inserted = await statements.rows<Stored>(
+    tx,
+    "stroke_insert",
+    sql`
     insert into ${strokes} (${sql.join(names.map((c) => sql.identifier(c.name)), sql`, `)})
     select s, c, i, st, en, o, b, k, coalesce(string_to_array(nullif(f, ''), '|'), '{}')
     from unnest(${column("sessionId")}::uuid[], ${column("clientId")}::uuid[], ${column("index")}::int[],
       ${column("startS")}::real[], ${column("endS")}::real[], ${column("onsetDb")}::real[], ${column("bodyDb")}::real[],
       ${column("contrastDb")}::real[], ${sql.param(rows.map((r) => r.flags.join("|")))}::text[]) as u(s, c, i, st, en, o, b, k, f)
     on conflict (${sql.identifier(strokes.sessionId.name)}, ${sql.identifier(strokes.clientId.name)}) do nothing
-    returning ${sql.identifier(strokes.id.name)}, ${sql.identifier(strokes.sessionId.name)}, ${sql.identifier(strokes.clientId.name)}`);
-  // PGlite and node-postgres both answer with { rows }.
-  const inserted = (result as { rows: Stored[] }).rows;
+    returning ${sql.identifier(strokes.id.name)}, ${sql.identifier(strokes.sessionId.name)}, ${sql.identifier(strokes.clientId.name)}`,
+  );
   // Which save stored each new stroke: the first one in arrival order that carried it.
   const firstCarrier = new Map<string, number>();
   accepted.forEach(({ save }, k) => {
@@ -173,27 +209,26 @@ async function writeBatch(tx: Db, batch: StrokeSave[]): Promise<StrokeSaveOutcom
     STROKE_ORDER_COLUMNS.map((c) => sql`${c}`),
     sql`, `,
   );
-  const storedIds = inserted.length ? sql`array[${sql.join(inserted.map((r) => sql`${r.id}`), sql`, `)}]::uuid[]` : sql`'{}'::uuid[]`;
-  const curves = await tx
-    .select({
-      seatId: lappingSessions.seatId,
-      stage: lappingSessions.stage,
-      startS: sql<string>`string_agg(${strokes.startS}::text, ',' order by ${order})`,
-      contrastDb: sql<string>`string_agg(${strokes.contrastDb}::text, ',' order by ${order})`,
-      flags: sql<string>`string_agg(array_to_string(${strokes.flags}, '|'), ',' order by ${order})`,
-      by: sql<string>`string_agg(coalesce(array_position(${storedIds}, ${strokes.id}), 0)::text, ',' order by ${order})`,
-    })
-    .from(strokes)
-    .innerJoin(lappingSessions, eq(lappingSessions.id, strokes.sessionId))
-    .where(inArray(lappingSessions.seatId, seatIds))
-    .groupBy(lappingSessions.seatId, lappingSessions.stage);
+  const curves = await statements.rows<{ seat_id: string; stage: LappingStage; start_s: string; contrast_db: string; flags: string; by: string }>(
+    tx,
+    "stroke_curves",
+    sql`select ${lappingSessions.seatId} as seat_id, ${lappingSessions.stage} as stage,
+        string_agg(${strokes.startS}::text, ',' order by ${order}) as start_s,
+        string_agg(${strokes.contrastDb}::text, ',' order by ${order}) as contrast_db,
+        string_agg(array_to_string(${strokes.flags}, '|'), ',' order by ${order}) as flags,
+        string_agg(coalesce(array_position(${sql.param(inserted.map((r) => r.id))}::uuid[], ${strokes.id}), 0)::text, ',' order by ${order}) as by
+      from ${strokes}
+      inner join ${lappingSessions} on ${lappingSessions.id} = ${strokes.sessionId}
+      where ${lappingSessions.seatId} = any(${sql.param(seatIds)}::uuid[])
+      group by ${lappingSessions.seatId}, ${lappingSessions.stage}`,
+  );
   const bySeat = new Map<string, Array<{ stage: LappingStage; startS: number; contrastDb: number; flags: string[]; by: number | undefined }>>();
   for (const c of curves) {
-    const starts = c.startS.split(",");
-    const contrasts = c.contrastDb.split(",");
+    const starts = c.start_s.split(",");
+    const contrasts = c.contrast_db.split(",");
     const flags = c.flags.split(",");
     const by = c.by.split(",");
-    const list = bySeat.get(c.seatId) ?? [];
+    const list = bySeat.get(c.seat_id) ?? [];
     for (let n = 0; n < starts.length; n++) {
       const place = Number(by[n]);
       list.push({
@@ -204,7 +239,7 @@ async function writeBatch(tx: Db, batch: StrokeSave[]): Promise<StrokeSaveOutcom
         by: place > 0 ? storerOf[place - 1] : undefined,
       });
     }
-    bySeat.set(c.seatId, list);
+    bySeat.set(c.seat_id, list);
   }
 
   // Each save's verdict sees the strokes stored before it and its own, as it would on its own.

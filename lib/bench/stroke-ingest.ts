@@ -1,7 +1,7 @@
 // POST /api/sessions/{sessionId}/strokes, the busiest request the app answers: every phone at the
 // bench sends each stroke as it is heard. The route handler and the production server's own
 // request path (server.ts) both answer it here, so the two cannot drift apart; they differ only
-// in how they read who is signed in.
+// in how they read the body and who is signed in, and in how they send the answer.
 import { NextResponse } from "next/server";
 import { getDb } from "@/db/client";
 import { forbiddenMessage } from "@/lib/auth/authorize";

@@ -1,0 +1,127 @@
+// The stroke save's statements are PREPAREd on PGlite and EXECUTEd with their values written into
+// the statement's text (lib/bench/statements.ts). The reference for every value is PGlite's own
+// parameter binding: the same value bound as a parameter and written as a literal must arrive as
+// the same thing, for the awkward cases too (quotes, backslashes, braces, commas, NULLs in arrays,
+// non-ASCII text, tiny and huge numbers).
+import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { sql } from "drizzle-orm";
+import { literal, Statements, statementsFor } from "@/lib/bench/statements";
+import { freshPglite, freshServerDatabase, serverUrl, type TestDatabase } from "../helpers/db";
+
+let t: TestDatabase;
+beforeAll(async () => {
+  t = await freshPglite();
+});
+afterAll(async () => {
+  await t?.cleanup();
+});
+
+type Rows = { rows: Array<Record<string, unknown>> };
+const rows = async (statement: ReturnType<typeof sql>) => ((await t.db.execute(statement)) as unknown as Rows).rows;
+
+describe("a value written as a literal", () => {
+  const texts = ["", "plain", "it's", "''", "back\\slash", 'a "quoted" word', "{braces}", "a,b", "NULL", "null", "ü€𝄞", " lead and trail ", "new\nline", "tab\there"];
+  const numbers = [0, -0, 1.5, -273.15, 1e-7, 6.02e23, 2 ** 53 - 1, 0.1 + 0.2, 12.345678];
+  const uuids = ["00000000-0000-0000-0000-000000000000", "5b3f0c5e-8d9a-4c1e-9f6b-2a7d4e8c1b90"];
+
+  it("arrives as the same text, number or uuid as PGlite's own binding of it", async () => {
+    for (const [cast, values] of [
+      ["text", texts],
+      ["float8", numbers],
+      ["real", numbers],
+      ["int4", [0, -1, 2147483647]],
+      ["uuid", uuids],
+      ["bool", [true, false]],
+    ] as const) {
+      for (const v of values as readonly unknown[]) {
+        const bound = await rows(sql`select ${v}::${sql.raw(cast)} as v`);
+        const written = await rows(sql.raw(`select ${literal(v)}::${cast} as v`));
+        expect(written, `${cast} ${JSON.stringify(v)}`).toEqual(bound);
+      }
+    }
+  });
+
+  it("arrives as the same array, elements and NULLs included", async () => {
+    const cases: Array<[string, unknown[]]> = [
+      ["text[]", texts],
+      ["text[]", []],
+      ["text[]", ["a", null, "b"]],
+      ["real[]", numbers],
+      ["int4[]", [1, 2, 3]],
+      ["uuid[]", uuids],
+    ];
+    for (const [cast, values] of cases) {
+      const bound = await rows(sql`select ${sql.param(values)}::${sql.raw(cast)} as v`);
+      const written = await rows(sql.raw(`select ${literal(values)}::${cast} as v`));
+      expect(written, `${cast} ${JSON.stringify(values)}`).toEqual(bound);
+    }
+  });
+
+  it("is NULL for null, and refuses what it cannot write faithfully", () => {
+    expect(literal(null)).toBe("NULL");
+    expect(literal(undefined)).toBe("NULL");
+    expect(() => literal(Number.NaN)).toThrow(/finite/);
+    expect(() => literal(Number.POSITIVE_INFINITY)).toThrow(/finite/);
+    expect(() => literal("nul\u0000inside")).toThrow(/NUL/);
+    expect(() => literal({ an: "object" })).toThrow(/cannot be written/);
+  });
+
+  it("cannot end the literal early, whatever the text", async () => {
+    const hostile = "x'); drop table users; --";
+    expect(await rows(sql.raw(`select ${literal(hostile)}::text as v`))).toEqual([{ v: hostile }]);
+    expect(await rows(sql.raw(`select ${literal([hostile, '"}'])}::text[] as v`))).toEqual([{ v: [hostile, '"}'] }]);
+    expect(await rows(sql`select count(*)::int as n from users`)).toEqual([{ n: 0 }]);
+  });
+});
+
+describe("prepared statements", () => {
+  it("give the same rows as the statement run plainly, prepared once and reused", async () => {
+    const statements = statementsFor(t.db);
+    expect(statementsFor(t.db)).toBe(statements);
+    const query = (ids: string[], label: string) => sql`select id, ${label}::text as label from unnest(${sql.param(ids)}::uuid[]) with ordinality as u(id, n) order by n`;
+    for (const ids of [["5b3f0c5e-8d9a-4c1e-9f6b-2a7d4e8c1b90"], [], ["00000000-0000-0000-0000-000000000001", "00000000-0000-0000-0000-000000000002"]]) {
+      const plain = await rows(query(ids, "it's"));
+      const viaPrepared = await t.db.transaction(async (tx) => {
+        await statements.begin(tx as never);
+        return statements.rows(tx as never, "probe_ids", query(ids, "it's"));
+      });
+      expect(viaPrepared).toEqual(plain);
+    }
+    const named = await rows(sql`select count(*)::int as n from pg_prepared_statements where name like '%probe_ids'`);
+    expect(named).toEqual([{ n: 1 }]);
+  });
+
+  it("outlive a transaction that rolls back, as PostgreSQL's prepared statements do", async () => {
+    const statements = new Statements(true);
+    await t.db
+      .transaction(async (tx) => {
+        await statements.rows(tx as never, "probe_rollback", sql`select ${1}::int as v`);
+        throw new Error("roll back");
+      })
+      .catch(() => {});
+    const again = await t.db.transaction((tx) => statements.rows(tx as never, "probe_rollback", sql`select ${2}::int as v`));
+    expect(again).toEqual([{ v: 2 }]);
+  });
+
+  it("refuse a statement whose text changes under the same name", async () => {
+    const statements = new Statements(true);
+    await statements.rows(t.db, "probe_fixed", sql`select ${sql.param([1, 2])}::int[] as v`);
+    await expect(statements.rows(t.db, "probe_fixed", sql`select ${1}::int as v, ${2}::int as w`)).rejects.toThrow(/changed its text/);
+  });
+});
+
+const server = serverUrl();
+describe.skipIf(!server)("on a PostgreSQL server", () => {
+  it("runs the same statements unprepared", async () => {
+    const pg = await freshServerDatabase(server!);
+    try {
+      const statements = statementsFor(pg.db);
+      const result = await statements.rows(pg.db, "probe_server", sql`select ${"it's"}::text as v`);
+      expect(result).toEqual([{ v: "it's" }]);
+      const named = (await pg.db.execute(sql`select count(*)::int as n from pg_prepared_statements`)) as unknown as Rows;
+      expect(named.rows).toEqual([{ n: 0 }]);
+    } finally {
+      await pg.cleanup();
+    }
+  });
+});
