@@ -9,7 +9,7 @@ import * as schema from "./schema";
 import { DatabaseStartError, DatabaseStoppingError } from "@/lib/errors";
 import { serverEnv } from "@/lib/env";
 import { installGracefulShutdown } from "./shutdown";
-import { registerStrokeWriter } from "./stroke-writers";
+import { registerStrokeSubmitter } from "./stroke-writers";
 
 export type Db = PgDatabase<PgQueryResultHKT, typeof schema>;
 
@@ -97,7 +97,7 @@ async function openPglite(dir: string, options: PgliteOptions = {}): Promise<Dat
     // drizzle's PGlite driver calls only what RemotePglite answers: query, exec and transaction.
     const db = drizzle({ client: remote as never, schema }) as unknown as Db;
     await migrate(db as never, { migrationsFolder: migrationsFolder() });
-    registerStrokeWriter(db, (batch) => remote.saveStrokeBatch(batch));
+    registerStrokeSubmitter(db, (save) => remote.submitStrokes(save));
     return { db, kind: "pglite", onThread: true, busy: () => remote.busy(), close: () => remote.close() };
   }
   const { PGlite } = await import("@electric-sql/pglite");

@@ -3,7 +3,7 @@
 // transaction, close — each call a message to the thread and its answer. PGlite on the thread
 // still runs one statement or transaction at a time, in the order they arrive, as in-process.
 import { Worker } from "node:worker_threads";
-import type { StrokeSave, StrokeSaveOutcome } from "@/lib/bench/stroke-batch";
+import type { StrokeSave, StrokeSaveResult } from "@/lib/bench/stroke-batch";
 import { receiveError, type QueryRowMode, type SentError, type ThreadAnswer, type ThreadReady, type ThreadRequest } from "./pglite-thread-protocol";
 
 type Parsers = Record<number, (text: string, typeId: number) => unknown>;
@@ -162,10 +162,13 @@ export class RemotePglite {
     return result;
   }
 
-  /** A batch of stroke saves, written on the database thread (lib/bench/stroke-batch.ts). */
-  async saveStrokeBatch(batch: StrokeSave[]): Promise<StrokeSaveOutcome[]> {
-    const outcomes = await this.call<Array<StrokeSaveOutcome | { ok: false; error: SentError }>>({ op: "strokes", batch });
-    return outcomes.map((o) => (o.ok ? o : { ok: false, error: receiveError(o.error as SentError) }));
+  /**
+   * One stroke save, queued on the database thread: saves that arrive while a batch is written
+   * there go together into the next one (lib/bench/stroke-batch.ts). A refusal comes back as the
+   * error it was.
+   */
+  submitStrokes(save: StrokeSave): Promise<StrokeSaveResult> {
+    return this.call<StrokeSaveResult>({ op: "strokes", save });
   }
 
   /** True while a request is on its way to the thread or waiting for its answer. */

@@ -31,7 +31,8 @@ export type ThreadRequest =
   | { id: number; op: "exec"; sql: string; tx?: number }
   | { id: number; op: "begin" }
   | { id: number; op: "end"; tx: number; commit: boolean }
-  | { id: number; op: "strokes"; batch: unknown[] }
+  /** One stroke save, for the thread's save queue (lib/bench/stroke-batch.ts) to batch. */
+  | { id: number; op: "strokes"; save: unknown }
   | { id: number; op: "close" };
 
 export type ThreadAnswer =

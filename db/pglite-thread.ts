@@ -1,5 +1,5 @@
 // The embedded database on a thread of its own (a worker thread), as the production server runs
-// it: PGlite's engine and the stroke saves' batches (lib/bench/stroke-batch.ts) then run beside
+// it: PGlite's engine and the stroke save queue (lib/bench/stroke-batch.ts) then run beside
 // the thread that answers HTTP, instead of taking turns with it on one core. The app's thread
 // reaches it through db/pglite-remote.ts, which drizzle uses as it would PGlite itself.
 //
@@ -9,7 +9,7 @@ import type { PGlite as PGliteClass, Transaction } from "@electric-sql/pglite";
 import type { Db } from "./client";
 import * as schema from "./schema";
 import { sendError, type ThreadAnswer, type ThreadReady, type ThreadRequest } from "./pglite-thread-protocol";
-import type { StrokeSave, StrokeSaveOutcome } from "@/lib/bench/stroke-batch";
+import type { StrokeSave } from "@/lib/bench/stroke-batch";
 
 if (!parentPort) throw new Error("db/pglite-thread.ts runs as a worker thread.");
 const port = parentPort;
@@ -33,8 +33,11 @@ async function main(): Promise<void> {
     return;
   }
   const { drizzle } = await import("drizzle-orm/pglite");
-  const { saveStrokeBatch } = await import("@/lib/bench/stroke-batch");
+  const { strokeQueueFor } = await import("@/lib/bench/stroke-batch");
   const db = drizzle({ client, schema }) as unknown as Db;
+  // The save queue lives here, beside the database: a batch starts as soon as the one before it
+  // ends, with every save that arrived meanwhile, without waiting for the app's thread.
+  const strokeQueue = strokeQueueFor(db);
 
   const transactions = new Map<number, OpenTransaction>();
   // Each open transaction's outcome: settled by "end", or failed to begin.
@@ -112,10 +115,7 @@ async function main(): Promise<void> {
         });
         return;
       case "strokes":
-        answer(m.id, async () => {
-          const outcomes: StrokeSaveOutcome[] = await saveStrokeBatch(db, m.batch as StrokeSave[]);
-          return outcomes.map((o) => (o.ok ? o : { ok: false, error: sendError(o.error) }));
-        });
+        answer(m.id, () => strokeQueue.submit(m.save as StrokeSave));
         return;
       case "close":
         answer(m.id, async () => {

@@ -1,22 +1,23 @@
-// Who writes a batch of stroke saves for an open database, when it is not the app's own thread:
-// the database thread (db/pglite-thread.ts) writes them beside the PGlite it runs. On
-// globalThis, as the database itself is (db/client.ts): Next bundles these modules more than once.
-import type { StrokeSave, StrokeSaveOutcome } from "@/lib/bench/stroke-batch";
+// Who takes a stroke save for an open database, when it is not the app's own queue: the database
+// thread (db/pglite-thread.ts) keeps the save queue beside the PGlite it runs, so that a batch
+// starts the moment the one before it ends. On globalThis, as the database itself is
+// (db/client.ts): Next bundles these modules more than once.
+import type { StrokeSave, StrokeSaveResult } from "@/lib/bench/stroke-batch";
 
-export type StrokeWriter = (batch: StrokeSave[]) => Promise<StrokeSaveOutcome[]>;
+export type StrokeSubmitter = (save: StrokeSave) => Promise<StrokeSaveResult>;
 
-type GlobalWithWriters = typeof globalThis & { __grindfadeStrokeWriters?: WeakMap<object, StrokeWriter> };
+type GlobalWithSubmitters = typeof globalThis & { __grindfadeStrokeSubmitters?: WeakMap<object, StrokeSubmitter> };
 
-function writers(): WeakMap<object, StrokeWriter> {
-  const g = globalThis as GlobalWithWriters;
-  return (g.__grindfadeStrokeWriters ??= new WeakMap());
+function submitters(): WeakMap<object, StrokeSubmitter> {
+  const g = globalThis as GlobalWithSubmitters;
+  return (g.__grindfadeStrokeSubmitters ??= new WeakMap());
 }
 
-export function registerStrokeWriter(db: object, write: StrokeWriter): void {
-  writers().set(db, write);
+export function registerStrokeSubmitter(db: object, submit: StrokeSubmitter): void {
+  submitters().set(db, submit);
 }
 
-/** The writer registered for this database, or undefined: then the batch is written here. */
-export function strokeWriterFor(db: object): StrokeWriter | undefined {
-  return writers().get(db);
+/** The submitter registered for this database, or undefined: then the app's own queue writes the saves. */
+export function strokeSubmitterFor(db: object): StrokeSubmitter | undefined {
+  return submitters().get(db);
 }

@@ -17,7 +17,7 @@ import { NotFoundError } from "@/lib/errors";
 import type { StrokeInput } from "@/lib/validations/bench";
 import { assertOpenForWork, assertOwnSession, judgeStage, SEAT_HOLD_REFRESH_SECONDS, SESSION_NOT_FOUND, seatStateFor, STROKE_ORDER_COLUMNS } from "./rules";
 import { assertCanWorkOn } from "@/lib/auth/job-access";
-import { strokeWriterFor } from "@/db/stroke-writers";
+import { strokeSubmitterFor } from "@/db/stroke-writers";
 import { statementsFor, type Statements } from "./statements";
 
 export interface StrokeSaveResult {
@@ -356,18 +356,24 @@ export class StrokeSaveQueue {
 // production server's own request path (server.ts) is a bundle of its own.
 type GlobalWithQueues = typeof globalThis & { __grindfadeStrokeQueues?: WeakMap<Db, StrokeSaveQueue> };
 
+/** What takes a save: the process's queue, or the database thread's. */
+export interface StrokeSaveTaker {
+  submit(save: StrokeSave): Promise<StrokeSaveResult>;
+}
+
 /**
  * The process's queue for a database. One batch at a time: PGlite runs one transaction at a time
- * anyway, and on a server one batch of many saves costs about what one save did.
+ * anyway, and on a server one batch of many saves costs about what one save did. When PGlite runs
+ * on a thread of its own, the queue is there (db/pglite-thread.ts) and each save is handed to it.
  */
-export function strokeQueueFor(db: Db): StrokeSaveQueue {
+export function strokeQueueFor(db: Db): StrokeSaveTaker {
+  const submit = strokeSubmitterFor(db);
+  if (submit) return { submit };
   const g = globalThis as GlobalWithQueues;
   g.__grindfadeStrokeQueues ??= new WeakMap();
   let queue = g.__grindfadeStrokeQueues.get(db);
   if (!queue) {
-    // On the database thread when PGlite runs there (db/pglite-thread.ts), else here.
-    const write = strokeWriterFor(db) ?? ((batch: StrokeSave[]) => saveStrokeBatch(db, batch));
-    queue = new StrokeSaveQueue(write);
+    queue = new StrokeSaveQueue((batch) => saveStrokeBatch(db, batch));
     g.__grindfadeStrokeQueues.set(db, queue);
   }
   return queue;

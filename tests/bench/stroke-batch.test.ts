@@ -16,7 +16,7 @@ import { AppError } from "@/lib/errors";
 import { seatCode } from "@/lib/heads/layout";
 import { createHeadWithSeats } from "@/lib/heads/create";
 import type { StrokeInput } from "@/lib/validations/bench";
-import { strokeWriterFor } from "@/db/stroke-writers";
+import { strokeSubmitterFor } from "@/db/stroke-writers";
 import { freshPglite, freshServerDatabase, serverUrl, type TestDatabase } from "../helpers/db";
 import { syntheticStroke } from "../helpers/strokes";
 import { userIds } from "./helpers";
@@ -182,16 +182,19 @@ async function record(db: Db, tw: Twin) {
 const server = serverUrl();
 const backends: Array<[string, () => Promise<TestDatabase>]> = [
   ["PGlite", () => freshPglite()],
-  // As the production server runs it: the batches are written on the database thread, while the
-  // one-at-a-time saves they are compared with run here and reach it statement by statement.
+  // As the production server runs it: the batched saves go to the save queue on the database
+  // thread, all of a chunk at once, and it batches them as they arrive; the one-at-a-time saves
+  // they are compared with run here and reach the thread statement by statement.
   ["PGlite on a thread of its own", () => freshPglite({ thread: true })],
 ];
 if (server) backends.push(["PostgreSQL server", () => freshServerDatabase(server)]);
 
-/** A batch as the save queue writes it: on the database's thread when it has one (db/stroke-writers.ts). */
-function writeBatch(db: Db, batch: StrokeSave[]): Promise<StrokeSaveOutcome[]> {
-  const writer = strokeWriterFor(db);
-  return writer ? writer(batch) : saveStrokeBatch(db, batch);
+/** Saves sent together: to the database thread's queue when it has one (db/stroke-writers.ts), else as one batch here. */
+async function writeBatch(db: Db, batch: StrokeSave[]): Promise<StrokeSaveOutcome[]> {
+  const submit = strokeSubmitterFor(db);
+  if (!submit) return saveStrokeBatch(db, batch);
+  const settled = await Promise.allSettled(batch.map((save) => submit(save)));
+  return settled.map((o) => (o.status === "fulfilled" ? { ok: true, result: o.value } : { ok: false, error: o.reason }));
 }
 
 describe.each(backends)("a batch of stroke saves on %s", (_name, open) => {
