@@ -70,7 +70,7 @@ export function checkPgliteDirectory(dir: string): "new" | "existing" {
 
 /** Where PGlite runs: on the app's own thread, or on a thread of its own (the built db/pglite-thread script). */
 export interface PgliteOptions {
-  thread?: { script: string | URL; execArgv?: string[] };
+  thread?: { script: string | URL; execArgv?: string[]; onUnexpectedStop?: (err: Error) => void };
 }
 
 function cannotOpen(dir: string, err: unknown): DatabaseStartError {
@@ -94,6 +94,12 @@ async function openPglite(dir: string, options: PgliteOptions = {}): Promise<Dat
     } catch (err) {
       throw cannotOpen(dir, err);
     }
+    // Without its database the server can answer nothing: it stops with one line, and whatever
+    // restarts it gets a database that replays its log, as after any crash.
+    remote.onUnexpectedStop = options.thread.onUnexpectedStop ?? ((err) => {
+      console.error(`Grindfade cannot go on: ${err.message} The server stops; start it again.`);
+      process.exit(1);
+    });
     // drizzle's PGlite driver calls only what RemotePglite answers: query, exec and transaction.
     const db = drizzle({ client: remote as never, schema }) as unknown as Db;
     await migrate(db as never, { migrationsFolder: migrationsFolder() });

@@ -76,7 +76,11 @@ export class RemotePglite {
     return remote;
   }
 
+  /** Called once if the thread stops other than by close(): the database is gone for this process. */
+  onUnexpectedStop: ((err: Error) => void) | null = null;
+
   private stop(err: Error): void {
+    if (!this.stopped && this.onUnexpectedStop) this.onUnexpectedStop(err);
     this.stopped ??= err;
     this.closed = true;
     for (const p of this.pending.values()) p.reject(err);
@@ -182,6 +186,7 @@ export class RemotePglite {
     await this.call({ op: "close" });
     this.closed = true;
     this.stopped = new Error("The database is closed.");
+    this.onUnexpectedStop = null;
     await this.worker.terminate();
   }
 }

@@ -1,5 +1,6 @@
 // Load on the production build: stroke saves and seat reads from 50 concurrent connections,
-// driven by autocannon, on the embedded PGlite database and on a PostgreSQL server.
+// driven by autocannon (the paced saves by a scheduler of our own on node:http, see pacedSaves),
+// on the embedded PGlite database and on a PostgreSQL server.
 //
 // Each connection plays one bench phone: it laps seat after seat, one lapping session per seat
 // opened before the clock starts, and posts its strokes one per request (a fresh clientId
@@ -22,6 +23,7 @@
 import { execFileSync } from "node:child_process";
 import { randomUUID } from "node:crypto";
 import fs from "node:fs";
+import http from "node:http";
 import os from "node:os";
 import path from "node:path";
 import autocannon from "autocannon";
@@ -207,39 +209,29 @@ function percentile(sorted: Float64Array, p: number): number {
   return sorted[Math.min(sorted.length - 1, Math.max(0, Math.ceil(p * sorted.length) - 1))]!;
 }
 
-/** Runs autocannon instances side by side and gathers every response's status and latency. */
-/** An autocannon instance, started `startAfterMs` after the others' clock starts. */
-type Instance = autocannon.Options & { startAfterMs?: number };
+type Instance = autocannon.Options;
 
+/** Runs autocannon instances side by side and gathers every response's status and latency. */
 async function measure(pid: number | null, instances: Instance[]): Promise<Measured> {
   const latencies: number[] = [];
-  const corrected: number[] = [];
   const statuses = new Map<number, number>();
   const cpuBefore = cpuMs(pid);
   const started = process.hrtime.bigint();
   const results = await Promise.all(
     instances.map(
-      ({ startAfterMs = 0, ...opts }) =>
-        new Promise((wait) => setTimeout(wait, startAfterMs)).then(
-          () =>
+      (opts) =>
         new Promise<autocannon.Result>((resolve, reject) => {
           const instance = autocannon(opts, (err, result) => (err ? reject(err) : resolve(result)));
-          // Paced runs: a late answer also delays the saves that were due meanwhile on this
-          // connection, so each is counted with the wait it would have had (the usual
-          // correction for coordinated omission, as HdrHistogram's recordValueWithExpectedInterval).
-          const intervalMs = opts.connectionRate ? 1000 / opts.connectionRate : 0;
           instance.on("response", (_client, statusCode: number, _bytes: number, responseTime: number) => {
             latencies.push(responseTime);
-            if (intervalMs > 0) for (let late = responseTime - intervalMs; late > 0; late -= intervalMs) corrected.push(late);
             statuses.set(statusCode, (statuses.get(statusCode) ?? 0) + 1);
           });
         }),
-        ),
     ),
   );
   const seconds = Number(process.hrtime.bigint() - started) / 1e9;
   const cpuAfter = cpuMs(pid);
-  const sorted = Float64Array.from([...latencies, ...corrected]).sort();
+  const sorted = Float64Array.from(latencies).sort();
   let ok2xx = 0;
   for (const [code, n] of statuses) if (code >= 200 && code < 300) ok2xx += n;
   return {
@@ -261,13 +253,22 @@ async function measure(pid: number | null, instances: Instance[]): Promise<Measu
   };
 }
 
+/** The phone's next stroke: to its current seat's session, BENCH_STROKES_PER_SEAT to a seat. */
+function nextStroke(phone: Phone, c: number): { path: string; body: string } {
+  const round = Math.floor(phone.sent / STROKES_PER_SEAT);
+  const s = phone.sessions[round % phone.sessions.length]!;
+  const index = (phone.sent % STROKES_PER_SEAT) + 1 + Math.floor(round / phone.sessions.length) * STROKES_PER_SEAT;
+  phone.sent++;
+  const stroke = syntheticStroke(index, contrastAt(index, c * 1000 + round));
+  return { path: `/api/sessions/${s.sessionId}/strokes`, body: JSON.stringify({ strokes: [stroke] }) };
+}
+
 /**
- * Every phone posts its strokes over its own connection. Without a rate, each sends its next
- * stroke as soon as the last is answered (the most the server can take; with 50 connections
- * always waiting, latency is then queueing: 50 / throughput). With a rate, the phones together
- * offer that many saves a second, and the latency is what a save takes at that load.
+ * Every phone posts its strokes over its own connection, each as soon as the last is answered:
+ * the most the server can take. With 50 connections always waiting, latency is then queueing
+ * (50 / throughput, Little's law).
  */
-function strokeSaves(baseURL: string, pid: number | null, phones: Phone[], ratePerS?: number): Promise<Measured> {
+function strokeSaves(baseURL: string, pid: number | null, phones: Phone[]): Promise<Measured> {
   return measure(
     pid,
     phones.map((phone, c) => {
@@ -276,26 +277,92 @@ function strokeSaves(baseURL: string, pid: number | null, phones: Phone[], rateP
         url: baseURL,
         connections: 1,
         duration: DURATION_S,
-        // Paced phones are not in step: each starts its own rhythm a fraction of an interval later.
-        ...(ratePerS ? { connectionRate: ratePerS / phones.length, startAfterMs: (c * 1000) / ratePerS } : {}),
         headers: { "content-type": "application/json", origin: baseURL, cookie: phone.cookie },
-        requests: [
-          {
-            method: "POST",
-            setupRequest: (req) => {
-              const round = Math.floor(phone.sent / STROKES_PER_SEAT);
-              const s = phone.sessions[round % phone.sessions.length]!;
-              const index = (phone.sent % STROKES_PER_SEAT) + 1 + Math.floor(round / phone.sessions.length) * STROKES_PER_SEAT;
-              phone.sent++;
-              const contrastDb = contrastAt(index, c * 1000 + round);
-              const stroke = syntheticStroke(index, contrastDb);
-              return { ...req, path: `/api/sessions/${s.sessionId}/strokes`, body: JSON.stringify({ strokes: [stroke] }) };
-            },
-          },
-        ],
+        requests: [{ method: "POST", setupRequest: (req) => ({ ...req, ...nextStroke(phone, c) }) }],
       } satisfies Instance;
     }),
   );
+}
+
+function post(agent: http.Agent, base: URL, target: { path: string; body: string }, cookie: string): Promise<number> {
+  return new Promise((resolve, reject) => {
+    const req = http.request(
+      {
+        host: base.hostname,
+        port: base.port,
+        path: target.path,
+        method: "POST",
+        agent,
+        headers: { "content-type": "application/json", "content-length": Buffer.byteLength(target.body), origin: base.origin, cookie },
+      },
+      (res) => {
+        res.resume();
+        res.once("end", () => resolve(res.statusCode ?? 0));
+        res.once("error", reject);
+      },
+    );
+    req.once("error", reject);
+    req.end(target.body);
+  });
+}
+
+/**
+ * Paced saves: the phones together offer `rate` saves a second, evenly spread. Each phone sends
+ * on a fixed schedule, one save every phones ÷ rate seconds, phone c starting c ÷ rate seconds
+ * after phone 0, over one kept-alive connection with one save in flight, as the bench's outbox
+ * sends. A save that cannot go at its time, because the one before is still unanswered, goes as
+ * soon as that answer comes, and its latency counts from the time it was due: timing from the
+ * intended start, which corrects for coordinated omission. (autocannon's own rate option is a
+ * budget per second: each connection sends its share back to back, then waits for the next
+ * second, which offers bursts at the full rate of the server rather than a pace.)
+ */
+async function pacedSaves(baseURL: string, pid: number | null, phones: Phone[], rate: number): Promise<Measured> {
+  const base = new URL(baseURL);
+  const intervalMs = (1000 * phones.length) / rate;
+  const latencies: number[] = [];
+  const statuses = new Map<number, number>();
+  let requests = 0;
+  let errors = 0;
+  const cpuBefore = cpuMs(pid);
+  const t0 = performance.now();
+  const endAt = t0 + DURATION_S * 1000;
+  await Promise.all(
+    phones.map(async (phone, c) => {
+      const agent = new http.Agent({ keepAlive: true, maxSockets: 1 });
+      try {
+        for (let due = t0 + (c * 1000) / rate; due < endAt; due += intervalMs) {
+          const wait = due - performance.now();
+          if (wait > 0) await new Promise((r) => setTimeout(r, wait));
+          requests++;
+          try {
+            const status = await post(agent, base, nextStroke(phone, c), phone.cookie);
+            statuses.set(status, (statuses.get(status) ?? 0) + 1);
+            latencies.push(performance.now() - due);
+          } catch {
+            errors++;
+          }
+        }
+      } finally {
+        agent.destroy();
+      }
+    }),
+  );
+  const seconds = (performance.now() - t0) / 1000;
+  const cpuAfter = cpuMs(pid);
+  const count = (pred: (code: number) => boolean) => [...statuses].filter(([code]) => pred(code)).reduce((n, [, k]) => n + k, 0);
+  return {
+    requests,
+    ok2xx: count((code) => code >= 200 && code < 300),
+    created: count((code) => code === 201),
+    statuses,
+    errors,
+    timeouts: 0,
+    seconds,
+    latencies: Float64Array.from(latencies).sort(),
+    // Every save is waited for: none is left on its way at the stop.
+    inFlight: 0,
+    serverCpuMsPerRequest: cpuBefore !== null && cpuAfter !== null && latencies.length > 0 ? (cpuAfter - cpuBefore) / latencies.length : null,
+  };
 }
 
 function seatReads(baseURL: string, pid: number | null, cookie: string, seatIds: string[]): Promise<Measured> {
@@ -374,7 +441,7 @@ async function runOn(
     const row = { database, what: "stroke saves" as const, m: saves };
     console.log(describe(row));
     console.log(`${database}: saving strokes at ${RATE} a second for ${DURATION_S} s…`);
-    const paced = { database, what: "paced saves" as const, m: await strokeSaves(server.baseURL, pid, phones, RATE) };
+    const paced = { database, what: "paced saves" as const, m: await pacedSaves(server.baseURL, pid, phones, RATE) };
     console.log(describe(paced));
     const touched = phones.flatMap((p) =>
       p.sessions.slice(0, Math.min(p.sessions.length, Math.ceil(p.sent / STROKES_PER_SEAT))).map((s) => s.seatId),

@@ -3,14 +3,15 @@
 // running them (EXPLAIN ANALYZE on PGlite: about 1.2 ms to plan the seat lock, 0.3 ms to run it).
 // On PGlite each statement is therefore PREPAREd once per database and then EXECUTEd; a prepared
 // statement is PostgreSQL's own plan cache (the PREPARE statement, PostgreSQL manual, "SQL
-// Commands"). On a PostgreSQL server the same text runs as an ordinary statement.
+// Commands"). The EXECUTEs go to PGlite's exec(), several in one message. On a PostgreSQL server
+// the same text runs as an ordinary statement.
 //
 // EXECUTE takes its values in the statement's text. Each one is written as a quoted literal of
 // the text PGlite would have bound for it (arrays in PostgreSQL's array syntax), and every
 // parameter of these statements carries an explicit cast, so the value has the same type either
 // way; the quoting doubles single quotes, which is all a literal needs with
 // standard_conforming_strings on (PostgreSQL's default since 9.1).
-import { is, sql, type SQL } from "drizzle-orm";
+import { is, type SQL } from "drizzle-orm";
 import { PgDialect } from "drizzle-orm/pg-core";
 import { PgliteDatabase } from "drizzle-orm/pglite";
 import type { Db } from "@/db/client";
@@ -57,10 +58,26 @@ export function literal(value: unknown): string {
 
 type Rows<T> = { rows: T[] };
 
+/** PGlite's own client under a drizzle transaction (drizzle's PGlite session keeps it as `client`). */
+type SimpleClient = { exec(text: string): Promise<Array<Rows<unknown>>> };
+
+function pgliteClientOf(tx: Db): SimpleClient {
+  const client = (tx as unknown as { session?: { client?: Partial<SimpleClient> } }).session?.client;
+  if (!client || typeof client.exec !== "function") throw new Error("Prepared statements need PGlite's own client under the transaction.");
+  return client as SimpleClient;
+}
+
+/** A statement of the stroke save: its key (the name it is prepared under) and its query. */
+export interface Statement {
+  key: string;
+  query: SQL;
+}
+
 /** One database's prepared statements: on PGlite, named once each; elsewhere, none. */
 export class Statements {
   private readonly prepared = new Map<string, string>();
   private readonly prefix: string;
+  private readonly fresh = new WeakSet<object>();
 
   constructor(private readonly prepare: boolean) {
     // Names of their own per database object: two objects on one PGlite (the database thread and
@@ -69,30 +86,56 @@ export class Statements {
   }
 
   /**
-   * Called first in each transaction that runs these statements: a prepared statement is planned
+   * Called first in each transaction that runs these statements. A prepared statement is planned
    * anew for its first five runs and whenever PostgreSQL guesses a fresh plan would be cheaper,
    * which for these statements it always does; the point is to plan once (plan_cache_mode,
-   * PostgreSQL 12 and later). SET LOCAL ends with the transaction.
+   * PostgreSQL 12 and later). SET LOCAL ends with the transaction; it goes out with the
+   * transaction's first statements.
    */
-  async begin(tx: Db): Promise<void> {
-    if (this.prepare) await tx.execute(sql.raw("set local plan_cache_mode = force_generic_plan"));
+  begin(tx: Db): void {
+    if (this.prepare) this.fresh.add(tx);
   }
 
   /** Runs the statement named `key`; its text must be the same every time (its values may differ). */
   async rows<T>(tx: Db, key: string, query: SQL): Promise<T[]> {
-    if (!this.prepare) return ((await tx.execute(query)) as unknown as Rows<T>).rows;
-    const { sql: text, params } = dialect.sqlToQuery(query);
-    const name = this.prefix + key;
-    const known = this.prepared.get(name);
-    if (known === undefined) {
-      // Not undone by a rollback: a prepared statement belongs to the connection, not the transaction.
-      await tx.execute(sql.raw(`prepare ${name} as ${text}`));
-      this.prepared.set(name, text);
-    } else if (known !== text) {
-      throw new Error(`The statement ${key} changed its text; it must be fixed for it to be prepared.`);
+    const [rows] = await this.run(tx, [{ key, query }]);
+    return rows as T[];
+  }
+
+  /**
+   * Runs statements in order and gives each one's rows. On PGlite they go out together as one
+   * message in PostgreSQL's simple query protocol: PGlite's query() spends six exchanges with the
+   * engine on every statement (parse, describe, bind, describe, execute, sync), exec() two for
+   * all of them. On a server each runs as an ordinary statement.
+   */
+  async run(tx: Db, list: Statement[]): Promise<unknown[][]> {
+    if (!this.prepare) {
+      const out: unknown[][] = [];
+      for (const { query } of list) out.push(((await tx.execute(query)) as unknown as Rows<unknown>).rows);
+      return out;
     }
-    const call = params.length ? `execute ${name}(${params.map(literal).join(", ")})` : `execute ${name}`;
-    return ((await tx.execute(sql.raw(call))) as unknown as Rows<T>).rows;
+    const client = pgliteClientOf(tx);
+    const calls: string[] = [];
+    for (const { key, query } of list) {
+      const { sql: text, params } = dialect.sqlToQuery(query);
+      const name = this.prefix + key;
+      const known = this.prepared.get(name);
+      if (known === undefined) {
+        // On its own, and remembered only once it is done: a prepared statement belongs to the
+        // connection, not the transaction, so a rollback does not undo it, and preparing a
+        // name twice is an error.
+        await client.exec(`prepare ${name} as ${text}`);
+        this.prepared.set(name, text);
+      } else if (known !== text) {
+        throw new Error(`The statement ${key} changed its text; it must be fixed for it to be prepared.`);
+      }
+      calls.push(params.length ? `execute ${name}(${params.map(literal).join(", ")})` : `execute ${name}`);
+    }
+    const setup = this.fresh.has(tx) ? ["set local plan_cache_mode = force_generic_plan"] : [];
+    this.fresh.delete(tx);
+    const results = await client.exec([...setup, ...calls].join(";\n"));
+    if (results.length !== setup.length + calls.length) throw new Error(`Expected ${setup.length + calls.length} results, got ${results.length}.`);
+    return results.slice(setup.length).map((r) => r.rows);
   }
 }
 

@@ -78,18 +78,16 @@ type Context = {
 };
 
 async function writeBatch(tx: Db, batch: StrokeSave[], statements: Statements): Promise<StrokeSaveOutcome[]> {
-  await statements.begin(tx);
+  statements.begin(tx);
   const userIds = [...new Set(batch.map((s) => s.userId))];
   const sessionIds = [...new Set(batch.map((s) => s.sessionId))];
   // Every statement below has one text whatever the batch, so that it can be planned once
   // (lib/bench/statements.ts): lists go in as one array each.
   type Person = { id: string; shop_id: string; name: string; email: string; role: Actor["role"]; active: boolean };
-  const people = await statements.rows<Person>(
-    tx,
-    "stroke_people",
-    sql`select ${users.id}, ${users.shopId}, ${users.name}, ${users.email}, ${users.role}, ${users.active} from ${users} where ${users.id} = any(${sql.param(userIds)}::uuid[])`,
-  );
-  const personById = new Map(people.map((p) => [p.id, { id: p.id, shopId: p.shop_id, name: p.name, email: p.email, role: p.role, active: p.active }]));
+  const peopleQuery = {
+    key: "stroke_people",
+    query: sql`select ${users.id}, ${users.shopId}, ${users.name}, ${users.email}, ${users.role}, ${users.active} from ${users} where ${users.id} = any(${sql.param(userIds)}::uuid[])`,
+  };
   // The sessions with their seats locked, in seat order: two batches (on a PostgreSQL server,
   // from two processes) always lock shared seats in the same order.
   type ContextRow = {
@@ -98,10 +96,9 @@ async function writeBatch(tx: Db, batch: StrokeSave[], statements: Statements): 
     job_id: string; shop_id: string; number: string; status: Context["job"]["status"]; assigned_technician_id: string | null;
     valve_id: string | null; lapped_in_seat_id: string | null;
   };
-  const contextRows = await statements.rows<ContextRow>(
-    tx,
-    "stroke_contexts",
-    sql`select ${lappingSessions.id} as session_id, ${lappingSessions.stage} as stage, ${lappingSessions.technicianId} as technician_id,
+  const contextsQuery = {
+    key: "stroke_contexts",
+    query: sql`select ${lappingSessions.id} as session_id, ${lappingSessions.stage} as stage, ${lappingSessions.technicianId} as technician_id,
         ${lappingSessions.lastSeenAt} as last_seen_at, ${users.name} as starter_name,
         ${seats.id} as seat_id, ${seats.state} as seat_state, ${seats.cylinder} as cylinder, ${seats.kind} as kind, ${seats.position} as position,
         ${jobs.id} as job_id, ${jobs.shopId} as shop_id, ${jobs.number} as number, ${jobs.status} as status, ${jobs.assignedTechnicianId} as assigned_technician_id,
@@ -115,7 +112,10 @@ async function writeBatch(tx: Db, batch: StrokeSave[], statements: Statements): 
       where ${lappingSessions.id} = any(${sql.param(sessionIds)}::uuid[])
       order by ${seats.id}
       for update of ${seats}`,
-  );
+  };
+  // Both go out together (lib/bench/statements.ts).
+  const [peopleRows, contextRows] = (await statements.run(tx, [peopleQuery, contextsQuery])) as [Person[], ContextRow[]];
+  const personById = new Map(peopleRows.map((p) => [p.id, { id: p.id, shopId: p.shop_id, name: p.name, email: p.email, role: p.role, active: p.active }]));
   const contexts: Context[] = contextRows.map((r) => ({
     sessionId: r.session_id,
     session: { stage: r.stage, technicianId: r.technician_id, lastSeenAt: new Date(r.last_seen_at) },

@@ -238,6 +238,26 @@ describe("the database thread's boundary", () => {
     }
   });
 
+  it("tells the server once when its database thread dies, and not when it is closed", async () => {
+    const dir = fs.mkdtempSync(path.join(os.tmpdir(), "grindfade-remote-"));
+    try {
+      const script = await builtThreadScript();
+      const stops: string[] = [];
+      const onUnexpectedStop = (err: Error) => void stops.push(err.message);
+      const dying = await openDatabase({ pgliteDir: path.join(dir, "a"), pglite: { thread: { script, onUnexpectedStop } } });
+      const remote = (dying.db as unknown as { $client: { worker: { terminate(): Promise<number> } } }).$client;
+      await remote.worker.terminate();
+      await expect(dying.db.execute(sql`select 1`)).rejects.toMatchObject({ cause: { message: expect.stringMatching(/database thread stopped/) } });
+      await dying.close();
+      expect(stops).toEqual([expect.stringMatching(/^The database thread stopped \(exit code \d+\)\.$/)]);
+      const closing = await openDatabase({ pgliteDir: path.join(dir, "b"), pglite: { thread: { script, onUnexpectedStop } } });
+      await closing.close();
+      expect(stops).toHaveLength(1);
+    } finally {
+      fs.rmSync(dir, { recursive: true, force: true });
+    }
+  });
+
   it("refuses a data directory it cannot open, with the reason", async () => {
     const dir = fs.mkdtempSync(path.join(os.tmpdir(), "grindfade-remote-"));
     const pgliteDir = path.join(dir, "pglite");
