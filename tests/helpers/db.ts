@@ -18,7 +18,16 @@ let threadScript: Promise<string> | null = null;
  */
 export function builtThreadScript(): Promise<string> {
   threadScript ??= (async () => {
-    const outdir = fs.mkdtempSync(path.join(process.cwd(), "node_modules", ".cache", "grindfade-thread-"));
+    // node_modules/.cache is not there after a fresh install.
+    const cache = path.join(process.cwd(), "node_modules", ".cache");
+    fs.mkdirSync(cache, { recursive: true });
+    // One build per test process; test workers are not always let exit, so older builds are
+    // cleared here instead.
+    for (const old of fs.readdirSync(cache).filter((n) => n.startsWith("grindfade-thread-"))) {
+      const at = path.join(cache, old);
+      if (Date.now() - fs.statSync(at).mtimeMs > 3_600_000) fs.rmSync(at, { recursive: true, force: true });
+    }
+    const outdir = fs.mkdtempSync(path.join(cache, "grindfade-thread-"));
     // @ts-expect-error -- a plain .mjs build script without types
     const { buildServerBundles } = (await import("../../scripts/server-bundles.mjs")) as { buildServerBundles(outdir: string, entries?: string[]): Promise<Record<string, string>> };
     const built = await buildServerBundles(outdir, ["db/pglite-thread.ts"]);
