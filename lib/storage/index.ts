@@ -55,6 +55,9 @@ export class LocalDiskStore implements BlobStore {
     let bytes = 0;
     const max = options.maxBytes ?? Number.POSITIVE_INFINITY;
     const source = body instanceof Uint8Array ? Readable.from([body]) : Readable.fromWeb(body as import("node:stream/web").ReadableStream);
+    // The file is opened before the first byte: a write stream opens its file on its own time,
+    // and one refused early could otherwise create it after the clean-up below has run.
+    const handle = await fsp.open(temp, "w");
     try {
       await pipeline(
         source,
@@ -65,10 +68,11 @@ export class LocalDiskStore implements BlobStore {
             yield chunk;
           }
         },
-        fs.createWriteStream(temp),
+        handle.createWriteStream(),
       );
       await fsp.rename(temp, target);
     } catch (err) {
+      await handle.close().catch(() => {});
       await fsp.rm(temp, { force: true });
       throw err;
     }
