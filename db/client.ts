@@ -9,7 +9,7 @@ import * as schema from "./schema";
 import { DatabaseStartError, DatabaseStoppingError } from "@/lib/errors";
 import { serverEnv } from "@/lib/env";
 import { installGracefulShutdown } from "./shutdown";
-import { registerStrokeSubmitter } from "./stroke-writers";
+import { registerStrokeSubmitter } from "./stroke-submitters";
 
 export type Db = PgDatabase<PgQueryResultHKT, typeof schema>;
 

@@ -47,7 +47,11 @@ export class RemotePglite {
   private readonly rawTypesOf = new WeakMap<Parsers, number[]>();
   /** Resolved once the thread has opened the database (PGlite's own name for it). */
   readonly waitReady: Promise<void>;
-  closed = false;
+
+  /** PGlite's own name: the database is closed, or its thread has stopped. */
+  get closed(): boolean {
+    return this.stopped !== null;
+  }
 
   private constructor(private readonly worker: Worker) {
     this.waitReady = new Promise<void>((resolve, reject) => {
@@ -82,7 +86,6 @@ export class RemotePglite {
   private stop(err: Error): void {
     if (!this.stopped && this.onUnexpectedStop) this.onUnexpectedStop(err);
     this.stopped ??= err;
-    this.closed = true;
     for (const p of this.pending.values()) p.reject(err);
     this.pending.clear();
   }
@@ -184,9 +187,8 @@ export class RemotePglite {
   async close(): Promise<void> {
     if (this.stopped) return;
     await this.call({ op: "close" });
-    this.closed = true;
+    // Set before the thread ends, so its exit is not taken for an unexpected stop.
     this.stopped = new Error("The database is closed.");
-    this.onUnexpectedStop = null;
     await this.worker.terminate();
   }
 }

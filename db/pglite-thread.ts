@@ -79,12 +79,10 @@ async function main(): Promise<void> {
       case "begin": {
         // Answered once the transaction holds the database; its end is answered by "end".
         const txId = nextTx++;
-        let settle: ((commit: boolean) => void) | undefined;
         const done = client.transaction(
           (tx) =>
             new Promise<void>((resolve, reject) => {
-              settle = (commit) => (commit ? resolve() : reject(ROLLBACK));
-              transactions.set(txId, { tx, finish: (commit) => settle!(commit) });
+              transactions.set(txId, { tx, finish: (commit) => (commit ? resolve() : reject(ROLLBACK)) });
               port.postMessage({ id: m.id, ok: true, value: txId } satisfies ThreadAnswer);
             }),
         );

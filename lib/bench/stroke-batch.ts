@@ -17,7 +17,7 @@ import { NotFoundError } from "@/lib/errors";
 import type { StrokeInput } from "@/lib/validations/bench";
 import { assertOpenForWork, assertOwnSession, judgeStage, SEAT_HOLD_REFRESH_SECONDS, SESSION_NOT_FOUND, seatStateFor, STROKE_ORDER_COLUMNS } from "./rules";
 import { assertCanWorkOn } from "@/lib/auth/job-access";
-import { strokeSubmitterFor } from "@/db/stroke-writers";
+import { strokeSubmitterFor } from "@/db/stroke-submitters";
 import { statementsFor, type Statements } from "./statements";
 
 export interface StrokeSaveResult {
@@ -83,10 +83,11 @@ async function writeBatch(tx: Db, batch: StrokeSave[], statements: Statements): 
   const sessionIds = [...new Set(batch.map((s) => s.sessionId))];
   // Every statement below has one text whatever the batch, so that it can be planned once
   // (lib/bench/statements.ts): lists go in as one array each.
-  type Person = { id: string; shop_id: string; name: string; email: string; role: Actor["role"]; active: boolean };
+  type Person = Actor & { active: boolean };
   const peopleQuery = {
     key: "stroke_people",
-    query: sql`select ${users.id}, ${users.shopId}, ${users.name}, ${users.email}, ${users.role}, ${users.active} from ${users} where ${users.id} = any(${sql.param(userIds)}::uuid[])`,
+    query: sql`select ${users.id} as id, ${users.shopId} as "shopId", ${users.name} as name, ${users.email} as email, ${users.role} as role, ${users.active} as active
+      from ${users} where ${users.id} = any(${sql.param(userIds)}::uuid[])`,
   };
   // The sessions with their seats locked, in seat order: two batches (on a PostgreSQL server,
   // from two processes) always lock shared seats in the same order.
@@ -115,7 +116,7 @@ async function writeBatch(tx: Db, batch: StrokeSave[], statements: Statements): 
   };
   // Both go out together (lib/bench/statements.ts).
   const [peopleRows, contextRows] = (await statements.run(tx, [peopleQuery, contextsQuery])) as [Person[], ContextRow[]];
-  const personById = new Map(peopleRows.map((p) => [p.id, { id: p.id, shopId: p.shop_id, name: p.name, email: p.email, role: p.role, active: p.active }]));
+  const personById = new Map(peopleRows.map((p) => [p.id, p]));
   const contexts: Context[] = contextRows.map((r) => ({
     sessionId: r.session_id,
     session: { stage: r.stage, technicianId: r.technician_id, lastSeenAt: new Date(r.last_seen_at) },
@@ -128,9 +129,8 @@ async function writeBatch(tx: Db, batch: StrokeSave[], statements: Statements): 
   const contextBySession = new Map(contexts.map((c) => [c.sessionId, c]));
 
   // The same checks, in the same order, as a save on its own.
-  type Ctx = Context;
   const outcomes: Array<StrokeSaveOutcome | null> = batch.map(() => null);
-  const accepted: Array<{ save: StrokeSave; at: number; actor: Actor; ctx: Ctx }> = [];
+  const accepted: Array<{ save: StrokeSave; at: number; actor: Actor; ctx: Context }> = [];
   batch.forEach((save, at) => {
     try {
       const actor = authorize(actorFromRow(personById.get(save.userId)), "jobs:work");
@@ -244,7 +244,7 @@ async function writeBatch(tx: Db, batch: StrokeSave[], statements: Statements): 
 
   // Each save's verdict sees the strokes stored before it and its own, as it would on its own.
   const stateNow = new Map<string, SeatState>();
-  const changes: Array<{ actor: Actor; ctx: Ctx; before: SeatState; after: SeatState; stage: LappingStage; verdict: SeatVerdict; count: number }> = [];
+  const changes: Array<{ actor: Actor; ctx: Context; before: SeatState; after: SeatState; stage: LappingStage; verdict: SeatVerdict; count: number }> = [];
   accepted.forEach(({ save, at, actor, ctx }, k) => {
     const visible = (bySeat.get(ctx.seat.id) ?? []).filter((s) => s.by === undefined || s.by <= k);
     const stage = ctx.session.stage;

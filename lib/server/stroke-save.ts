@@ -22,11 +22,6 @@ export function strokeSaveTarget(method: string | undefined, url: string | undef
   }
 }
 
-/**
- * The body, read no further than one byte past the JSON limit: the route's own reader (readJson)
- * then refuses an oversized one with 413, as it does for the route handler. Whatever is left of
- * such a body is discarded and the connection closed after the answer.
- */
 /** The phone went away before its body arrived: there is nobody to answer, and nothing was saved. */
 export class RequestAbortedError extends Error {
   constructor() {
@@ -34,6 +29,11 @@ export class RequestAbortedError extends Error {
   }
 }
 
+/**
+ * The body, read no further than one byte past the JSON limit: readJsonBytes then refuses an
+ * oversized one with 413, as readJson does for the route handler. Whatever is left of such a
+ * body is discarded and the connection closed after the answer.
+ */
 function readBody(req: http.IncomingMessage, res: http.ServerResponse): Promise<Buffer> {
   const declared = Number(req.headers["content-length"]);
   if (Number.isFinite(declared) && declared > MAX_JSON_BYTES) {
@@ -92,7 +92,7 @@ export async function answerStrokeSave(req: http.IncomingMessage, res: http.Serv
     }
     // A declared length over the limit is passed on, where readJsonBytes refuses it as readJson does.
     const head = { contentType: header(req, "content-type"), contentLength: header(req, "content-length") };
-    answer = await answerStrokes((schema) => Promise.resolve().then(() => readJsonBytes(head, body, schema)), sessionId, () => tokenUser(req.headers));
+    answer = await answerStrokes(async (schema) => readJsonBytes(head, body, schema), sessionId, () => tokenUser(req.headers));
   }
   const json = Buffer.from(JSON.stringify(answer.body));
   res.statusCode = answer.status;

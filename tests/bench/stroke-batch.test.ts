@@ -16,7 +16,7 @@ import { AppError } from "@/lib/errors";
 import { seatCode } from "@/lib/heads/layout";
 import { createHeadWithSeats } from "@/lib/heads/create";
 import type { StrokeInput } from "@/lib/validations/bench";
-import { strokeSubmitterFor } from "@/db/stroke-writers";
+import { strokeSubmitterFor } from "@/db/stroke-submitters";
 import { freshPglite, freshServerDatabase, serverUrl, type TestDatabase } from "../helpers/db";
 import { syntheticStroke } from "../helpers/strokes";
 import { userIds } from "./helpers";
@@ -189,7 +189,7 @@ const backends: Array<[string, () => Promise<TestDatabase>]> = [
 ];
 if (server) backends.push(["PostgreSQL server", () => freshServerDatabase(server)]);
 
-/** Saves sent together: to the database thread's queue when it has one (db/stroke-writers.ts), else as one batch here. */
+/** Saves sent together: to the database thread's queue when it has one (db/stroke-submitters.ts), else as one batch here. */
 async function writeBatch(db: Db, batch: StrokeSave[]): Promise<StrokeSaveOutcome[]> {
   const submit = strokeSubmitterFor(db);
   if (!submit) return saveStrokeBatch(db, batch);
