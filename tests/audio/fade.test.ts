@@ -18,6 +18,39 @@ describe("fade fit", () => {
     expect(fadeAt(fit, 1)).toBeCloseTo(11.7, 4);
   });
 
+  it("finds the least-squares fit a brute-force search finds, on noisy curves of many lengths", () => {
+    // Reference: for each of 20,000 decays spread evenly in log over 0.25–200 strokes, the
+    // floor and amplitude come from the 2×2 normal equations with every exp() computed
+    // directly, negative amplitudes clamped to a flat line as the fit does; the best sum of
+    // squares wins. The fit must do at least as well (its search is finer near the minimum),
+    // and no worse than the reference by more than rounding.
+    let seed = 11;
+    const rnd = () => (seed = (seed * 1103515245 + 12345) >>> 0) / 2 ** 32;
+    const sseOf = (y: number[], floor: number, amp: number, decay: number) =>
+      y.reduce((sum, v, i) => sum + (v - (floor + amp * Math.exp(-i / decay))) ** 2, 0);
+    for (const n of [3, 5, 12, 40, 120, 400]) {
+      const y = Array.from({ length: n }, (_, i) => 0.4 + 12 * rnd() * Math.exp(-i / (1 + rnd() * 15)) + (rnd() - 0.5) * 1.5);
+      let bestSse = Infinity;
+      for (let s = 0; s <= 20000; s++) {
+        const decay = Math.exp(Math.log(0.25) + ((Math.log(200) - Math.log(0.25)) * s) / 20000);
+        let se = 0, see = 0, sy = 0, sey = 0;
+        y.forEach((v, i) => {
+          const e = Math.exp(-i / decay);
+          se += e; see += e * e; sy += v; sey += e * v;
+        });
+        const det = n * see - se * se;
+        let amp = Math.abs(det) < 1e-12 ? 0 : (n * sey - se * sy) / det;
+        let floor = (sy - amp * se) / n;
+        if (amp < 0) [amp, floor] = [0, sy / n];
+        bestSse = Math.min(bestSse, sseOf(y, floor, amp, decay));
+      }
+      const fit = fitFade(y)!;
+      const fitSse = sseOf(y, fit.floorDb, fit.amplitudeDb, fit.decayStrokes);
+      expect(fitSse).toBeLessThanOrEqual(bestSse * (1 + 1e-9) + 1e-12);
+      expect(fit.rmsErrorDb).toBeCloseTo(Math.sqrt(fitSse / n), 9);
+    }
+  });
+
   it("fits a constant as a flat curve at its value", () => {
     const fit = fitFade([3, 3, 3, 3, 3])!;
     expect(fadeAt(fit, 1)).toBeCloseTo(3, 9);
