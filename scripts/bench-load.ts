@@ -20,6 +20,8 @@
 //   BENCH_DATABASE_URL (else TEST_DATABASE_URL, else postgres://postgres@127.0.0.1:55432/postgres):
 //                               the PostgreSQL server; a fresh database is made on it and dropped after
 //   BENCH_ONLY=pglite|postgres  run one database only
+//   BENCH_PARTS=saves,paced,reads  which runs to make (all three unless told)
+//   BENCH_TRACE=file.csv        the paced run's saves, one line each: when due (ms from start), latency ms
 import { execFileSync } from "node:child_process";
 import { randomUUID } from "node:crypto";
 import fs from "node:fs";
@@ -45,6 +47,9 @@ const STROKES_PER_SEAT = positiveInt("BENCH_STROKES_PER_SEAT", 40);
 const RATE = positiveInt("BENCH_RATE", 1000);
 /** Seats are laid out for this many stroke saves a second; past it, phones go round their seats again. */
 const SEAT_CAPACITY_PER_S = 1200;
+const PARTS = new Set((process.env.BENCH_PARTS ?? "saves,paced,reads").split(",").map((p) => p.trim()));
+for (const p of PARTS) if (!["saves", "paced", "reads"].includes(p)) throw new Error(`BENCH_PARTS takes saves, paced and reads (got ${p}).`);
+const TRACE = process.env.BENCH_TRACE || null;
 const GOAL = { strokesPerS: 1000, p95Ms: 20 };
 const DEFAULT_PG = "postgres://postgres@127.0.0.1:55432/postgres";
 const SEATS_PER_HEAD = 16;
@@ -320,6 +325,7 @@ async function pacedSaves(baseURL: string, pid: number | null, phones: Phone[], 
   const base = new URL(baseURL);
   const intervalMs = (1000 * phones.length) / rate;
   const latencies: number[] = [];
+  const trace: string[] = [];
   const statuses = new Map<number, number>();
   let requests = 0;
   let errors = 0;
@@ -338,6 +344,7 @@ async function pacedSaves(baseURL: string, pid: number | null, phones: Phone[], 
             const status = await post(agent, base, nextStroke(phone, c), phone.cookie);
             statuses.set(status, (statuses.get(status) ?? 0) + 1);
             latencies.push(performance.now() - due);
+            if (TRACE) trace.push(`${(due - t0).toFixed(1)},${(performance.now() - due).toFixed(2)}`);
           } catch {
             errors++;
           }
@@ -349,6 +356,7 @@ async function pacedSaves(baseURL: string, pid: number | null, phones: Phone[], 
   );
   const seconds = (performance.now() - t0) / 1000;
   const cpuAfter = cpuMs(pid);
+  if (TRACE) fs.writeFileSync(TRACE, "due_ms,latency_ms\n" + trace.join("\n") + "\n");
   const count = (pred: (code: number) => boolean) => [...statuses].filter(([code]) => pred(code)).reduce((n, [, k]) => n + k, 0);
   return {
     requests,
@@ -436,23 +444,30 @@ async function runOn(
   let rows: Row[];
   try {
     const phones = await openSessions(server.baseURL, fixture);
-    console.log(`${database}: ${phones.length} phones, ${phones[0]!.sessions.length} seats each, sessions open; saving strokes for ${DURATION_S} s…`);
-    const saves = await strokeSaves(server.baseURL, pid, phones);
-    const row = { database, what: "stroke saves" as const, m: saves };
-    console.log(describe(row));
-    console.log(`${database}: saving strokes at ${RATE} a second for ${DURATION_S} s…`);
-    const paced = { database, what: "paced saves" as const, m: await pacedSaves(server.baseURL, pid, phones, RATE) };
-    console.log(describe(paced));
-    const touched = phones.flatMap((p) =>
-      p.sessions.slice(0, Math.min(p.sessions.length, Math.ceil(p.sent / STROKES_PER_SEAT))).map((s) => s.seatId),
-    );
-    const supervisor = DEMO_USERS.find((u) => u.role === "supervisor")!;
-    const cookie = await sessionCookie(server.baseURL, supervisor.email, supervisor.password);
-    console.log(`${database}: reading ${touched.length} of those seats for ${DURATION_S} s…`);
-    const reads = await seatReads(server.baseURL, pid, cookie, touched);
-    const readRow = { database, what: "seat reads" as const, m: reads };
-    console.log(describe(readRow));
-    rows = [row, paced, readRow];
+    console.log(`${database}: ${phones.length} phones, ${phones[0]!.sessions.length} seats each, sessions open.`);
+    rows = [];
+    if (PARTS.has("saves")) {
+      const row = { database, what: "stroke saves" as const, m: await strokeSaves(server.baseURL, pid, phones) };
+      console.log(describe(row));
+      rows.push(row);
+    }
+    if (PARTS.has("paced")) {
+      console.log(`${database}: saving strokes at ${RATE} a second for ${DURATION_S} s…`);
+      const paced = { database, what: "paced saves" as const, m: await pacedSaves(server.baseURL, pid, phones, RATE) };
+      console.log(describe(paced));
+      rows.push(paced);
+    }
+    if (PARTS.has("reads")) {
+      const touched = phones.flatMap((p) =>
+        p.sessions.slice(0, Math.min(p.sessions.length, Math.ceil(p.sent / STROKES_PER_SEAT))).map((s) => s.seatId),
+      );
+      const supervisor = DEMO_USERS.find((u) => u.role === "supervisor")!;
+      const cookie = await sessionCookie(server.baseURL, supervisor.email, supervisor.password);
+      console.log(`${database}: reading ${touched.length} of those seats for ${DURATION_S} s…`);
+      const readRow = { database, what: "seat reads" as const, m: await seatReads(server.baseURL, pid, cookie, touched) };
+      console.log(describe(readRow));
+      rows.push(readRow);
+    }
     if (database === "PGlite") {
       const floor = { database, what: "health check" as const, m: await healthChecks(server.baseURL, pid) };
       console.log(describe(floor));
