@@ -67,6 +67,31 @@ function pgliteClientOf(tx: Db): SimpleClient {
   return client as SimpleClient;
 }
 
+/**
+ * How these statements are planned on PGlite, set at the start of each transaction that runs
+ * them (SET LOCAL ends with it).
+ *
+ * plan_cache_mode: a prepared statement is planned anew for its first five runs and whenever
+ * PostgreSQL guesses a fresh plan would be cheaper, which for these statements it always does;
+ * the point is to plan once (PostgreSQL 12 and later).
+ *
+ * enable_seqscan, enable_hashjoin, enable_mergejoin: PGlite runs no autovacuum, so its tables are
+ * never analysed, and the one plan is made at the first save, often on a nearly empty database.
+ * The planner then scans whole tables and hashes them (the cheapest way through a few pages),
+ * and that plan stays for the life of the process while the tables grow: with 750 seats open,
+ * the curve read took 2.7 ms instead of 0.3 ms, and it grows with every stroke stored. Every
+ * statement here looks up a few rows by key, for which index lookups in nested loops are right
+ * at any size, so the planner is told to avoid the others (it still uses them where there is no
+ * index; tests/bench/statements.test.ts checks that none is left). These settings
+ * steer planning only and change no result.
+ */
+export const PLANNER_SETTINGS = [
+  "set local plan_cache_mode = force_generic_plan",
+  "set local enable_seqscan = off",
+  "set local enable_hashjoin = off",
+  "set local enable_mergejoin = off",
+] as const;
+
 /** A statement of the stroke save: its key (the name it is prepared under) and its query. */
 export interface Statement {
   key: string;
@@ -86,11 +111,8 @@ export class Statements {
   }
 
   /**
-   * Called first in each transaction that runs these statements. A prepared statement is planned
-   * anew for its first five runs and whenever PostgreSQL guesses a fresh plan would be cheaper,
-   * which for these statements it always does; the point is to plan once (plan_cache_mode,
-   * PostgreSQL 12 and later). SET LOCAL ends with the transaction; it goes out with the
-   * transaction's first statements.
+   * Called first in each transaction that runs these statements: PLANNER_SETTINGS go out with
+   * the transaction's first statements.
    */
   begin(tx: Db): void {
     if (this.prepare) this.fresh.add(tx);
@@ -131,7 +153,7 @@ export class Statements {
       }
       calls.push(params.length ? `execute ${name}(${params.map(literal).join(", ")})` : `execute ${name}`);
     }
-    const setup = this.fresh.has(tx) ? ["set local plan_cache_mode = force_generic_plan"] : [];
+    const setup = this.fresh.has(tx) ? [...PLANNER_SETTINGS] : [];
     this.fresh.delete(tx);
     const results = await client.exec([...setup, ...calls].join(";\n"));
     if (results.length !== setup.length + calls.length) throw new Error(`Expected ${setup.length + calls.length} results, got ${results.length}.`);

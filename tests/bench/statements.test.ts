@@ -5,8 +5,16 @@
 // non-ASCII text, tiny and huge numbers).
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { sql } from "drizzle-orm";
-import { literal, Statements, statementsFor } from "@/lib/bench/statements";
+import { randomUUID } from "node:crypto";
+import { eq } from "drizzle-orm";
+import { customers, jobs, lappingSessions, shops, users } from "@/db/schema";
+import { DEMO_USERS, seedDemoShop } from "@/db/seed";
+import { saveStrokeBatch } from "@/lib/bench/stroke-batch";
+import { literal, PLANNER_SETTINGS, Statements, statementsFor } from "@/lib/bench/statements";
+import { createHeadWithSeats } from "@/lib/heads/create";
+import { DEFAULT_HEAD_LAYOUT } from "@/lib/heads/layout";
 import { freshPglite, freshServerDatabase, serverUrl, type TestDatabase } from "../helpers/db";
+import { syntheticStroke } from "../helpers/strokes";
 
 let t: TestDatabase;
 beforeAll(async () => {
@@ -107,6 +115,56 @@ describe("prepared statements", () => {
     const statements = new Statements(true);
     await statements.rows(t.db, "probe_fixed", sql`select ${sql.param([1, 2])}::int[] as v`);
     await expect(statements.rows(t.db, "probe_fixed", sql`select ${1}::int as v, ${2}::int as w`)).rejects.toThrow(/changed its text/);
+  });
+});
+
+describe("the stroke save's plans on PGlite", () => {
+  it("look rows up by index, never by scanning or hashing a table, even when planned on a nearly empty database", async () => {
+    // PGlite runs no autovacuum, so nothing tells the planner that tables have grown; the plan
+    // made at the first save is the one every later save runs. Made here on the demo shop with
+    // one head more, it must still be index lookups (EXPLAIN of the cached generic plan, read
+    // back through the prepared statement itself).
+    const db = await freshPglite();
+    try {
+      await seedDemoShop(db.db);
+      const [shop] = await db.db.select().from(shops).limit(1);
+      const [customer] = await db.db.select().from(customers).limit(1);
+      const ines = DEMO_USERS.find((u) => u.role === "technician")!;
+      const [tech] = await db.db.select().from(users).where(eq(users.email, ines.email));
+      const [job] = await db.db
+        .insert(jobs)
+        .values({ shopId: shop!.id, number: "PLAN-1", customerId: customer!.id, engineDescription: "Plan test head", status: "at_bench", assignedTechnicianId: tech!.id })
+        .returning();
+      const head = await createHeadWithSeats(db.db, job!.id, "Head", DEFAULT_HEAD_LAYOUT);
+      const sessionIds: string[] = [];
+      for (const seat of head.seats.slice(0, 3)) {
+        const id = randomUUID();
+        await db.db.insert(lappingSessions).values({ id, seatId: seat.id, technicianId: tech!.id, stage: "coarse", deviceId: "dev-plan-01" });
+        sessionIds.push(id);
+      }
+      const outcomes = await saveStrokeBatch(
+        db.db,
+        sessionIds.map((sessionId, k) => ({ userId: tech!.id, sessionId, strokes: [syntheticStroke(1, 9 - k)] })),
+      );
+      expect(outcomes.every((o) => o.ok)).toBe(true);
+
+      const client = (db.db as unknown as { $client: { exec(q: string): Promise<Array<{ rows: Array<Record<string, unknown>> }>> } }).$client;
+      const [prepared] = await client.exec("select name, cardinality(parameter_types) as n from pg_prepared_statements where name like '%stroke_%' order by name");
+      const keys = prepared!.rows.map((r) => String(r.name).replace(/^gf_[a-z0-9]+_/, ""));
+      expect(keys).toEqual(expect.arrayContaining(["stroke_contexts", "stroke_curves", "stroke_insert", "stroke_people"]));
+      for (const row of prepared!.rows) {
+        const args = Array.from({ length: Number(row.n) }, () => "NULL").join(", ");
+        const results = await client.exec(
+          ["begin", ...PLANNER_SETTINGS, `explain execute ${String(row.name)}${args ? `(${args})` : ""}`, "rollback"].join(";\n"),
+        );
+        const plan = results[PLANNER_SETTINGS.length + 1]!.rows.map((r) => String(r["QUERY PLAN"])).join("\n");
+        expect(plan, `${String(row.name)}:\n${plan}`).not.toMatch(/Seq Scan on (strokes|lapping_sessions|seats|heads|jobs|users|valves)\b|Hash Join|Merge Join/);
+        // The insert reads no table; the others must find their rows by index.
+        if (!plan.startsWith("Insert on strokes")) expect(plan, String(row.name)).toMatch(/Index (Only )?Scan/);
+      }
+    } finally {
+      await db.cleanup();
+    }
   });
 });
 
