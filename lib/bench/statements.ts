@@ -11,7 +11,7 @@
 // parameter of these statements carries an explicit cast, so the value has the same type either
 // way; the quoting doubles single quotes, which is all a literal needs with
 // standard_conforming_strings on (PostgreSQL's default since 9.1).
-import { is, type SQL } from "drizzle-orm";
+import { fillPlaceholders, is, Param, sql, type SQL } from "drizzle-orm";
 import { PgDialect } from "drizzle-orm/pg-core";
 import { PgliteDatabase } from "drizzle-orm/pglite";
 import type { Db } from "@/db/client";
@@ -98,6 +98,62 @@ export interface Statement {
   query: SQL;
 }
 
+/**
+ * A statement whose text never changes, written once as a function of its values. On PGlite it is
+ * turned into text once, with placeholders where the values go (drizzle's sql.placeholder), and
+ * each run only fills them in; building and rendering the query each time cost the save as much
+ * as a statement did. On a server it is built with the values as ordinary parameters.
+ *
+ * A statement that returns rows answers them as one JSON text (json_agg), read back with
+ * JSON.parse, on either database. PGlite copies every field of every row out of its engine on
+ * its own (about 1.5 µs a field here: the seat lock's 17 columns for 10 saves took 0.6 ms to
+ * read, as one JSON text 0.35 ms). The rows are then JSON's values: uuids, text and timestamps
+ * (ISO 8601) as strings, numbers and booleans as themselves, NULL as null.
+ */
+export class FixedStatement<K extends string> {
+  private compiled: { sql: string; params: unknown[] } | null = null;
+
+  constructor(
+    readonly key: string,
+    private readonly build: (values: Record<K, SQL>) => SQL,
+    /** "rows" for a query or a statement with RETURNING; "nothing" for one without. */
+    readonly returns: "rows" | "nothing" = "rows",
+  ) {}
+
+  private wrapped(values: Record<K, SQL>): SQL {
+    const inner = this.build(values);
+    return this.returns === "rows" ? sql`with x as (${inner}) select coalesce(json_agg(x), '[]'::json)::text as rows from x` : inner;
+  }
+
+  /** The text, with its parameters as placeholders named by the values' keys. */
+  text(): { sql: string; params: unknown[] } {
+    this.compiled ??= dialect.sqlToQuery(this.wrapped(new Proxy({} as Record<K, SQL>, { get: (_, name) => sql`${sql.placeholder(String(name))}` })));
+    return this.compiled;
+  }
+
+  /** The query with these values as parameters. */
+  query(values: Record<K, unknown>): SQL {
+    const params = Object.fromEntries(Object.entries(values).map(([k, v]) => [k, sql`${new Param(v)}`])) as Record<K, SQL>;
+    return this.wrapped(params);
+  }
+
+  /** The rows of one run, from what the database answered. */
+  rowsOf(answered: unknown[]): unknown[] {
+    if (this.returns === "nothing") return [];
+    const [first] = answered as Array<{ rows?: unknown }>;
+    if (!first || typeof first.rows !== "string") throw new Error(`The statement ${this.key} did not answer its rows as JSON text.`);
+    return JSON.parse(first.rows) as unknown[];
+  }
+}
+
+/** A fixed statement and the values of one run. */
+export interface FixedRun<K extends string = string> {
+  statement: FixedStatement<K>;
+  values: Record<K, unknown>;
+}
+
+const isFixed = (s: Statement | FixedRun): s is FixedRun => "statement" in s;
+
 /** One database's prepared statements: on PGlite, named once each; elsewhere, none. */
 export class Statements {
   private readonly prepared = new Map<string, string>();
@@ -130,16 +186,29 @@ export class Statements {
    * engine on every statement (parse, describe, bind, describe, execute, sync), exec() two for
    * all of them. On a server each runs as an ordinary statement.
    */
-  async run(tx: Db, list: Statement[]): Promise<unknown[][]> {
+  async run(tx: Db, list: Array<Statement | FixedRun>): Promise<unknown[][]> {
     if (!this.prepare) {
       const out: unknown[][] = [];
-      for (const { query } of list) out.push(((await tx.execute(query)) as unknown as Rows<unknown>).rows);
+      for (const s of list) {
+        const query = isFixed(s) ? s.statement.query(s.values) : s.query;
+        const rows = ((await tx.execute(query)) as unknown as Rows<unknown>).rows;
+        out.push(isFixed(s) ? s.statement.rowsOf(rows) : rows);
+      }
       return out;
     }
     const client = pgliteClientOf(tx);
     const calls: string[] = [];
-    for (const { key, query } of list) {
-      const { sql: text, params } = dialect.sqlToQuery(query);
+    for (const s of list) {
+      let text: string;
+      let params: unknown[];
+      if (isFixed(s)) {
+        const compiled = s.statement.text();
+        text = compiled.sql;
+        params = fillPlaceholders(compiled.params, s.values);
+      } else {
+        ({ sql: text, params } = dialect.sqlToQuery(s.query));
+      }
+      const key = isFixed(s) ? s.statement.key : s.key;
       const name = this.prefix + key;
       const known = this.prepared.get(name);
       if (known === undefined) {
@@ -157,7 +226,10 @@ export class Statements {
     this.fresh.delete(tx);
     const results = await client.exec([...setup, ...calls].join(";\n"));
     if (results.length !== setup.length + calls.length) throw new Error(`Expected ${setup.length + calls.length} results, got ${results.length}.`);
-    return results.slice(setup.length).map((r) => r.rows);
+    return results.slice(setup.length).map((r, k) => {
+      const s = list[k]!;
+      return isFixed(s) ? s.statement.rowsOf(r.rows) : r.rows;
+    });
   }
 }
 

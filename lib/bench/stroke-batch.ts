@@ -18,7 +18,7 @@ import type { StrokeInput } from "@/lib/validations/bench";
 import { assertOpenForWork, assertOwnSession, judgeStage, SEAT_HOLD_REFRESH_SECONDS, SESSION_NOT_FOUND, seatStateFor, STROKE_ORDER_COLUMNS } from "./rules";
 import { assertCanWorkOn } from "@/lib/auth/job-access";
 import { strokeSubmitterFor } from "@/db/stroke-submitters";
-import { statementsFor, type Statements } from "./statements";
+import { FixedStatement, statementsFor, type Statements } from "./statements";
 
 export interface StrokeSaveResult {
   accepted: number;
@@ -77,45 +77,106 @@ type Context = {
   valveLappedIn: string | null;
 };
 
+// The batch's statements. Each has one text whatever the batch, so that it is planned once and
+// rendered once (lib/bench/statements.ts): lists go in as one array each.
+const PEOPLE = new FixedStatement<"userIds">(
+  "stroke_people",
+  (v) => sql`select ${users.id} as id, ${users.shopId} as "shopId", ${users.name} as name, ${users.email} as email, ${users.role} as role, ${users.active} as active
+    from ${users} where ${users.id} = any(${v.userIds}::uuid[])`,
+);
+
+type ContextRow = {
+  session_id: string; stage: LappingStage; technician_id: string; last_seen_at: string | Date; starter_name: string;
+  seat_id: string; seat_state: SeatState; cylinder: number; kind: Context["seat"]["kind"]; position: number;
+  job_id: string; shop_id: string; number: string; status: Context["job"]["status"]; assigned_technician_id: string | null;
+  valve_id: string | null; lapped_in_seat_id: string | null;
+};
+
+// The sessions with their seats locked, in seat order: two batches (on a PostgreSQL server, from
+// two processes) always lock shared seats in the same order.
+const CONTEXTS = new FixedStatement<"sessionIds">(
+  "stroke_contexts",
+  (v) => sql`select ${lappingSessions.id} as session_id, ${lappingSessions.stage} as stage, ${lappingSessions.technicianId} as technician_id,
+      ${lappingSessions.lastSeenAt} as last_seen_at, ${users.name} as starter_name,
+      ${seats.id} as seat_id, ${seats.state} as seat_state, ${seats.cylinder} as cylinder, ${seats.kind} as kind, ${seats.position} as position,
+      ${jobs.id} as job_id, ${jobs.shopId} as shop_id, ${jobs.number} as number, ${jobs.status} as status, ${jobs.assignedTechnicianId} as assigned_technician_id,
+      ${valves.id} as valve_id, ${valves.lappedInSeatId} as lapped_in_seat_id
+    from ${lappingSessions}
+    inner join ${users} on ${users.id} = ${lappingSessions.technicianId}
+    inner join ${seats} on ${seats.id} = ${lappingSessions.seatId}
+    inner join ${heads} on ${heads.id} = ${seats.headId}
+    inner join ${jobs} on ${jobs.id} = ${heads.jobId}
+    left join ${valves} on ${valves.seatId} = ${seats.id}
+    where ${lappingSessions.id} = any(${v.sessionIds}::uuid[])
+    order by ${seats.id}
+    for update of ${seats}`,
+);
+
+// One insert for every stroke of the batch; a stroke already stored (or sent twice in this batch)
+// under its session and clientId is skipped, as on its own. The values go in as one array per
+// column (unnest): on PGlite that is about twice as fast as a VALUES row per stroke.
+const INSERT_COLUMNS = [strokes.sessionId, strokes.clientId, strokes.index, strokes.startS, strokes.endS, strokes.onsetDb, strokes.bodyDb, strokes.contrastDb, strokes.flags];
+const INSERT = new FixedStatement<"sessionIds" | "clientIds" | "indexes" | "starts" | "ends" | "onsets" | "bodies" | "contrasts" | "flags">(
+  "stroke_insert",
+  (v) => sql`
+    insert into ${strokes} (${sql.join(INSERT_COLUMNS.map((c) => sql.identifier(c.name)), sql`, `)})
+    select s, c, i, st, en, o, b, k, coalesce(string_to_array(nullif(f, ''), '|'), '{}')
+    from unnest(${v.sessionIds}::uuid[], ${v.clientIds}::uuid[], ${v.indexes}::int[],
+      ${v.starts}::real[], ${v.ends}::real[], ${v.onsets}::real[], ${v.bodies}::real[],
+      ${v.contrasts}::real[], ${v.flags}::text[]) as u(s, c, i, st, en, o, b, k, f)
+    on conflict (${sql.identifier(strokes.sessionId.name)}, ${sql.identifier(strokes.clientId.name)}) do nothing
+    returning ${sql.identifier(strokes.id.name)}, ${sql.identifier(strokes.sessionId.name)}, ${sql.identifier(strokes.clientId.name)}`,
+);
+
+// A session's last sign of life, refreshed.
+const SEEN = new FixedStatement<"at" | "sessionIds">(
+  "stroke_seen",
+  (v) => sql`update ${lappingSessions} set ${sql.identifier(lappingSessions.lastSeenAt.name)} = ${v.at}::timestamptz
+    where ${lappingSessions.id} = any(${v.sessionIds}::uuid[])`,
+  "nothing",
+);
+
+// The valves lapped into their seats by this batch's strokes (each seat's first).
+const LAPPED_IN = new FixedStatement<"at" | "seatIds">(
+  "stroke_lapped_in",
+  (v) => sql`update ${valves} set ${sql.identifier(valves.lappedInSeatId.name)} = ${valves.seatId}, ${sql.identifier(valves.updatedAt.name)} = ${v.at}::timestamptz
+    where ${valves.seatId} = any(${v.seatIds}::uuid[]) and ${valves.lappedInSeatId} is null`,
+  "nothing",
+);
+
+// Every stroke of the touched seats, in the order the verdict reads them: one row per seat and
+// stage with the strokes' figures joined into text, because reading a row per stroke costs PGlite
+// far more than the statement itself. A float's text is what the row would have carried, so the
+// numbers are the same. `by` is the stroke's place among the strokes this batch stored (0 for one
+// stored before).
+const ORDER = () =>
+  sql.join(
+    STROKE_ORDER_COLUMNS.map((c) => sql`${c}`),
+    sql`, `,
+  );
+const CURVES = new FixedStatement<"insertedIds" | "seatIds">(
+  "stroke_curves",
+  (v) => sql`select ${lappingSessions.seatId} as seat_id, ${lappingSessions.stage} as stage,
+      string_agg(${strokes.startS}::text, ',' order by ${ORDER()}) as start_s,
+      string_agg(${strokes.contrastDb}::text, ',' order by ${ORDER()}) as contrast_db,
+      string_agg(array_to_string(${strokes.flags}, '|'), ',' order by ${ORDER()}) as flags,
+      string_agg(coalesce(array_position(${v.insertedIds}::uuid[], ${strokes.id}), 0)::text, ',' order by ${ORDER()}) as by
+    from ${strokes}
+    inner join ${lappingSessions} on ${lappingSessions.id} = ${strokes.sessionId}
+    where ${lappingSessions.seatId} = any(${v.seatIds}::uuid[])
+    group by ${lappingSessions.seatId}, ${lappingSessions.stage}`,
+);
+
 async function writeBatch(tx: Db, batch: StrokeSave[], statements: Statements): Promise<StrokeSaveOutcome[]> {
   statements.begin(tx);
   const userIds = [...new Set(batch.map((s) => s.userId))];
   const sessionIds = [...new Set(batch.map((s) => s.sessionId))];
-  // Every statement below has one text whatever the batch, so that it can be planned once
-  // (lib/bench/statements.ts): lists go in as one array each.
   type Person = Actor & { active: boolean };
-  const peopleQuery = {
-    key: "stroke_people",
-    query: sql`select ${users.id} as id, ${users.shopId} as "shopId", ${users.name} as name, ${users.email} as email, ${users.role} as role, ${users.active} as active
-      from ${users} where ${users.id} = any(${sql.param(userIds)}::uuid[])`,
-  };
-  // The sessions with their seats locked, in seat order: two batches (on a PostgreSQL server,
-  // from two processes) always lock shared seats in the same order.
-  type ContextRow = {
-    session_id: string; stage: LappingStage; technician_id: string; last_seen_at: string | Date; starter_name: string;
-    seat_id: string; seat_state: SeatState; cylinder: number; kind: Context["seat"]["kind"]; position: number;
-    job_id: string; shop_id: string; number: string; status: Context["job"]["status"]; assigned_technician_id: string | null;
-    valve_id: string | null; lapped_in_seat_id: string | null;
-  };
-  const contextsQuery = {
-    key: "stroke_contexts",
-    query: sql`select ${lappingSessions.id} as session_id, ${lappingSessions.stage} as stage, ${lappingSessions.technicianId} as technician_id,
-        ${lappingSessions.lastSeenAt} as last_seen_at, ${users.name} as starter_name,
-        ${seats.id} as seat_id, ${seats.state} as seat_state, ${seats.cylinder} as cylinder, ${seats.kind} as kind, ${seats.position} as position,
-        ${jobs.id} as job_id, ${jobs.shopId} as shop_id, ${jobs.number} as number, ${jobs.status} as status, ${jobs.assignedTechnicianId} as assigned_technician_id,
-        ${valves.id} as valve_id, ${valves.lappedInSeatId} as lapped_in_seat_id
-      from ${lappingSessions}
-      inner join ${users} on ${users.id} = ${lappingSessions.technicianId}
-      inner join ${seats} on ${seats.id} = ${lappingSessions.seatId}
-      inner join ${heads} on ${heads.id} = ${seats.headId}
-      inner join ${jobs} on ${jobs.id} = ${heads.jobId}
-      left join ${valves} on ${valves.seatId} = ${seats.id}
-      where ${lappingSessions.id} = any(${sql.param(sessionIds)}::uuid[])
-      order by ${seats.id}
-      for update of ${seats}`,
-  };
   // Both go out together (lib/bench/statements.ts).
-  const [peopleRows, contextRows] = (await statements.run(tx, [peopleQuery, contextsQuery])) as [Person[], ContextRow[]];
+  const [peopleRows, contextRows] = (await statements.run(tx, [
+    { statement: PEOPLE, values: { userIds } },
+    { statement: CONTEXTS, values: { sessionIds } },
+  ])) as [Person[], ContextRow[]];
   const personById = new Map(peopleRows.map((p) => [p.id, p]));
   const contexts: Context[] = contextRows.map((r) => ({
     sessionId: r.session_id,
@@ -146,25 +207,29 @@ async function writeBatch(tx: Db, batch: StrokeSave[], statements: Statements): 
   });
   if (accepted.length === 0) return outcomes as StrokeSaveOutcome[];
 
-  // One insert for every stroke of the batch; a stroke already stored (or sent twice in this
-  // batch) under its session and clientId is skipped, as on its own. The values go in as one
-  // array per column (unnest): on PGlite that is about twice as fast as a VALUES row per stroke.
+  // The sessions were read under the seats' lock, so their last sign of life is current; most
+  // saves find it fresh, and the others have it refreshed in the same message as the insert.
+  const now = new Date();
+  const staleBefore = now.getTime() - SEAT_HOLD_REFRESH_SECONDS * 1000;
+  const stale = [...new Set(accepted.filter((a) => a.ctx.session.lastSeenAt.getTime() < staleBefore).map((a) => a.save.sessionId))];
   const rows = accepted.flatMap(({ save }) => save.strokes.map((s) => ({ ...s, sessionId: save.sessionId })));
-  const column = <K extends keyof (typeof rows)[number]>(key: K) => sql.param(rows.map((r) => r[key]));
-  const names = [strokes.sessionId, strokes.clientId, strokes.index, strokes.startS, strokes.endS, strokes.onsetDb, strokes.bodyDb, strokes.contrastDb, strokes.flags];
   type Stored = { id: string; session_id: string; client_id: string };
-  const inserted = await statements.rows<Stored>(
-    tx,
-    "stroke_insert",
-    sql`
-    insert into ${strokes} (${sql.join(names.map((c) => sql.identifier(c.name)), sql`, `)})
-    select s, c, i, st, en, o, b, k, coalesce(string_to_array(nullif(f, ''), '|'), '{}')
-    from unnest(${column("sessionId")}::uuid[], ${column("clientId")}::uuid[], ${column("index")}::int[],
-      ${column("startS")}::real[], ${column("endS")}::real[], ${column("onsetDb")}::real[], ${column("bodyDb")}::real[],
-      ${column("contrastDb")}::real[], ${sql.param(rows.map((r) => r.flags.join("|")))}::text[]) as u(s, c, i, st, en, o, b, k, f)
-    on conflict (${sql.identifier(strokes.sessionId.name)}, ${sql.identifier(strokes.clientId.name)}) do nothing
-    returning ${sql.identifier(strokes.id.name)}, ${sql.identifier(strokes.sessionId.name)}, ${sql.identifier(strokes.clientId.name)}`,
-  );
+  const insertRun = {
+    statement: INSERT,
+    values: {
+      sessionIds: rows.map((r) => r.sessionId),
+      clientIds: rows.map((r) => r.clientId),
+      indexes: rows.map((r) => r.index),
+      starts: rows.map((r) => r.startS),
+      ends: rows.map((r) => r.endS),
+      onsets: rows.map((r) => r.onsetDb),
+      bodies: rows.map((r) => r.bodyDb),
+      contrasts: rows.map((r) => r.contrastDb),
+      flags: rows.map((r) => r.flags.join("|")),
+    },
+  };
+  const insertResults = await statements.run(tx, stale.length > 0 ? [{ statement: SEEN, values: { at: now, sessionIds: stale } }, insertRun] : [insertRun]);
+  const inserted = insertResults[insertResults.length - 1] as Stored[];
   // Which save stored each new stroke: the first one in arrival order that carried it.
   const firstCarrier = new Map<string, number>();
   accepted.forEach(({ save }, k) => {
@@ -178,50 +243,19 @@ async function writeBatch(tx: Db, batch: StrokeSave[], statements: Statements): 
   const acceptedCount = accepted.map(() => 0);
   for (const k of storerOf) acceptedCount[k]!++;
 
-  // The sessions were read under the seats' lock, so their last sign of life is current; most
-  // saves find it fresh and skip the statement.
-  const now = new Date();
-  const staleBefore = now.getTime() - SEAT_HOLD_REFRESH_SECONDS * 1000;
-  const stale = [...new Set(accepted.filter((a) => a.ctx.session.lastSeenAt.getTime() < staleBefore).map((a) => a.save.sessionId))];
-  if (stale.length > 0) {
-    await tx.update(lappingSessions).set({ lastSeenAt: now }).where(inArray(lappingSessions.id, stale));
-  }
-
-  // The valve in a seat is lapped into it by the seat's first stored stroke, and stays with it.
+  // The valve in a seat is lapped into it by the seat's first stored stroke, and stays with it;
+  // that goes out with the curve read.
   const lappedSeats = new Set<string>();
   accepted.forEach(({ ctx }, k) => {
     if (acceptedCount[k]! > 0 && ctx.valveId && ctx.valveLappedIn === null) lappedSeats.add(ctx.seat.id);
   });
-  if (lappedSeats.size > 0) {
-    await tx
-      .update(valves)
-      .set({ lappedInSeatId: sql`${valves.seatId}`, updatedAt: new Date() })
-      .where(and(inArray(valves.seatId, [...lappedSeats]), isNull(valves.lappedInSeatId)));
-  }
-
-  // Every stroke of the touched seats, in the order the verdict reads them: one row per seat and
-  // stage with the strokes' figures joined into text, because reading a row per stroke costs
-  // PGlite far more than the statement itself. A float's text is what the row would have
-  // carried, so the numbers are the same. `by` is the stroke's place among the strokes this
-  // batch stored (0 for one stored before).
   const seatIds = [...new Set(accepted.map((a) => a.ctx.seat.id))];
-  const order = sql.join(
-    STROKE_ORDER_COLUMNS.map((c) => sql`${c}`),
-    sql`, `,
-  );
-  const curves = await statements.rows<{ seat_id: string; stage: LappingStage; start_s: string; contrast_db: string; flags: string; by: string }>(
+  const curvesRun = { statement: CURVES, values: { insertedIds: inserted.map((r) => r.id), seatIds } };
+  const curveResults = await statements.run(
     tx,
-    "stroke_curves",
-    sql`select ${lappingSessions.seatId} as seat_id, ${lappingSessions.stage} as stage,
-        string_agg(${strokes.startS}::text, ',' order by ${order}) as start_s,
-        string_agg(${strokes.contrastDb}::text, ',' order by ${order}) as contrast_db,
-        string_agg(array_to_string(${strokes.flags}, '|'), ',' order by ${order}) as flags,
-        string_agg(coalesce(array_position(${sql.param(inserted.map((r) => r.id))}::uuid[], ${strokes.id}), 0)::text, ',' order by ${order}) as by
-      from ${strokes}
-      inner join ${lappingSessions} on ${lappingSessions.id} = ${strokes.sessionId}
-      where ${lappingSessions.seatId} = any(${sql.param(seatIds)}::uuid[])
-      group by ${lappingSessions.seatId}, ${lappingSessions.stage}`,
+    lappedSeats.size > 0 ? [{ statement: LAPPED_IN, values: { at: new Date(), seatIds: [...lappedSeats] } }, curvesRun] : [curvesRun],
   );
+  const curves = curveResults[curveResults.length - 1] as Array<{ seat_id: string; stage: LappingStage; start_s: string; contrast_db: string; flags: string; by: string }>;
   const bySeat = new Map<string, Array<{ stage: LappingStage; startS: number; contrastDb: number; flags: string[]; by: number | undefined }>>();
   for (const c of curves) {
     const starts = c.start_s.split(",");
