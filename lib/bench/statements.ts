@@ -69,7 +69,8 @@ function pgliteClientOf(tx: Db): SimpleClient {
 
 /**
  * How these statements are planned on PGlite, set at the start of each transaction that runs
- * them (SET LOCAL ends with it).
+ * them, as SET LOCAL would (set_config with is_local; one statement for the four, because on
+ * PGlite every statement has a cost of its own).
  *
  * plan_cache_mode: a prepared statement is planned anew for its first five runs and whenever
  * PostgreSQL guesses a fresh plan would be cheaper, which for these statements it always does;
@@ -85,12 +86,9 @@ function pgliteClientOf(tx: Db): SimpleClient {
  * index; tests/bench/statements.test.ts checks that none is left). These settings
  * steer planning only and change no result.
  */
-export const PLANNER_SETTINGS = [
-  "set local plan_cache_mode = force_generic_plan",
-  "set local enable_seqscan = off",
-  "set local enable_hashjoin = off",
-  "set local enable_mergejoin = off",
-] as const;
+export const PLANNER_SETTINGS =
+  "select set_config('plan_cache_mode', 'force_generic_plan', true), set_config('enable_seqscan', 'off', true), " +
+  "set_config('enable_hashjoin', 'off', true), set_config('enable_mergejoin', 'off', true)";
 
 /** A statement of the stroke save: its key (the name it is prepared under) and its query. */
 export interface Statement {
@@ -222,7 +220,7 @@ export class Statements {
       }
       calls.push(params.length ? `execute ${name}(${params.map(literal).join(", ")})` : `execute ${name}`);
     }
-    const setup = this.fresh.has(tx) ? [...PLANNER_SETTINGS] : [];
+    const setup = this.fresh.has(tx) ? [PLANNER_SETTINGS] : [];
     this.fresh.delete(tx);
     const results = await client.exec([...setup, ...calls].join(";\n"));
     if (results.length !== setup.length + calls.length) throw new Error(`Expected ${setup.length + calls.length} results, got ${results.length}.`);
