@@ -7,7 +7,7 @@
 // another in arrival order (tests/bench/stroke-batch.test.ts checks this against saveStrokes):
 // the same checks and refusals, the same strokes kept or counted as duplicates, the same verdict
 // and seat state as of that save, and one audit entry per seat state change.
-import { and, asc, eq, inArray, isNull, sql } from "drizzle-orm";
+import { eq, sql } from "drizzle-orm";
 import type { Db } from "@/db/client";
 import { heads, jobs, lappingSessions, seats, strokes, users, valves, type LappingStage, type SeatState } from "@/db/schema";
 import type { SeatVerdict } from "@/lib/audio";
@@ -79,9 +79,13 @@ type Context = {
 
 // The batch's statements. Each has one text whatever the batch, so that it is planned once and
 // rendered once (lib/bench/statements.ts): lists go in as one array each.
+// The people signed in, with the columns the guard reads them by (actorColumns).
 const PEOPLE = new FixedStatement<"userIds">(
   "stroke_people",
-  (v) => sql`select ${users.id} as id, ${users.shopId} as "shopId", ${users.name} as name, ${users.email} as email, ${users.role} as role, ${users.active} as active
+  (v) => sql`select ${sql.join(
+    Object.entries(actorColumns).map(([name, column]) => sql`${column} as ${sql.identifier(name)}`),
+    sql`, `,
+  )}
     from ${users} where ${users.id} = any(${v.userIds}::uuid[])`,
 );
 
