@@ -90,12 +90,6 @@ export const PLANNER_SETTINGS =
   "select set_config('plan_cache_mode', 'force_generic_plan', true), set_config('enable_seqscan', 'off', true), " +
   "set_config('enable_hashjoin', 'off', true), set_config('enable_mergejoin', 'off', true)";
 
-/** A statement of the stroke save: its key (the name it is prepared under) and its query. */
-export interface Statement {
-  key: string;
-  query: SQL;
-}
-
 /**
  * A statement whose text never changes, written once as a function of its values. On PGlite it is
  * turned into text once, with placeholders where the values go (drizzle's sql.placeholder), and
@@ -150,8 +144,6 @@ export interface FixedRun<K extends string = string> {
   values: Record<K, unknown>;
 }
 
-const isFixed = (s: Statement | FixedRun): s is FixedRun => "statement" in s;
-
 /** One database's prepared statements: on PGlite, named once each; elsewhere, none. */
 export class Statements {
   private readonly prepared = new Map<string, string>();
@@ -172,41 +164,27 @@ export class Statements {
     if (this.prepare) this.fresh.add(tx);
   }
 
-  /** Runs the statement named `key`; its text must be the same every time (its values may differ). */
-  async rows<T>(tx: Db, key: string, query: SQL): Promise<T[]> {
-    const [rows] = await this.run(tx, [{ key, query }]);
-    return rows as T[];
-  }
-
   /**
    * Runs statements in order and gives each one's rows. On PGlite they go out together as one
    * message in PostgreSQL's simple query protocol: PGlite's query() spends six exchanges with the
    * engine on every statement (parse, describe, bind, describe, execute, sync), exec() two for
    * all of them. On a server each runs as an ordinary statement.
    */
-  async run(tx: Db, list: Array<Statement | FixedRun>): Promise<unknown[][]> {
+  async run(tx: Db, list: FixedRun[]): Promise<unknown[][]> {
     if (!this.prepare) {
       const out: unknown[][] = [];
-      for (const s of list) {
-        const query = isFixed(s) ? s.statement.query(s.values) : s.query;
-        const rows = ((await tx.execute(query)) as unknown as Rows<unknown>).rows;
-        out.push(isFixed(s) ? s.statement.rowsOf(rows) : rows);
+      for (const { statement, values } of list) {
+        const rows = ((await tx.execute(statement.query(values))) as unknown as Rows<unknown>).rows;
+        out.push(statement.rowsOf(rows));
       }
       return out;
     }
     const client = pgliteClientOf(tx);
     const calls: string[] = [];
-    for (const s of list) {
-      let text: string;
-      let params: unknown[];
-      if (isFixed(s)) {
-        const compiled = s.statement.text();
-        text = compiled.sql;
-        params = fillPlaceholders(compiled.params, s.values);
-      } else {
-        ({ sql: text, params } = dialect.sqlToQuery(s.query));
-      }
-      const key = isFixed(s) ? s.statement.key : s.key;
+    for (const { statement, values } of list) {
+      const { sql: text, params: placeholders } = statement.text();
+      const params = fillPlaceholders(placeholders, values);
+      const key = statement.key;
       const name = this.prefix + key;
       const known = this.prepared.get(name);
       if (known === undefined) {
@@ -216,7 +194,7 @@ export class Statements {
         await client.exec(`prepare ${name} as ${text}`);
         this.prepared.set(name, text);
       } else if (known !== text) {
-        throw new Error(`The statement ${key} changed its text; it must be fixed for it to be prepared.`);
+        throw new Error(`Two statements are named ${key} with different texts; each must have a name of its own to be prepared.`);
       }
       calls.push(params.length ? `execute ${name}(${params.map(literal).join(", ")})` : `execute ${name}`);
     }
@@ -224,10 +202,7 @@ export class Statements {
     this.fresh.delete(tx);
     const results = await client.exec([...setup, ...calls].join(";\n"));
     if (results.length !== setup.length + calls.length) throw new Error(`Expected ${setup.length + calls.length} results, got ${results.length}.`);
-    return results.slice(setup.length).map((r, k) => {
-      const s = list[k]!;
-      return isFixed(s) ? s.statement.rowsOf(r.rows) : r.rows;
-    });
+    return results.slice(setup.length).map((r, k) => list[k]!.statement.rowsOf(r.rows));
   }
 }
 

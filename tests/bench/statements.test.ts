@@ -10,7 +10,7 @@ import { eq } from "drizzle-orm";
 import { customers, jobs, lappingSessions, shops, users } from "@/db/schema";
 import { DEMO_USERS, seedDemoShop } from "@/db/seed";
 import { saveStrokeBatch } from "@/lib/bench/stroke-batch";
-import { literal, PLANNER_SETTINGS, Statements, statementsFor } from "@/lib/bench/statements";
+import { FixedStatement, literal, PLANNER_SETTINGS, Statements, statementsFor } from "@/lib/bench/statements";
 import { createHeadWithSeats } from "@/lib/heads/create";
 import { DEFAULT_HEAD_LAYOUT } from "@/lib/heads/layout";
 import { freshPglite, freshServerDatabase, serverUrl, type TestDatabase } from "../helpers/db";
@@ -86,12 +86,15 @@ describe("prepared statements", () => {
   it("give the same rows as the statement run plainly, prepared once and reused", async () => {
     const statements = statementsFor(t.db);
     expect(statementsFor(t.db)).toBe(statements);
-    const query = (ids: string[], label: string) => sql`select id, ${label}::text as label from unnest(${sql.param(ids)}::uuid[]) with ordinality as u(id, n) order by n`;
+    const probe = new FixedStatement<"ids" | "label">(
+      "probe_ids",
+      (v) => sql`select id, ${v.label}::text as label from unnest(${v.ids}::uuid[]) with ordinality as u(id, n) order by n`,
+    );
     for (const ids of [["5b3f0c5e-8d9a-4c1e-9f6b-2a7d4e8c1b90"], [], ["00000000-0000-0000-0000-000000000001", "00000000-0000-0000-0000-000000000002"]]) {
-      const plain = await rows(query(ids, "it's"));
-      const viaPrepared = await t.db.transaction(async (tx) => {
-        await statements.begin(tx as never);
-        return statements.rows(tx as never, "probe_ids", query(ids, "it's"));
+      const plain = await rows(sql`select id, ${"it's"}::text as label from unnest(${sql.param(ids)}::uuid[]) with ordinality as u(id, n) order by n`);
+      const [viaPrepared] = await t.db.transaction(async (tx) => {
+        statements.begin(tx as never);
+        return statements.run(tx as never, [{ statement: probe, values: { ids, label: "it's" } }]);
       });
       expect(viaPrepared).toEqual(plain);
     }
@@ -101,20 +104,31 @@ describe("prepared statements", () => {
 
   it("outlive a transaction that rolls back, as PostgreSQL's prepared statements do", async () => {
     const statements = new Statements(true);
+    const probe = new FixedStatement<"v">("probe_rollback", (v) => sql`select ${v.v}::int as v`);
     await t.db
       .transaction(async (tx) => {
-        await statements.rows(tx as never, "probe_rollback", sql`select ${1}::int as v`);
+        await statements.run(tx as never, [{ statement: probe, values: { v: 1 } }]);
         throw new Error("roll back");
       })
       .catch(() => {});
-    const again = await t.db.transaction((tx) => statements.rows(tx as never, "probe_rollback", sql`select ${2}::int as v`));
+    const [again] = await t.db.transaction((tx) => statements.run(tx as never, [{ statement: probe, values: { v: 2 } }]));
     expect(again).toEqual([{ v: 2 }]);
   });
 
-  it("refuse a statement whose text changes under the same name", async () => {
+  it("refuse two statements of different texts under the same name", async () => {
     const statements = new Statements(true);
-    await statements.rows(t.db, "probe_fixed", sql`select ${sql.param([1, 2])}::int[] as v`);
-    await expect(statements.rows(t.db, "probe_fixed", sql`select ${1}::int as v, ${2}::int as w`)).rejects.toThrow(/changed its text/);
+    const first = new FixedStatement<"v">("probe_fixed", (v) => sql`select ${v.v}::int[] as v`);
+    const second = new FixedStatement<"v" | "w">("probe_fixed", (v) => sql`select ${v.v}::int as v, ${v.w}::int as w`);
+    await statements.run(t.db, [{ statement: first, values: { v: [1, 2] } }]);
+    await expect(statements.run(t.db, [{ statement: second, values: { v: 1, w: 2 } }])).rejects.toThrow(/different texts/);
+  });
+
+  it("answer nothing for a statement that returns no rows, and run it", async () => {
+    const statements = new Statements(true);
+    await t.db.execute(sql`create temporary table probe_nothing (v int)`);
+    const insert = new FixedStatement<"v">("probe_nothing", (v) => sql`insert into probe_nothing values (${v.v}::int)`, "nothing");
+    expect(await statements.run(t.db, [{ statement: insert, values: { v: 7 } }])).toEqual([[]]);
+    expect(await rows(sql`select v from probe_nothing`)).toEqual([{ v: 7 }]);
   });
 });
 
@@ -174,7 +188,8 @@ describe.skipIf(!server)("on a PostgreSQL server", () => {
     const pg = await freshServerDatabase(server!);
     try {
       const statements = statementsFor(pg.db);
-      const result = await statements.rows(pg.db, "probe_server", sql`select ${"it's"}::text as v`);
+      const probe = new FixedStatement<"v">("probe_server", (v) => sql`select ${v.v}::text as v`);
+      const [result] = await statements.run(pg.db, [{ statement: probe, values: { v: "it's" } }]);
       expect(result).toEqual([{ v: "it's" }]);
       const named = (await pg.db.execute(sql`select count(*)::int as n from pg_prepared_statements`)) as unknown as Rows;
       expect(named.rows).toEqual([{ n: 0 }]);
