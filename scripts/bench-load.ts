@@ -216,6 +216,18 @@ function percentile(sorted: Float64Array, p: number): number {
 
 type Instance = autocannon.Options;
 
+/** 2xx answers and 201s among the statuses counted. */
+function tally(statuses: Map<number, number>): { ok2xx: number; created: number } {
+  let ok2xx = 0;
+  for (const [code, n] of statuses) if (code >= 200 && code < 300) ok2xx += n;
+  return { ok2xx, created: statuses.get(201) ?? 0 };
+}
+
+/** The app server's CPU time per answer over a run, from its CPU readings before and after. */
+function cpuPerAnswer(before: number | null, after: number | null, answers: number): number | null {
+  return before !== null && after !== null && answers > 0 ? (after - before) / answers : null;
+}
+
 /** Runs autocannon instances side by side and gathers every response's status and latency. */
 async function measure(pid: number | null, instances: Instance[]): Promise<Measured> {
   const latencies: number[] = [];
@@ -237,12 +249,9 @@ async function measure(pid: number | null, instances: Instance[]): Promise<Measu
   const seconds = Number(process.hrtime.bigint() - started) / 1e9;
   const cpuAfter = cpuMs(pid);
   const sorted = Float64Array.from(latencies).sort();
-  let ok2xx = 0;
-  for (const [code, n] of statuses) if (code >= 200 && code < 300) ok2xx += n;
   return {
     requests: latencies.length,
-    ok2xx,
-    created: statuses.get(201) ?? 0,
+    ...tally(statuses),
     statuses,
     errors: results.reduce((a, r) => a + r.errors, 0),
     timeouts: results.reduce((a, r) => a + r.timeouts, 0),
@@ -253,8 +262,7 @@ async function measure(pid: number | null, instances: Instance[]): Promise<Measu
       instances.reduce((a, o) => a + (o.connections ?? 1), 0),
       results.reduce((a, r) => a + r.requests.sent, 0) - latencies.length,
     ),
-    serverCpuMsPerRequest:
-      cpuBefore !== null && cpuAfter !== null && latencies.length > 0 ? (cpuAfter - cpuBefore) / latencies.length : null,
+    serverCpuMsPerRequest: cpuPerAnswer(cpuBefore, cpuAfter, latencies.length),
   };
 }
 
@@ -383,8 +391,9 @@ async function pacedSaves(baseURL: string, pid: number | null, phones: Phone[], 
           try {
             const status = await connection.post(nextStroke(phone, c));
             statuses.set(status, (statuses.get(status) ?? 0) + 1);
-            latencies.push(performance.now() - due);
-            if (TRACE) trace.push(`${(due - t0).toFixed(1)},${(performance.now() - due).toFixed(2)}`);
+            const latency = performance.now() - due;
+            latencies.push(latency);
+            if (TRACE) trace.push(`${(due - t0).toFixed(1)},${latency.toFixed(2)}`);
           } catch {
             errors++;
           }
@@ -398,11 +407,9 @@ async function pacedSaves(baseURL: string, pid: number | null, phones: Phone[], 
   const seconds = (performance.now() - t0) / 1000;
   const cpuAfter = cpuMs(pid);
   if (TRACE) fs.writeFileSync(TRACE, "due_ms,latency_ms\n" + trace.join("\n") + "\n");
-  const count = (pred: (code: number) => boolean) => [...statuses].filter(([code]) => pred(code)).reduce((n, [, k]) => n + k, 0);
   return {
     requests,
-    ok2xx: count((code) => code >= 200 && code < 300),
-    created: count((code) => code === 201),
+    ...tally(statuses),
     statuses,
     errors,
     timeouts: 0,
@@ -410,7 +417,7 @@ async function pacedSaves(baseURL: string, pid: number | null, phones: Phone[], 
     latencies: Float64Array.from(latencies).sort(),
     // Every save is waited for: none is left on its way at the stop.
     inFlight: 0,
-    serverCpuMsPerRequest: cpuBefore !== null && cpuAfter !== null && latencies.length > 0 ? (cpuAfter - cpuBefore) / latencies.length : null,
+    serverCpuMsPerRequest: cpuPerAnswer(cpuBefore, cpuAfter, latencies.length),
   };
 }
 
