@@ -48,6 +48,14 @@ export interface StrokeMeasures extends StrokeContrast {
   flatness: number;
   /** Full-band level of the body frames (Parseval: their Hann-weighted mean square), dBFS. */
   bodyLevelDbfs: number;
+  /** Mean high-band power of the onset frames and of the body frames (linear; onsetDb and bodyDb in dB). */
+  onsetPower: number;
+  bodyPower: number;
+  /** Each measured frame's voice-band and grind-band power, in plan order (onset frames first). */
+  voicePowers: number[];
+  grindPowers: number[];
+  /** How many of them are body frames (the last ones). */
+  bodyFrames: number;
 }
 
 /** The bins a stroke's frames are read over. */
@@ -58,6 +66,9 @@ export interface StrokeBands {
   /** Shape band (flatness), inclusive. */
   shapeFirst: number;
   shapeLast: number;
+  /** Voice band (talk over a stroke), inclusive. */
+  voiceFirst: number;
+  voiceLast: number;
 }
 
 export function strokeBands(sampleRateHz: number, frameSize: number, options: AnalysisOptions): StrokeBands {
@@ -69,7 +80,8 @@ export function strokeBands(sampleRateHz: number, frameSize: number, options: An
     options.shapeBandLowHz,
     Math.min(options.shapeBandHighHz, sampleRateHz * options.highBandMaxFractionOfRate),
   );
-  return { first, last, shapeFirst, shapeLast };
+  const [voiceFirst, voiceLast] = bandBins(sampleRateHz, frameSize, options.voiceBandLowHz, Math.min(options.voiceBandHighHz, sampleRateHz / 2));
+  return { first, last, shapeFirst, shapeLast, voiceFirst, voiceLast };
 }
 
 /**
@@ -124,7 +136,9 @@ export function shapeFrames(total: number, options: AnalysisOptions): boolean[] 
 
 /** What one frame of a plan contributes. */
 export interface FrameMeasure {
+  /** High (grind) band power. */
   power: number;
+  voicePower: number;
   meanSquare: number;
   /** Null when not asked for; NaN for silence, which the median leaves out. */
   flatness: number | null;
@@ -132,9 +146,10 @@ export interface FrameMeasure {
 
 /** Analyse the frame at samples[at, at + size) (zeros past the array's end). */
 export function measureFrame(samples: Float32Array, at: number, frame: SpectrumFrame, bands: StrokeBands, withShape: boolean): FrameMeasure {
-  frame.analyze(samples, at, withShape, bands.first, bands.last);
+  frame.analyze(samples, at, withShape, Math.min(bands.first, bands.voiceFirst), Math.max(bands.last, bands.voiceLast));
   return {
     power: bandPower(frame.power, bands.first, bands.last),
+    voicePower: bandPower(frame.power, bands.voiceFirst, bands.voiceLast),
     meanSquare: frame.meanSquare,
     flatness: withShape ? spectralFlatness(frame.amplitude.subarray(bands.shapeFirst, bands.shapeLast + 1)) : null,
   };
@@ -151,8 +166,12 @@ export function combineStroke(plan: StrokePlan, frames: readonly FrameMeasure[])
   let body = 0;
   let bodyMeanSquare = 0;
   const flat: number[] = [];
+  const voicePowers: number[] = new Array<number>(total);
+  const grindPowers: number[] = new Array<number>(total);
   for (let i = 0; i < total; i++) {
     const m = frames[i];
+    voicePowers[i] = m.voicePower;
+    grindPowers[i] = m.power;
     if (i < plan.onsetCount) onset += m.power;
     else {
       body += m.power;
@@ -161,14 +180,21 @@ export function combineStroke(plan: StrokePlan, frames: readonly FrameMeasure[])
     if (plan.shape[i] && m.flatness !== null && Number.isFinite(m.flatness)) flat.push(m.flatness);
   }
   const bodyCount = total - plan.onsetCount;
-  const onsetDb = 10 * Math.log10(onset / plan.onsetCount);
-  const bodyDb = 10 * Math.log10(body / bodyCount);
+  const onsetPower = onset / plan.onsetCount;
+  const bodyPower = body / bodyCount;
+  const onsetDb = 10 * Math.log10(onsetPower);
+  const bodyDb = 10 * Math.log10(bodyPower);
   return {
     onsetDb,
     bodyDb,
     contrastDb: onsetDb - bodyDb,
     flatness: median(flat),
     bodyLevelDbfs: 10 * Math.log10(bodyMeanSquare / bodyCount),
+    onsetPower,
+    bodyPower,
+    voicePowers,
+    grindPowers,
+    bodyFrames: bodyCount,
   };
 }
 
@@ -200,7 +226,7 @@ function spreadPositions(positions: number[], max: number): number[] {
   return out;
 }
 
-function median(values: number[]): number {
+export function median(values: number[]): number {
   if (values.length === 0) return 0;
   values.sort((a, b) => a - b);
   const mid = values.length >> 1;

@@ -1,13 +1,18 @@
 // The level envelope and the noise floor. Every sample passes through here,
-// so this is the only per-sample loop of the engine: mean-square level per
-// hop, a sliding window over hops, and clipping runs. Spectra are computed
+// so this is the only per-sample loop of the engine: a high-pass into the
+// level band, mean-square level per hop, a sliding window over hops, and
+// clipping runs on the raw samples. Spectra are computed
 // later, only where a stroke turned up.
 
 import type { AnalysisOptions } from "./options";
 
 export interface LevelSeries {
-  /** Windowed mean-square level at each hop (linear, full scale = 1). */
+  /** Windowed mean-square level of the level band at each hop (linear, full scale = 1). */
   levels: Float64Array;
+  /** Each hop's own mean-square level of the level band, unwindowed. */
+  hopPowers: Float64Array;
+  /** Each hop's kurtosis in the level band (3 for Gaussian noise; knocks and clicks raise it). */
+  hopKurtosis: Float64Array;
   /** 1 where a clipping run began inside the hop. */
   clipped: Uint8Array;
   hopSize: number;
@@ -15,99 +20,188 @@ export interface LevelSeries {
 }
 
 /**
+ * Coefficients of a second-order Butterworth high-pass (the biquad of R.
+ * Bristow-Johnson's Audio EQ Cookbook with Q = 1/√2), normalised so a0 = 1.
+ */
+export interface Biquad {
+  b0: number;
+  b1: number;
+  b2: number;
+  a1: number;
+  a2: number;
+}
+
+export function butterworthHighPass(cutoffHz: number, sampleRateHz: number): Biquad {
+  if (!(cutoffHz > 0 && cutoffHz < sampleRateHz / 2)) {
+    throw new RangeError(`high-pass cutoff must lie between 0 and ${sampleRateHz / 2} Hz, got ${cutoffHz}`);
+  }
+  const w0 = (2 * Math.PI * cutoffHz) / sampleRateHz;
+  const cos = Math.cos(w0);
+  const alpha = Math.sin(w0) / (2 * Math.SQRT1_2);
+  const a0 = 1 + alpha;
+  return { b0: (1 + cos) / 2 / a0, b1: -(1 + cos) / a0, b2: (1 + cos) / 2 / a0, a1: (-2 * cos) / a0, a2: (1 - alpha) / a0 };
+}
+
+/** The matching second-order Butterworth low-pass (same cookbook, Q = 1/√2). */
+export function butterworthLowPass(cutoffHz: number, sampleRateHz: number): Biquad {
+  if (!(cutoffHz > 0 && cutoffHz < sampleRateHz / 2)) {
+    throw new RangeError(`low-pass cutoff must lie between 0 and ${sampleRateHz / 2} Hz, got ${cutoffHz}`);
+  }
+  const w0 = (2 * Math.PI * cutoffHz) / sampleRateHz;
+  const cos = Math.cos(w0);
+  const alpha = Math.sin(w0) / (2 * Math.SQRT1_2);
+  const a0 = 1 + alpha;
+  return { b0: (1 - cos) / 2 / a0, b1: (1 - cos) / a0, b2: (1 - cos) / 2 / a0, a1: (-2 * cos) / a0, a2: (1 - alpha) / a0 };
+}
+
+/** Run a biquad over samples in place (direct form I, from rest). */
+export function filterInPlace(samples: Float32Array | Float64Array, f: Biquad): void {
+  let x1 = 0;
+  let x2 = 0;
+  let y1 = 0;
+  let y2 = 0;
+  for (let i = 0; i < samples.length; i++) {
+    const x = samples[i];
+    const y = f.b0 * x + f.b1 * x1 + f.b2 * x2 - f.a1 * y1 - f.a2 * y2;
+    x2 = x1;
+    x1 = x;
+    y2 = y1;
+    y1 = y;
+    samples[i] = y;
+  }
+}
+
+/** The level band's high-pass at this rate, or null for none (capped below Nyquist like the grind band). */
+export function levelBandFilter(sampleRateHz: number, options: AnalysisOptions): Biquad | null {
+  if (options.levelBandLowHz <= 0) return null;
+  return butterworthHighPass(Math.min(options.levelBandLowHz, sampleRateHz * options.highBandMaxFractionOfRate), sampleRateHz);
+}
+
+/**
  * Incremental meter: push samples in blocks of any size; it calls `onHop`
- * once per completed hop. Offline and live analysis both run this exact code,
- * which is what makes their envelopes, and therefore their strokes, identical.
+ * once per completed hop with the windowed level, whether a clipping run
+ * began in the hop, and the hop's own (unwindowed) power. Levels are of the
+ * level band (the high-passed signal); clipping is judged on the raw samples.
+ * Offline and live analysis both run this exact code, one sample after the
+ * other whatever the block sizes, which is what makes their envelopes, and
+ * therefore their strokes, identical.
  */
 export class LevelMeter {
   readonly hopSize: number;
   readonly windowHops: number;
   private readonly clipLevel: number;
   private readonly clipRunSamples: number;
+  private readonly filter: Biquad | null;
   private readonly ring: Float64Array;
   private ringPos = 0;
   private filled = 0;
-  private readonly lanes = new Float64Array(4);
+  private sum = 0;
+  private sum4 = 0;
+  private x1 = 0;
+  private x2 = 0;
+  private y1 = 0;
+  private y2 = 0;
   private count = 0;
   private clipRun = 0;
   private hopClipped = 0;
   /** Hops completed so far. */
   hops = 0;
 
-  constructor(hopSize: number, windowHops: number, clipLevel: number, clipRunSamples: number) {
+  constructor(hopSize: number, windowHops: number, clipLevel: number, clipRunSamples: number, filter: Biquad | null = null) {
     this.hopSize = hopSize;
     this.windowHops = windowHops;
     this.clipLevel = clipLevel;
     this.clipRunSamples = clipRunSamples;
+    this.filter = filter;
     this.ring = new Float64Array(windowHops);
   }
 
   static fromOptions(sampleRateHz: number, options: AnalysisOptions): LevelMeter {
     const hopSize = Math.max(1, Math.round((sampleRateHz * options.hopMs) / 1000));
     const windowHops = Math.max(1, Math.round(options.levelWindowMs / options.hopMs));
-    return new LevelMeter(hopSize, windowHops, options.clipLevel, options.clipRunSamples);
+    return new LevelMeter(hopSize, windowHops, options.clipLevel, options.clipRunSamples, levelBandFilter(sampleRateHz, options));
   }
 
   reset(): void {
     this.ring.fill(0);
     this.ringPos = 0;
     this.filled = 0;
-    this.lanes.fill(0);
+    this.sum = 0;
+    this.sum4 = 0;
+    this.x1 = this.x2 = this.y1 = this.y2 = 0;
     this.count = 0;
     this.clipRun = 0;
     this.hopClipped = 0;
     this.hops = 0;
   }
 
-  push(block: Float32Array, from: number, to: number, onHop: (level: number, clipped: boolean) => void): void {
+  push(
+    block: Float32Array,
+    from: number,
+    to: number,
+    onHop: (level: number, clipped: boolean, hopPower: number, hopKurtosis: number) => void,
+  ): void {
     const hop = this.hopSize;
-    const lanes = this.lanes;
     // A sample at or beyond the clip level adds at least clipLevel² to its
-    // piece's sum of squares, so a piece below that holds none and needs no
-    // per-sample clipping test — which would cost more than the sum itself.
+    // piece's raw sum of squares, so a piece below that holds none and needs
+    // no per-sample clipping test.
     const clipSquare = this.clipLevel * this.clipLevel;
+    const f = this.filter;
     let i = from;
     while (i < to) {
       const take = Math.min(hop - this.count, to - i);
       const end = i + take;
-      const before = lanes[0] + lanes[1] + lanes[2] + lanes[3];
       const pieceStart = i;
-      // Four partial sums, each sample going to the lane of its position in
-      // the hop: the same additions in the same order however the audio is
-      // split into blocks, so live and offline levels agree to the bit.
-      let pos = this.count;
-      for (; i < end && (pos & 3) !== 0; i++, pos++) lanes[pos & 3] += block[i] * block[i];
-      let s0 = lanes[0];
-      let s1 = lanes[1];
-      let s2 = lanes[2];
-      let s3 = lanes[3];
-      for (; i + 3 < end; i += 4, pos += 4) {
-        const a = block[i];
-        const b = block[i + 1];
-        const c = block[i + 2];
-        const d = block[i + 3];
-        s0 += a * a;
-        s1 += b * b;
-        s2 += c * c;
-        s3 += d * d;
+      let raw = 0;
+      let sum = this.sum;
+      let sum4 = this.sum4;
+      if (f) {
+        // A high-pass biquad has b1 = -2·b0 and b2 = b0: three products a sample.
+        const { b0, a1, a2 } = f;
+        let x1 = this.x1;
+        let x2 = this.x2;
+        let y1 = this.y1;
+        let y2 = this.y2;
+        for (; i < end; i++) {
+          const x = block[i];
+          raw += x * x;
+          const y = b0 * (x - 2 * x1 + x2) - a1 * y1 - a2 * y2;
+          x2 = x1;
+          x1 = x;
+          y2 = y1;
+          y1 = y;
+          const yy = y * y;
+          sum += yy;
+          sum4 += yy * yy;
+        }
+        this.x1 = x1;
+        this.x2 = x2;
+        this.y1 = y1;
+        this.y2 = y2;
+      } else {
+        for (; i < end; i++) {
+          const xx = block[i] * block[i];
+          raw += xx;
+          sum4 += xx * xx;
+        }
+        sum += raw;
       }
-      lanes[0] = s0;
-      lanes[1] = s1;
-      lanes[2] = s2;
-      lanes[3] = s3;
-      for (; i < end; i++, pos++) lanes[pos & 3] += block[i] * block[i];
-      if (lanes[0] + lanes[1] + lanes[2] + lanes[3] - before >= 0.5 * clipSquare) this.scanClipping(block, pieceStart, end);
+      this.sum = sum;
+      this.sum4 = sum4;
+      if (raw >= 0.5 * clipSquare) this.scanClipping(block, pieceStart, end);
       else this.clipRun = 0;
       this.count += take;
       if (this.count === hop) {
-        const power = (lanes[0] + lanes[1] + (lanes[2] + lanes[3])) / hop;
-        lanes.fill(0);
+        const power = this.sum / hop;
+        const kurtosis = this.sum > 0 ? (hop * this.sum4) / (this.sum * this.sum) : 0;
+        this.sum = 0;
+        this.sum4 = 0;
         this.count = 0;
         const level = this.windowed(power);
         const clipped = this.hopClipped === 1;
         this.hopClipped = 0;
         this.hops++;
-        onHop(level, clipped);
+        onHop(level, clipped, power, kurtosis);
       }
     }
   }
@@ -144,13 +238,17 @@ export function levelSeries(samples: Float32Array, sampleRateHz: number, options
   const n = Math.floor(samples.length / meter.hopSize);
   const levels = new Float64Array(n);
   const clipped = new Uint8Array(n);
+  const hopPowers = new Float64Array(n);
+  const hopKurtosis = new Float64Array(n);
   let h = 0;
-  meter.push(samples, 0, n * meter.hopSize, (level, clip) => {
+  meter.push(samples, 0, n * meter.hopSize, (level, clip, power, kurtosis) => {
     levels[h] = level;
     clipped[h] = clip ? 1 : 0;
+    hopPowers[h] = power;
+    hopKurtosis[h] = kurtosis;
     h++;
   });
-  return { levels, clipped, hopSize: meter.hopSize, windowHops: meter.windowHops };
+  return { levels, hopPowers, hopKurtosis, clipped, hopSize: meter.hopSize, windowHops: meter.windowHops };
 }
 
 /** The p-th percentile (0–100) of values[from..to), by selection, not a full sort. */

@@ -14,7 +14,7 @@
 // so no block costs more than a bounded amount of transform work; a
 // judgement still missing frames at the close waits for later pushes.
 
-import { StrokeJudge, type Judgement, type Stroke } from "./analyzer";
+import { givenFloors, StrokeJudge, type Judgement, type Stroke, type StrokeHops } from "./analyzer";
 import {
   combineStroke,
   measureFrame,
@@ -26,6 +26,7 @@ import {
   type StrokeBands,
   type StrokePlan,
 } from "./contrast";
+import { bandFloors, calibrationDisturbed, floorGrid, isQuietFrame, measureFloorFrame, type FloorFrame, type NoiseFloors } from "./floors";
 import { LevelMeter, noiseFloorDbfs } from "./level";
 import { resolveOptions, validateSampleRate, type AnalysisOptions, type AnalysisOptionsInput } from "./options";
 import { StrokeSegmenter, type Candidate, type RejectedSound } from "./strokes";
@@ -33,7 +34,15 @@ import { StrokeSegmenter, type Candidate, type RejectedSound } from "./strokes";
 export type LiveState = "calibrating" | "listening";
 
 export type LiveEvent =
-  | { type: "calibrated"; noiseFloorDbfs: number; atS: number }
+  | {
+      type: "calibrated";
+      /** Level-band floor, dBFS. */
+      noiseFloorDbfs: number;
+      noiseFloors: NoiseFloors;
+      /** Something sounded during the calibration: the floors come from its quiet part only. */
+      disturbed: boolean;
+      atS: number;
+    }
   | { type: "stroke"; stroke: Stroke }
   | { type: "rejected"; sound: RejectedSound };
 
@@ -41,10 +50,11 @@ export interface LiveAnalyzerInput {
   sampleRate: number;
   options?: AnalysisOptionsInput;
   /**
-   * A floor already known (e.g. from an earlier calibration), dBFS. Without
-   * it the analyzer first calibrates on calibrationMs of room sound.
+   * Floors already known (e.g. from an earlier calibration); a number is the
+   * level floor alone (see analyzeRecording). Without them the analyzer
+   * first calibrates on calibrationMs of room sound.
    */
-  noiseFloorDbfs?: number;
+  noiseFloorDbfs?: number | NoiseFloors;
 }
 
 const NO_EVENTS: readonly LiveEvent[] = Object.freeze([]);
@@ -61,7 +71,8 @@ export const SPECTRA_PER_128_SAMPLES = 2;
 interface PendingJudgement {
   candidate: Candidate;
   clipped: boolean;
-  floorDbfs: number;
+  /** Level-band power and kurtosis of each of its hops. */
+  hops: StrokeHops;
   /** Absolute sample range of the burst. */
   start: number;
   end: number;
@@ -100,10 +111,23 @@ export class LiveAnalyzer {
   private readonly segmenter: StrokeSegmenter;
   private readonly judge: StrokeJudge;
   private readonly hopSize: number;
-  private floor: number | null = null;
+  private floors: NoiseFloors | null = null;
   private calibrationHops = 0;
   private calibration: Float64Array;
   private calibrationCount = 0;
+  /** Absolute sample where the calibration began, its band-floor frames and how many are measured. */
+  private calibrationStart = 0;
+  private calibrationFrames: number[] = [];
+  private calibrationMeasured: FloorFrame[] = [];
+  /** Set when the calibration's hops are all in: its level floor, waiting for the band floors. */
+  private calibrationLevel: { levelDbfs: number; disturbed: boolean; atS: number } | null = null;
+  private disturbed = false;
+  // Level-band power of every hop since hopBase, for the knock test and the
+  // calibration's quiet frames; trimmed with the audio.
+  private hopPowers: Float64Array = new Float64Array(1 << 12);
+  private hopKurtosis: Float64Array = new Float64Array(1 << 12);
+  private hopBase = 0;
+  private hopCount = 0;
   private liveState: LiveState = "calibrating";
   // Audio since the earliest sample a stroke may still need; `base` is the
   // absolute index of history[0].
@@ -156,8 +180,19 @@ export class LiveAnalyzer {
     return this.liveState;
   }
 
+  /** Level-band floor, dBFS; null while calibrating. */
   get noiseFloorDbfs(): number | null {
-    return this.floor;
+    return this.floors ? this.floors.levelDbfs : this.calibrationLevel ? this.calibrationLevel.levelDbfs : null;
+  }
+
+  /** Floors per band; null until a calibration has finished. */
+  get noiseFloors(): NoiseFloors | null {
+    return this.floors;
+  }
+
+  /** Whether the last calibration heard a sound. */
+  get calibrationDisturbed(): boolean {
+    return this.disturbed;
   }
 
   /** Seconds of audio pushed since creation or reset. */
@@ -191,14 +226,23 @@ export class LiveAnalyzer {
     this.calibrationHops = Math.max(1, Math.floor(Math.round((this.sampleRate * durationMs) / 1000) / this.hopSize));
     this.calibration = new Float64Array(this.calibrationHops);
     this.calibrationCount = 0;
+    this.calibrationStart = this.meter.hops * this.hopSize;
+    this.calibrationFrames = floorGrid(this.calibrationStart, this.calibrationStart + this.calibrationHops * this.hopSize, this.frameSize);
+    this.calibrationMeasured = [];
+    this.calibrationLevel = null;
     this.liveState = "calibrating";
     this.segmenter.reset();
   }
 
-  setNoiseFloor(dbfs: number): void {
-    if (!Number.isFinite(dbfs) || dbfs > 0) throw new RangeError(`noiseFloorDbfs must be a finite level at or below 0 dBFS, got ${dbfs}`);
-    this.floor = dbfs;
-    this.segmenter.setNoiseFloor(dbfs);
+  /** Use known floors (a number: the level floor alone) and listen at once. */
+  setNoiseFloor(floors: number | NoiseFloors): void {
+    if (typeof floors === "number" && (!Number.isFinite(floors) || floors > 0)) {
+      throw new RangeError(`noiseFloorDbfs must be a finite level at or below 0 dBFS, got ${floors}`);
+    }
+    this.floors = givenFloors(floors, this.options);
+    this.calibrationLevel = null;
+    this.calibrationFrames = [];
+    this.segmenter.setNoiseFloor(this.floors.levelDbfs);
     this.liveState = "listening";
   }
 
@@ -214,7 +258,11 @@ export class LiveAnalyzer {
     this.open = null;
     this.pending = [];
     this.credit = 0;
-    this.floor = null;
+    this.floors = null;
+    this.disturbed = false;
+    this.hopBase = 0;
+    this.hopCount = 0;
+    this.judge.reset();
     this.startCalibration();
   }
 
@@ -254,15 +302,21 @@ export class LiveAnalyzer {
     return out;
   }
 
-  private readonly onHop = (level: number, clipped: boolean): void => {
+  private readonly onHop = (level: number, clipped: boolean, power: number, kurtosis: number): void => {
     const hop = this.meter.hops - 1;
     if (clipped) this.clipHops.push(hop);
+    this.keepHop(power, kurtosis);
     if (this.liveState === "calibrating") {
       this.calibration[this.calibrationCount++] = level;
       if (this.calibrationCount === this.calibrationHops) {
-        const floor = noiseFloorDbfs(this.calibration, this.options);
-        this.setNoiseFloor(floor);
-        this.events.push({ type: "calibrated", noiseFloorDbfs: floor, atS: ((hop + 1) * this.hopSize) / this.sampleRate });
+        // The level floor is known now, so strokes are looked for from the
+        // next hop on; the band floors follow in work(), before any stroke
+        // is judged, once the calibration's last frames are measured.
+        const levelDbfs = noiseFloorDbfs(this.calibration, this.options);
+        const disturbed = calibrationDisturbed(this.calibration, 0, this.calibrationHops, levelDbfs, this.options);
+        this.calibrationLevel = { levelDbfs, disturbed, atS: ((hop + 1) * this.hopSize) / this.sampleRate };
+        this.segmenter.setNoiseFloor(levelDbfs);
+        this.liveState = "listening";
       }
       return;
     }
@@ -296,7 +350,10 @@ export class LiveAnalyzer {
     this.pending.push({
       candidate: c,
       clipped: clip,
-      floorDbfs: this.floor ?? this.options.minNoiseFloorDbfs,
+      hops: {
+        powers: this.hopPowers.slice(c.startHop - this.hopBase, c.endHop - this.hopBase),
+        kurtosis: this.hopKurtosis.slice(c.startHop - this.hopBase, c.endHop - this.hopBase),
+      },
       start,
       end,
       plan,
@@ -311,7 +368,12 @@ export class LiveAnalyzer {
    * sounding. Returns the number computed.
    */
   private work(budget: number): number {
-    let spent = 0;
+    let spent = this.measureCalibration(budget);
+    if (this.calibrationLevel && this.calibrationMeasured.length < this.calibrationFrames.length) {
+      // The calibration is over: its last frame or two are measured now, whatever the budget.
+      spent += this.measureCalibration(Infinity);
+    }
+    if (this.calibrationLevel) this.finishCalibration();
     while (this.pending.length > 0) {
       const p = this.pending[0];
       if (p.plan) {
@@ -335,9 +397,9 @@ export class LiveAnalyzer {
     let j: Judgement;
     if (p.plan) {
       // work() has filled every frame before reporting.
-      j = this.judge.judgeMeasured(p.candidate, combineStroke(p.plan, p.frames as FrameMeasure[]), p.floorDbfs, p.clipped);
+      j = this.judge.judgeMeasured(p.candidate, combineStroke(p.plan, p.frames as FrameMeasure[]), this.currentFloors(), p.clipped, p.hops);
     } else {
-      j = this.judge.judge(p.candidate, null, p.floorDbfs, p.clipped);
+      j = this.judge.judge(p.candidate, null, this.currentFloors(), p.clipped, p.hops);
     }
     if (j.kind === "stroke") {
       const stroke: Stroke = { index: this.accepted.length + 1, ...j.stroke };
@@ -346,6 +408,55 @@ export class LiveAnalyzer {
     } else {
       this.events.push({ type: "rejected", sound: j.sound });
     }
+  }
+
+  private currentFloors(): NoiseFloors {
+    const low = this.options.minNoiseFloorDbfs;
+    return this.floors ?? { levelDbfs: low, grindDbfs: low, voiceDbfs: low };
+  }
+
+  /** Measure the calibration's band-floor frames whose audio has arrived, up to `budget`. */
+  private measureCalibration(budget: number): number {
+    let spent = 0;
+    const end = this.base + this.length;
+    while (spent < budget && this.calibrationMeasured.length < this.calibrationFrames.length) {
+      const at = this.calibrationFrames[this.calibrationMeasured.length];
+      if (at + this.frameSize > end) break;
+      this.spectraTotal++;
+      this.spectraThisCall++;
+      this.calibrationMeasured.push(measureFloorFrame(this.history, at - this.base, at, this.judge.frame, this.bands));
+      spent++;
+    }
+    return spent;
+  }
+
+  private finishCalibration(): void {
+    const cal = this.calibrationLevel;
+    if (!cal) return;
+    const o = this.options;
+    const quiet = this.calibrationMeasured.map((f) =>
+      isQuietFrame(f.at, this.frameSize, this.hopSize, this.hopPowers.subarray(0, this.hopCount), this.hopBase, cal.levelDbfs, o),
+    );
+    this.floors = bandFloors(cal.levelDbfs, this.calibrationMeasured, quiet, o);
+    this.disturbed = cal.disturbed;
+    this.calibrationLevel = null;
+    this.calibrationFrames = [];
+    this.calibrationMeasured = [];
+    this.events.push({ type: "calibrated", noiseFloorDbfs: this.floors.levelDbfs, noiseFloors: this.floors, disturbed: cal.disturbed, atS: cal.atS });
+  }
+
+  private keepHop(power: number, kurtosis: number): void {
+    if (this.hopCount === this.hopPowers.length) {
+      const grow = (a: Float64Array) => {
+        const bigger = new Float64Array(2 * a.length);
+        bigger.set(a);
+        return bigger;
+      };
+      this.hopPowers = grow(this.hopPowers);
+      this.hopKurtosis = grow(this.hopKurtosis);
+    }
+    this.hopKurtosis[this.hopCount] = kurtosis;
+    this.hopPowers[this.hopCount++] = power;
   }
 
   private measure(view: Float32Array, at: number, withShape: boolean): FrameMeasure {
@@ -429,9 +540,22 @@ export class LiveAnalyzer {
         keepFrom = Math.min(keepFrom, p.start);
         break;
       }
+      // So does a calibration frame not yet measured.
+      if (this.calibrationMeasured.length < this.calibrationFrames.length) {
+        keepFrom = Math.min(keepFrom, this.calibrationFrames[this.calibrationMeasured.length]);
+      }
       const drop = keepFrom - this.base;
       const keepHop = Math.floor(keepFrom / this.hopSize);
       this.clipHops = this.clipHops.filter((h) => h >= keepHop);
+      // Hop powers from the same hop on (a calibration's are needed until it finishes).
+      const keepHopPowers = this.calibrationLevel || this.liveState === "calibrating" ? Math.min(keepHop, Math.floor(this.calibrationStart / this.hopSize)) : keepHop;
+      if (keepHopPowers > this.hopBase) {
+        const dropHops = Math.min(keepHopPowers - this.hopBase, this.hopCount);
+        this.hopPowers.copyWithin(0, dropHops, this.hopCount);
+        this.hopKurtosis.copyWithin(0, dropHops, this.hopCount);
+        this.hopCount -= dropHops;
+        this.hopBase += dropHops;
+      }
       this.history.copyWithin(0, drop, this.length);
       this.base = keepFrom;
       this.length -= drop;

@@ -25,6 +25,17 @@ export const ANALYSIS_DEFAULTS = Object.freeze({
   calibrationMs: 2000,
   // Digital silence has no level; clamp the floor so thresholds stay finite.
   minNoiseFloorDbfs: -100,
+  // The level envelope that finds strokes is measured above this frequency
+  // (a second-order Butterworth high-pass): compressor rumble, mains hum and
+  // most of a voice's energy lie below it, lapping noise mostly above.
+  levelBandLowHz: 2000,
+  // Band noise floors (grind band, voice band) come from frames whose hops
+  // all lie within this margin of the level floor: the quiet part of a
+  // calibration, or the pauses of a file.
+  quietMarginDb: 3,
+  // At most this many quiet frames are measured for the band floors of a
+  // file without a lead-in.
+  floorFramesMax: 128,
 
   // Hysteresis: a stroke begins when the level rises this far above the floor
   // and lasts while it stays above the lower exit level.
@@ -34,6 +45,16 @@ export const ANALYSIS_DEFAULTS = Object.freeze({
   // stroke counts as ended; shorter dips are the reversal of a back-and-forth.
   // Kept short because the bench screen shows a stroke only once it has ended.
   minLiftMs: 100,
+  // A stroke that starts under a quieter sound's tail (talk, a running tool)
+  // never drops to the floor first. While a burst sounds, its level is
+  // tracked in dB with this time constant (following every rise at once over
+  // its first levelWindowMs + splitHoldMs, while the sound comes up); a rise
+  // of splitRiseDb above the track that holds splitHoldMs starts a new burst
+  // where the rise began. Lapping's own swing and reversals stay well inside
+  // this, and a knock is over before the hold.
+  levelTrackMs: 500,
+  splitRiseDb: 9,
+  splitHoldMs: 60,
   minStrokeMs: 300,
   // Longer continuous sound is machinery or a running tap, not one stroke.
   maxStrokeMs: 10_000,
@@ -65,8 +86,44 @@ export const ANALYSIS_DEFAULTS = Object.freeze({
   // How many frames of a candidate are inspected for its shape.
   shapeFramesPerStroke: 12,
 
-  // Quality: the body must be this far above the noise floor to be judged.
-  minBodyAboveFloorDb: 10,
+  // Quality, judged where we measure: the body's grind-band power, less the
+  // calibrated grind-band noise, must be this far above that noise. Below
+  // it the noise subtraction leans too hard on the floor estimate.
+  minBandSnrDb: 8,
+
+  // Talk over a stroke. The voice band holds a voice's low harmonics and
+  // first formant, above most compressor rumble; lapping noise puts little
+  // there. A frame counts as voiced when its voice-band power, less the
+  // calibrated voice-band noise (so steady hum does not count), stands
+  // voiceOverNoiseDb above that noise (so a swelling compressor does not)
+  // and exceeds either voiceOverGrindMaxDb above the body's grind-band power
+  // (no lapping sound is tilted that far) or voiceOverReferenceDb above what
+  // this session's clean strokes put there.
+  voiceBandLowHz: 300,
+  voiceBandHighHz: 1000,
+  voiceOverNoiseDb: 8,
+  voiceOverGrindMaxDb: 10,
+  voiceOverReferenceDb: 6,
+  // Voiced frames among a stroke's measured frames that flag it (a syllable
+  // covers several; a compressor's swell now and then one or two).
+  voiceMinFrames: 4,
+  // A voiced burst less flat than this is talk, not a stroke with talk over
+  // it: lapping under a voice measured 0.77–0.8, espeak-ng speech alone
+  // 0.1–0.56 (synthetic sessions of the tests).
+  minFlatnessWithVoice: 0.7,
+  // A stroke starting this soon after a sound rejected as speech is flagged
+  // too: a fricative can open a stroke while the vowel before it was apart.
+  speechGuardMs: 300,
+  // Knocks and rattles over a stroke: a hop whose level-band power is this
+  // far above the median of its neighbours within the stroke is a spike;
+  // this many spikes flag the stroke. The onset burst rises and decays over
+  // tens of milliseconds, so it never spikes against its neighbours.
+  impulseSpikeDb: 4,
+  impulseNeighbourHops: 5,
+  // A hop's kurtosis in the level band: about 3 for noise like lapping's
+  // (Gaussian), higher where sharp clicks sit inside it.
+  impulseKurtosis: 5,
+  impulseMinSpikes: 3,
   // Clipping: this many consecutive samples at or beyond this fraction of full
   // scale (8-bit PCM peaks at 127/128, so 0.99 still catches it).
   clipLevel: 0.99,
@@ -84,6 +141,11 @@ export const ANALYSIS_DEFAULTS = Object.freeze({
   // most this far ahead.
   fitMinStrokes: 3,
   remainingHorizonStrokes: 200,
+  // The strokes-remaining forecast is shown only when the forecasts made at
+  // the last forecastStableStrokes judged strokes agree on the stroke the
+  // seat settles at to within this fraction of what remains (or one stroke).
+  forecastStableStrokes: 3,
+  forecastStableFraction: 0.3,
 });
 
 export type AnalysisOptions = { readonly [K in keyof typeof ANALYSIS_DEFAULTS]: number };
@@ -108,9 +170,15 @@ const BOUNDS: { readonly [K in keyof AnalysisOptions]: Bound } = {
   leadInMs: { min: 0, max: 60_000 },
   calibrationMs: { min: 100, max: 60_000 },
   minNoiseFloorDbfs: { min: -200, max: -20 },
+  levelBandLowHz: { min: 0, max: 20_000 },
+  quietMarginDb: { min: 0, max: 40 },
+  floorFramesMax: { min: 1, max: 10_000, integer: true },
   strokeStartAboveFloorDb: { min: 0, max: 80, minExclusive: true },
   strokeEndAboveFloorDb: { min: 0, max: 80, minExclusive: true },
   minLiftMs: { min: 0, max: 5000 },
+  levelTrackMs: { min: 10, max: 60_000 },
+  splitRiseDb: { min: 0, max: 80, minExclusive: true },
+  splitHoldMs: { min: 0, max: 5000 },
   minStrokeMs: { min: 0, max: 60_000 },
   maxStrokeMs: { min: 10, max: 120_000 },
   highBandLowHz: { min: 20, max: 48_000 },
@@ -124,7 +192,19 @@ const BOUNDS: { readonly [K in keyof AnalysisOptions]: Bound } = {
   shapeBandHighHz: { min: 20, max: 48_000 },
   minFlatness: { min: 0, max: 1 },
   shapeFramesPerStroke: { min: 1, max: 1000, integer: true },
-  minBodyAboveFloorDb: { min: 0, max: 80 },
+  minBandSnrDb: { min: -20, max: 80 },
+  voiceBandLowHz: { min: 20, max: 20_000 },
+  voiceBandHighHz: { min: 20, max: 20_000 },
+  voiceOverNoiseDb: { min: 0, max: 80 },
+  voiceOverGrindMaxDb: { min: -40, max: 80 },
+  voiceOverReferenceDb: { min: 0, max: 80 },
+  voiceMinFrames: { min: 1, max: 1000, integer: true },
+  minFlatnessWithVoice: { min: 0, max: 1 },
+  speechGuardMs: { min: 0, max: 10_000 },
+  impulseSpikeDb: { min: 1, max: 80 },
+  impulseNeighbourHops: { min: 2, max: 100, integer: true },
+  impulseKurtosis: { min: 3, max: 1000 },
+  impulseMinSpikes: { min: 1, max: 10_000, integer: true },
   clipLevel: { min: 0.5, max: 1, minExclusive: false },
   clipRunSamples: { min: 1, max: 1000, integer: true },
   settledStrokes: { min: 2, max: 100, integer: true },
@@ -134,6 +214,8 @@ const BOUNDS: { readonly [K in keyof AnalysisOptions]: Bound } = {
   notSettlingSlopeStrokes: { min: 2, max: 1000, integer: true },
   fitMinStrokes: { min: 3, max: 1000, integer: true },
   remainingHorizonStrokes: { min: 1, max: 100_000, integer: true },
+  forecastStableStrokes: { min: 1, max: 100, integer: true },
+  forecastStableFraction: { min: 0, max: 10 },
 };
 
 function fail(message: string): never {
@@ -176,6 +258,9 @@ export function resolveOptions(input: unknown = {}): AnalysisOptions {
   }
   if (o.shapeBandLowHz >= o.shapeBandHighHz) {
     fail(`shapeBandLowHz (${o.shapeBandLowHz}) must be below shapeBandHighHz (${o.shapeBandHighHz})`);
+  }
+  if (o.voiceBandLowHz >= o.voiceBandHighHz) {
+    fail(`voiceBandLowHz (${o.voiceBandLowHz}) must be below voiceBandHighHz (${o.voiceBandHighHz})`);
   }
   if (o.bodyStartFraction >= o.bodyEndFraction) {
     fail(`bodyStartFraction (${o.bodyStartFraction}) must be below bodyEndFraction (${o.bodyEndFraction})`);

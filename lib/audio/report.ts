@@ -2,7 +2,7 @@
 // the JSON report of a recording, and a plain-text table for people.
 
 import type { AnalysisResult, RecordingWarning } from "./analyzer";
-import { WARNING_TEXT } from "./analyzer";
+import { FLAG_TEXT, WARNING_TEXT } from "./analyzer";
 import type { StrokeFlag } from "./verdict";
 
 export interface ReportStroke {
@@ -12,13 +12,22 @@ export interface ReportStroke {
   onsetDb: number;
   bodyDb: number;
   contrastDb: number;
+  /** Grind-band body over the grind-band noise floor, dB. */
+  bandSnrDb: number;
+  /** Why the stroke was left out of the verdict; empty when it was judged. */
   flags: StrokeFlag[];
+  /** One phrase per flag, in the same order. */
+  reasons: string[];
 }
 
 export interface AnalysisReport {
   sampleRate: number;
   durationS: number;
+  /** Noise floors per band, dBFS: level band, grind band, voice band. */
+  noiseFloors: { levelDbfs: number; grindDbfs: number; voiceDbfs: number };
   strokes: ReportStroke[];
+  /** Strokes left out of the verdict, and how many carried each flag. */
+  leftOut: { strokes: number; byFlag: Partial<Record<string, number>> };
   fit: { floorDb: number | null; strokesRemaining: number | null };
   settled: {
     atStroke: number;
@@ -39,6 +48,11 @@ export function toReport(result: AnalysisResult): AnalysisReport {
   return {
     sampleRate: result.sampleRate,
     durationS: round(result.durationS, 3),
+    noiseFloors: {
+      levelDbfs: round(result.noiseFloors.levelDbfs, 2),
+      grindDbfs: round(result.noiseFloors.grindDbfs, 2),
+      voiceDbfs: round(result.noiseFloors.voiceDbfs, 2),
+    },
     strokes: result.strokes.map((s) => ({
       index: s.index,
       startS: round(s.startS, 3),
@@ -46,8 +60,11 @@ export function toReport(result: AnalysisResult): AnalysisReport {
       onsetDb: round(s.onsetDb, 2),
       bodyDb: round(s.bodyDb, 2),
       contrastDb: round(s.contrastDb, 2),
+      bandSnrDb: round(s.bandSnrDb, 2),
       flags: [...s.flags],
+      reasons: s.flags.map((f) => FLAG_TEXT[f]),
     })),
+    leftOut: { strokes: v.leftOutStrokes, byFlag: { ...v.leftOutByFlag } },
     fit: { floorDb: v.fit ? round(v.fit.floorDb, 2) : null, strokesRemaining: v.strokesRemaining },
     settled: v.settled
       ? { atStroke: v.settled.atStroke, atS: v.settled.atS === null ? null : round(v.settled.atS, 3), rule: { ...v.rule } }
@@ -63,13 +80,13 @@ export function formatReportText(result: AnalysisResult, label: string): string 
   const lines: string[] = [];
   const v = result.verdict;
   lines.push(
-    `${label}: ${result.durationS.toFixed(1)} s at ${result.sampleRate} Hz, room noise ${result.noiseFloorDbfs.toFixed(1)} dBFS, high band ${result.highBandHz[0]}–${Math.round(result.highBandHz[1])} Hz`,
+    `${label}: ${result.durationS.toFixed(1)} s at ${result.sampleRate} Hz, room noise ${result.noiseFloorDbfs.toFixed(1)} dBFS (grind band ${result.noiseFloors.grindDbfs.toFixed(1)}, voice band ${result.noiseFloors.voiceDbfs.toFixed(1)}), high band ${result.highBandHz[0]}–${Math.round(result.highBandHz[1])} Hz`,
   );
   lines.push("");
-  lines.push(`${pad("#", 4)} ${pad("start s", 8)} ${pad("end s", 8)} ${pad("onset dB", 9)} ${pad("body dB", 8)} ${pad("contrast", 9)}  flags`);
+  lines.push(`${pad("#", 4)} ${pad("start s", 8)} ${pad("end s", 8)} ${pad("onset dB", 9)} ${pad("body dB", 8)} ${pad("contrast", 9)} ${pad("SNR dB", 7)}  left out because`);
   for (const s of result.strokes) {
     lines.push(
-      `${pad(String(s.index), 4)} ${pad(s.startS.toFixed(3), 8)} ${pad(s.endS.toFixed(3), 8)} ${pad(s.onsetDb.toFixed(1), 9)} ${pad(s.bodyDb.toFixed(1), 8)} ${pad(s.contrastDb.toFixed(1), 9)}  ${s.flags.join(", ")}`,
+      `${pad(String(s.index), 4)} ${pad(s.startS.toFixed(3), 8)} ${pad(s.endS.toFixed(3), 8)} ${pad(s.onsetDb.toFixed(1), 9)} ${pad(s.bodyDb.toFixed(1), 8)} ${pad(s.contrastDb.toFixed(1), 9)} ${pad(s.bandSnrDb.toFixed(1), 7)}  ${s.flags.map((f) => FLAG_TEXT[f]).join("; ")}`,
     );
   }
   if (result.strokes.length === 0) lines.push("   (no strokes)");
@@ -88,11 +105,17 @@ export function formatReportText(result: AnalysisResult, label: string): string 
     lines.push(
       "Verdict: NOT SETTLING — the contrast has flattened above the threshold. More lapping will not help; check the seat and valve face, they may need recutting.",
     );
-  } else if (result.strokes.length === 0) {
-    lines.push("Verdict: no strokes to judge.");
+  } else if (v.judgedStrokes === 0) {
+    lines.push(result.strokes.length === 0 ? "Verdict: no strokes to judge." : "Verdict: none of the strokes could be judged.");
   } else {
-    const rem = v.strokesRemaining === null ? "unknown" : `about ${v.strokesRemaining}`;
+    const rem = v.strokesRemaining === null ? "not yet steady" : `about ${v.strokesRemaining}`;
     lines.push(`Verdict: still fading — strokes remaining ${rem} (rule: ${ruleText}).`);
+  }
+  if (v.leftOutStrokes > 0) {
+    const why = Object.entries(v.leftOutByFlag)
+      .map(([f, n]) => `${FLAG_TEXT[f as StrokeFlag] ?? f} ${n}`)
+      .join(", ");
+    lines.push(`Left out of the verdict: ${v.leftOutStrokes} stroke${v.leftOutStrokes === 1 ? "" : "s"} (${why}).`);
   }
   for (const w of result.warnings) lines.push(`Warning: ${WARNING_TEXT[w]}`);
   return lines.join("\n") + "\n";

@@ -13,6 +13,11 @@ export interface Candidate {
   startHop: number;
   /** Hop just past the burst. */
   endHop: number;
+  /**
+   * False when the burst was already sounding when listening began (during a
+   * calibration, or at the start of a file): its start was never heard.
+   */
+  startHeard?: boolean;
 }
 
 export type RejectionReason = "too-short" | "too-long" | "not-noise-like";
@@ -41,12 +46,28 @@ export class StrokeSegmenter {
   private candidateStart = -1;
   private lastAbove = -1;
   private lastHop = -1;
+  // Whether a hop below the exit level has been heard since listening began:
+  // until then a burst under way started before we listened.
+  private heardQuiet = false;
+  private runHeard = true;
+  // The open burst's level track (dB) and a rise above it being tested.
+  private readonly trackRate: number;
+  private readonly riseDb: number;
+  private readonly holdHops: number;
+  private trackDb = 0;
+  private lastLowHop = -1;
+  private riseStart = -1;
+  private riseFrom = 0;
+  private riseHeld = 0;
 
   constructor(options: AnalysisOptions, windowHops: number) {
     this.liftHops = Math.max(1, Math.ceil(options.minLiftMs / options.hopMs));
     this.windowHops = windowHops;
     this.startAboveFloorDb = options.strokeStartAboveFloorDb;
     this.endAboveFloorDb = options.strokeEndAboveFloorDb;
+    this.trackRate = Math.min(1, options.hopMs / options.levelTrackMs);
+    this.riseDb = options.splitRiseDb;
+    this.holdHops = Math.max(1, Math.round(options.splitHoldMs / options.hopMs));
   }
 
   setNoiseFloor(floorDbfs: number): void {
@@ -60,6 +81,9 @@ export class StrokeSegmenter {
     this.candidateStart = -1;
     this.lastAbove = -1;
     this.lastHop = -1;
+    this.heardQuiet = false;
+    this.runHeard = true;
+    this.riseStart = -1;
   }
 
   /** First hop of the burst in progress, or -1 when none is. */
@@ -84,28 +108,77 @@ export class StrokeSegmenter {
 
   step(hop: number, level: number): Candidate | null {
     this.lastHop = hop;
-    const above = level >= this.endLevel;
     if (!this.active) {
-      if (!above) {
+      if (!(level >= this.endLevel)) {
         this.runStart = -1;
+        this.heardQuiet = true;
         return null;
       }
       // The window trails the audio, so the hop where the level first rose
       // above the exit level is where the sound began.
-      if (this.runStart < 0) this.runStart = hop;
+      if (this.runStart < 0) {
+        this.runStart = hop;
+        this.runHeard = this.heardQuiet;
+      }
       if (level >= this.startLevel) {
         this.active = true;
         this.candidateStart = this.runStart;
         this.lastAbove = hop;
+        this.trackDb = 10 * Math.log10(level);
+        this.lastLowHop = hop;
+        this.riseStart = -1;
       }
       return null;
     }
+    const db = 10 * Math.log10(level);
+    if (hop - this.candidateStart < this.windowHops + this.holdHops) {
+      // The sound is still coming up through the window: follow it.
+      if (db > this.trackDb) this.trackDb = db;
+      this.lastLowHop = hop;
+    } else {
+      const split = this.trackRise(hop, db);
+      if (split) return split;
+      if (this.riseStart < 0) this.trackDb += this.trackRate * (db - this.trackDb);
+    }
+    const above = level >= this.endLevel;
     if (above) {
       this.lastAbove = hop;
       return null;
     }
     if (hop - this.lastAbove >= this.liftHops) return this.close();
     return null;
+  }
+
+  /**
+   * A rise of riseDb above the level track that holds for holdHops: the
+   * burst so far ends where the rise began (hops before it stayed within
+   * 3 dB of the track), and a new one starts there, its start heard.
+   */
+  private trackRise(hop: number, db: number): Candidate | null {
+    if (this.riseStart < 0) {
+      if (db < this.trackDb + 3) this.lastLowHop = hop;
+      if (db >= this.trackDb + this.riseDb) {
+        this.riseStart = Math.max(this.candidateStart + 1, this.lastLowHop + 1);
+        this.riseFrom = this.trackDb;
+        this.riseHeld = 1;
+      }
+      return null;
+    }
+    if (db < this.riseFrom + this.riseDb - 3) {
+      // It fell back: a knock or a swell, not a new stroke.
+      this.riseStart = -1;
+      this.lastLowHop = hop;
+      return null;
+    }
+    if (++this.riseHeld < this.holdHops) return null;
+    const c: Candidate = { startHop: this.candidateStart, endHop: this.riseStart, startHeard: this.runHeard };
+    this.candidateStart = this.riseStart;
+    this.runHeard = true;
+    this.trackDb = db;
+    this.lastAbove = hop;
+    this.lastLowHop = hop;
+    this.riseStart = -1;
+    return c;
   }
 
   /** End of input: close a burst still in progress. */
@@ -120,11 +193,13 @@ export class StrokeSegmenter {
   }
 
   private close(): Candidate {
-    const c = { startHop: this.candidateStart, endHop: this.endHopNow() };
+    const c = { startHop: this.candidateStart, endHop: this.endHopNow(), startHeard: this.runHeard };
     this.active = false;
     this.runStart = -1;
     this.candidateStart = -1;
     this.lastAbove = -1;
+    this.heardQuiet = true;
+    this.riseStart = -1;
     return c;
   }
 }

@@ -5,6 +5,7 @@
 // a tap in the pauses. Deterministic for a given seed.
 
 import { highBandHz } from "./contrast";
+import { butterworthHighPass, butterworthLowPass, filterInPlace } from "./level";
 import { resolveOptions, type AnalysisOptionsInput } from "./options";
 
 export interface SynthStrokeSpec {
@@ -20,7 +21,9 @@ export interface SynthStrokeSpec {
 export type SynthEvent =
   | { kind: "tap"; atS: number; levelDbfs?: number }
   | { kind: "ring"; atS: number; levelDbfs?: number; decayS?: number }
-  | { kind: "speech"; atS: number; samples: Float32Array; levelDbfs?: number };
+  | { kind: "speech"; atS: number; samples: Float32Array; levelDbfs?: number }
+  /** An impact wrench in the next bay: a train of hammer blows, each a sharp broadband knock with a short ring. */
+  | { kind: "rattle"; atS: number; durationS: number; rateHz?: number; levelDbfs?: number };
 
 export interface SynthSessionSpec {
   sampleRate: number;
@@ -32,6 +35,12 @@ export interface SynthSessionSpec {
   roomNoiseDbfs?: number;
   humHz?: number;
   humDbfs?: number;
+  /** Harmonics of the hum, the fundamental included (3 by default), each half the one before. */
+  humHarmonics?: number;
+  /** Compressor rumble: noise below cutoffHz, swelling with the compressor's cycle. */
+  rumble?: { levelDbfs: number; cutoffHz?: number; cycleHz?: number };
+  /** Steady noise in a band only (a fan, a hiss), for noise that sits where we measure. */
+  hiss?: { levelDbfs: number; lowHz: number; highHz: number };
   /** Amplitude time constant of the grinding burst, s. */
   burstDecayS?: number;
   /** Depth of the back-and-forth level swing within a stroke, dB. */
@@ -110,18 +119,22 @@ export function synthesizeSession(spec: SynthSessionSpec): SynthSession {
   const roomRms = db(spec.roomNoiseDbfs ?? -70);
   const humAmp = db(spec.humDbfs ?? -50) * Math.SQRT2;
   const humHz = spec.humHz ?? 50;
+  const harmonics = spec.humHarmonics ?? 3;
   for (let i = 0; i < n; i++) {
     const t = i / fs;
     const w = 2 * Math.PI * humHz * t;
-    out[i] =
-      roomRms * UNIT * (2 * rand() - 1) +
-      humAmp * (Math.sin(w) + 0.5 * Math.sin(2 * w + 0.3) + 0.25 * Math.sin(3 * w + 1.1));
+    let hum = Math.sin(w) + 0.5 * Math.sin(2 * w + 0.3) + 0.25 * Math.sin(3 * w + 1.1);
+    for (let k = 4; k <= harmonics && k * humHz < fs / 2; k++) hum += 0.5 ** (k - 1) * Math.sin(k * w + 0.7 * k);
+    out[i] = roomRms * UNIT * (2 * rand() - 1) + humAmp * hum;
   }
+  // Shop noise draws from a stream of its own, so sessions without it stay as they were.
+  const shopRand = createRandom((spec.seed ?? 1) ^ 0x5bd1e995);
+  if (spec.rumble) addBandNoise(out, fs, shopRand, spec.rumble.levelDbfs, 0, spec.rumble.cutoffHz ?? 250, spec.rumble.cycleHz ?? 0.7);
+  if (spec.hiss) addBandNoise(out, fs, shopRand, spec.hiss.levelDbfs, spec.hiss.lowHz, spec.hiss.highHz, 0);
 
   const [lo, hi] = highBandHz(fs, o);
   const rhoWhite = whiteBandFraction(lo, hi, fs);
   const rhoDiff = diffBandPower(lo, hi, fs);
-  const roomBand = roomRms * roomRms * rhoWhite;
   const tau = spec.burstDecayS ?? 0.12;
   const swingDb = spec.swingDb ?? 1.5;
   const ramp = Math.round(0.01 * fs);
@@ -142,7 +155,8 @@ export function synthesizeSession(spec: SynthSessionSpec): SynthSession {
     }
     // Expected high-band power of each part over the onset window and the
     // body, from the envelopes: the burst's size then follows from the
-    // wanted contrast in closed form.
+    // wanted contrast in closed form. The contrast is the lapping sound's
+    // own, room noise apart: the engine subtracts the noise it calibrated.
     const onsetEnd = Math.min(len, Math.round((fs * o.onsetWindowMs) / 1000));
     const b0 = Math.round(len * o.bodyStartFraction);
     const b1 = Math.round(len * o.bodyEndFraction);
@@ -151,8 +165,8 @@ export function synthesizeSession(spec: SynthSessionSpec): SynthSession {
       for (let i = from; i < to; i++) s += env[i] * env[i];
       return s / (to - from);
     };
-    const aOn = mean(bodyEnv, 0, onsetEnd) * rhoWhite + roomBand;
-    const aBody = mean(bodyEnv, b0, b1) * rhoWhite + roomBand;
+    const aOn = mean(bodyEnv, 0, onsetEnd) * rhoWhite;
+    const aBody = mean(bodyEnv, b0, b1) * rhoWhite;
     const bOn = mean(burstEnv, 0, onsetEnd) * rhoDiff;
     const bBody = mean(burstEnv, b0, b1) * rhoDiff;
     const r = 10 ** (p.contrastDb / 10);
@@ -171,7 +185,10 @@ export function synthesizeSession(spec: SynthSessionSpec): SynthSession {
     at += p.durationS + p.gapS;
   }
 
-  for (const ev of spec.events ?? []) addEvent(out, fs, ev, rand);
+  for (const ev of spec.events ?? []) {
+    if (ev.kind === "rattle") addRattle(out, fs, ev, shopRand);
+    else addEvent(out, fs, ev, rand);
+  }
 
   const gain = spec.gain ?? 1;
   for (let i = 0; i < n; i++) {
@@ -181,7 +198,43 @@ export function synthesizeSession(spec: SynthSessionSpec): SynthSession {
   return { sampleRate: fs, samples: out, strokes: truths };
 }
 
-function addEvent(out: Float32Array, fs: number, ev: SynthEvent, rand: () => number): void {
+/** Gaussian-ish noise band-limited by Butterworth sections, at a mean-square level, optionally swelling ±3 dB at cycleHz. */
+function addBandNoise(out: Float32Array, fs: number, rand: () => number, levelDbfs: number, lowHz: number, highHz: number, cycleHz: number): void {
+  const noise = new Float64Array(out.length);
+  for (let i = 0; i < noise.length; i++) noise[i] = rand() + rand() + rand() - 1.5;
+  if (lowHz > 0) {
+    filterInPlace(noise, butterworthHighPass(lowHz, fs));
+    filterInPlace(noise, butterworthHighPass(lowHz, fs));
+  }
+  if (highHz < fs / 2) {
+    filterInPlace(noise, butterworthLowPass(highHz, fs));
+    filterInPlace(noise, butterworthLowPass(highHz, fs));
+  }
+  let ss = 0;
+  for (const v of noise) ss += v * v;
+  const g = db(levelDbfs) / Math.sqrt(ss / Math.max(1, noise.length) || 1);
+  for (let i = 0; i < out.length; i++) {
+    const swell = cycleHz > 0 ? db(3 * Math.sin((2 * Math.PI * cycleHz * i) / fs)) : 1;
+    out[i] += noise[i] * g * swell;
+  }
+}
+
+function addRattle(out: Float32Array, fs: number, ev: Extract<SynthEvent, { kind: "rattle" }>, rand: () => number): void {
+  const peak = db(ev.levelDbfs ?? -14);
+  const rate = ev.rateHz ?? 18;
+  const blowLen = Math.round(0.012 * fs);
+  for (let t = ev.atS; t < ev.atS + ev.durationS; t += (1 / rate) * (0.85 + 0.3 * rand())) {
+    const start = Math.round(t * fs);
+    const ring = 1500 + 2500 * rand();
+    const size = peak * (0.6 + 0.4 * rand());
+    for (let i = 0; i < blowLen && start + i < out.length; i++) {
+      const s = i / fs;
+      out[start + i] += size * (Math.exp(-s / 0.0012) * (2 * rand() - 1) + 0.5 * Math.exp(-s / 0.004) * Math.sin(2 * Math.PI * ring * s));
+    }
+  }
+}
+
+function addEvent(out: Float32Array, fs: number, ev: Exclude<SynthEvent, { kind: "rattle" }>, rand: () => number): void {
   const start = Math.round(ev.atS * fs);
   if (ev.kind === "speech") {
     let ss = 0;

@@ -5,7 +5,12 @@
 import { fadeAt, fitFade, type FadeFit } from "./fade";
 import { resolveOptions, type AnalysisOptions, type AnalysisOptionsInput } from "./options";
 
-export type StrokeFlag = "clipping" | "too-quiet";
+/**
+ * Reasons a stroke's contrast is not trusted. A flagged stroke keeps its
+ * figures for review but never enters the fit or the settled rule.
+ */
+export const STROKE_FLAGS = ["clipping", "too-quiet", "speech", "impulsive", "start-not-heard"] as const;
+export type StrokeFlag = (typeof STROKE_FLAGS)[number];
 
 /** What the verdict needs of a stroke; a full Stroke satisfies it. */
 export interface VerdictStroke {
@@ -26,11 +31,19 @@ export interface SettledRule {
 
 export interface SeatVerdict {
   state: SeatState;
-  /** Strokes that entered the judgement (too-quiet ones are left out). */
+  /** Strokes that entered the judgement (flagged ones are left out). */
   judgedStrokes: number;
+  /** Strokes left out, and how many carried each flag (a stroke may carry several). */
+  leftOutStrokes: number;
+  leftOutByFlag: Partial<Record<string, number>>;
   fit: FadeFit | null;
-  /** Further strokes the fitted curve needs to satisfy the rule; 0 once settled; null when it never will. */
+  /**
+   * Further strokes the fitted curve needs to satisfy the rule; 0 once
+   * settled; null when it never will, and while the forecast is not stable.
+   */
   strokesRemaining: number | null;
+  /** True when strokesRemaining is a forecast to show: the last forecasts agree. */
+  forecastStable: boolean;
   settled: { atStroke: number; atS: number | null } | null;
   notSettling: boolean;
   rule: SettledRule;
@@ -86,13 +99,44 @@ export function strokesRemaining(contrastsDb: ArrayLike<number>, fit: FadeFit, o
   return null;
 }
 
+/**
+ * Is the forecast made at the last of `contrastsDb` one to show? The
+ * forecasts made at each of the last forecastStableStrokes strokes must name
+ * the same settling stroke to within forecastStableFraction of what remains
+ * (at least one stroke), and the one before the last must be within a factor
+ * of two of the last, so two forecasts in a row never contradict each other.
+ */
+export function forecastIsStable(contrastsDb: readonly number[], remaining: number | null, options: AnalysisOptions): boolean {
+  if (remaining === null) return false;
+  const n = contrastsDb.length;
+  const k = options.forecastStableStrokes;
+  if (n < options.fitMinStrokes + k - 1) return false;
+  const target = n + remaining;
+  const tolerance = Math.max(1, options.forecastStableFraction * remaining);
+  for (let back = 1; back < k; back++) {
+    const prefix = contrastsDb.slice(0, n - back);
+    const fit = fitFade(prefix, options.fitMinStrokes);
+    const earlier = fit ? strokesRemaining(prefix, fit, options) : null;
+    if (earlier === null) return false;
+    if (Math.abs(prefix.length + earlier - target) > tolerance) return false;
+    if (back === 1 && (earlier > 2 * Math.max(1, remaining) || remaining > 2 * Math.max(1, earlier))) return false;
+  }
+  return true;
+}
+
 /** Verdict for one seat and stage from its strokes in order. */
 export function judgeSeat(
   strokes: readonly VerdictStroke[],
   options: AnalysisOptionsInput | AnalysisOptions = {},
 ): SeatVerdict {
   const o = resolveOptions(options);
-  const judged = strokes.filter((s) => !(s.flags ?? []).includes("too-quiet"));
+  const judged: VerdictStroke[] = [];
+  const leftOutByFlag: Partial<Record<string, number>> = {};
+  for (const s of strokes) {
+    const flags = s.flags ?? [];
+    if (flags.length === 0) judged.push(s);
+    for (const f of flags) leftOutByFlag[f] = (leftOutByFlag[f] ?? 0) + 1;
+  }
   judged.forEach((s, i) => {
     if (typeof s.contrastDb !== "number" || !Number.isFinite(s.contrastDb)) {
       throw new RangeError(`stroke ${s.index ?? i + 1} has no finite contrastDb (got ${String(s.contrastDb)})`);
@@ -116,8 +160,20 @@ export function judgeSeat(
     const slope = leastSquaresSlope(contrasts, contrasts.length - k, contrasts.length);
     notSettling = fit.floorDb > o.settledMaxContrastDb && Math.abs(slope) <= o.settledMaxSlopeDbPerStroke;
   }
-  const remaining = settled ? 0 : fit && !notSettling ? strokesRemaining(contrasts, fit, o) : null;
+  const forecast = settled ? 0 : fit && !notSettling ? strokesRemaining(contrasts, fit, o) : null;
+  const forecastStable = settled ? true : forecastIsStable(contrasts, forecast, o);
   const state: SeatState =
     contrasts.length === 0 ? "no-strokes" : settled ? "settled" : notSettling ? "not-settling" : "fading";
-  return { state, judgedStrokes: contrasts.length, fit, strokesRemaining: remaining, settled, notSettling, rule };
+  return {
+    state,
+    judgedStrokes: contrasts.length,
+    leftOutStrokes: strokes.length - judged.length,
+    leftOutByFlag,
+    fit,
+    strokesRemaining: forecastStable ? forecast : null,
+    forecastStable,
+    settled,
+    notSettling,
+    rule,
+  };
 }

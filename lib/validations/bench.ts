@@ -1,9 +1,12 @@
 import { z } from "zod";
+import { STROKE_FLAGS as ENGINE_STROKE_FLAGS } from "@/lib/audio/verdict";
 import { storableText } from "./text";
 
 export const stageSchema = z.enum(["coarse", "fine"], { error: "Stage must be coarse or fine." });
 
-export const STROKE_FLAGS = ["clipping", "too-quiet", "speech-nearby"] as const;
+// The engine's flags, and one an earlier phone build could send; any flag
+// leaves the stroke out of the verdict.
+export const STROKE_FLAGS = [...ENGINE_STROKE_FLAGS, "speech-nearby"] as const;
 
 const db = (name: string) =>
   z
@@ -25,7 +28,11 @@ export const strokeInputSchema = z
       .finite("contrastDb must be finite.")
       .min(-60, "contrastDb below -60 dB is not plausible.")
       .max(60, "contrastDb above 60 dB is not plausible."),
-    flags: z.array(z.enum(STROKE_FLAGS)).max(STROKE_FLAGS.length).default([]),
+    flags: z
+      .array(z.enum(STROKE_FLAGS, { error: `Each flag must be one of: ${STROKE_FLAGS.join(", ")}.` }))
+      .max(STROKE_FLAGS.length)
+      .refine((f) => new Set(f).size === f.length, "flags must not repeat.")
+      .default([]),
   })
   .refine((s) => s.endS > s.startS, { message: "endS must be after startS.", path: ["endS"] });
 

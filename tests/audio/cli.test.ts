@@ -4,6 +4,7 @@ import { writeFileSync } from "node:fs";
 import { promisify } from "node:util";
 import { z } from "zod";
 import { encodeWav } from "@/lib/audio/wav";
+import { decayingContrasts, synthesizeSession } from "@/lib/audio/synth";
 import { scratchDir } from "./helpers";
 import { decayingSession } from "./sessions";
 
@@ -26,6 +27,8 @@ const Report = z
   .object({
     sampleRate: z.number().int(),
     durationS: z.number(),
+    noiseFloors: z.object({ levelDbfs: z.number(), grindDbfs: z.number(), voiceDbfs: z.number() }).strict(),
+    leftOut: z.object({ strokes: z.number().int(), byFlag: z.record(z.string(), z.number().int()) }).strict(),
     strokes: z.array(
       z
         .object({
@@ -35,7 +38,9 @@ const Report = z
           onsetDb: z.number(),
           bodyDb: z.number(),
           contrastDb: z.number(),
-          flags: z.array(z.enum(["clipping", "too-quiet"])),
+          bandSnrDb: z.number(),
+          flags: z.array(z.enum(["clipping", "too-quiet", "speech", "impulsive", "start-not-heard"])),
+          reasons: z.array(z.string().min(3)),
         })
         .strict(),
     ),
@@ -95,6 +100,25 @@ describe("command-line analyzer", () => {
     expect(r.stdout).toMatch(/contrast/);
     expect(r.stdout).toMatch(/Verdict: SETTLED at stroke \d+/);
     expect(r.stdout.split("\n").filter((l) => /^\s+\d+\s+\d+\.\d{3}/.test(l))).toHaveLength(20);
+  });
+
+  it("reports a left-out stroke's flag, its reason and every stroke's band SNR, in JSON and in the table", async () => {
+    const base = { sampleRate: 48000, seed: 8, strokes: decayingContrasts(8, 11, 0.3, 3).map((contrastDb) => ({ contrastDb })) };
+    const plain = synthesizeSession(base);
+    const t = plain.strokes[3];
+    const s = synthesizeSession({ ...base, events: [{ kind: "rattle", atS: t.startS + 0.1, durationS: t.endS - t.startS - 0.1, levelDbfs: -10 }] });
+    const file = scratch.path("rattle.wav");
+    writeFileSync(file, encodeWav([s.samples], 48000, { bitsPerSample: 16 }));
+    const report = Report.parse(JSON.parse((await analyze([file, "--json"])).stdout));
+    expect(report.strokes[3].flags).toEqual(["impulsive"]);
+    expect(report.strokes[3].reasons).toEqual(["a knock or rattle over the stroke"]);
+    expect(report.strokes.filter((st) => st.flags.length > 0)).toHaveLength(1);
+    expect(report.leftOut).toEqual({ strokes: 1, byFlag: { impulsive: 1 } });
+    report.strokes.forEach((st) => expect(st.bandSnrDb).toBeGreaterThan(20));
+    const text = (await analyze([file])).stdout;
+    expect(text).toMatch(/SNR dB/);
+    expect(text.split("\n").find((l) => /^\s+4\s/.test(l))).toMatch(/a knock or rattle over the stroke/);
+    expect(text).toMatch(/Left out of the verdict: 1 stroke \(a knock or rattle over the stroke 1\)/);
   });
 
   it.each([

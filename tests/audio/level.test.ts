@@ -60,6 +60,37 @@ describe.skipIf(skipWithout("sox"))("levels against sox stats (Debian sox, `sox 
   });
 });
 
+describe.skipIf(skipWithout("sox"))("the level band's high-pass against sox (Debian sox, `highpass -2`, the same cookbook biquad)", () => {
+  it("white noise through our level band reads as sox's high-passed RMS, within 0.05 dB", () => {
+    const fs = 48000;
+    const rand = createRandom(12);
+    const x = new Float32Array(fs * 5);
+    for (let i = 0; i < x.length; i++) x[i] = 0.3 * (2 * rand() - 1);
+    const path = scratch.path("white-hp.wav");
+    writeFileSync(path, encodeWav([x], fs, { bitsPerSample: 32, encoding: "float" }));
+    const series = levelSeries(x, fs, o);
+    const ours = 10 * Math.log10(series.hopPowers.reduce((a, b) => a + b, 0) / series.hopPowers.length);
+    const ref = soxRmsDb(path, ["highpass", "-2", String(o.levelBandLowHz)]);
+    expect(Math.abs(ours - ref)).toBeLessThan(0.05);
+  });
+});
+
+describe("the level band's high-pass against the analytic second-order Butterworth response", () => {
+  // |H(f)|² = 1 / (1 + (fc/f)^4) (textbook Butterworth magnitude); the
+  // bilinear transform's warping is negligible this far below Nyquist.
+  it.each([250, 500, 1000, 2000, 4000, 8000])("a %i Hz sine", (f) => {
+    const fs = 48000;
+    const x = new Float32Array(fs);
+    for (let i = 0; i < x.length; i++) x[i] = Math.sin((2 * Math.PI * f * i) / fs);
+    const series = levelSeries(x, fs, o);
+    // Skip the first tenth of a second while the filter settles.
+    const tail = series.hopPowers.subarray(Math.round(0.1 / 0.005));
+    const ours = 10 * Math.log10(tail.reduce((a, b) => a + b, 0) / tail.length);
+    const expected = 10 * Math.log10(0.5 / (1 + (o.levelBandLowHz / f) ** 4));
+    expect(Math.abs(ours - expected)).toBeLessThan(0.1);
+  });
+});
+
 describe("level envelope", () => {
   it("gives the same hop levels whatever the block size", () => {
     const rand = createRandom(4);
@@ -81,9 +112,13 @@ describe("level envelope", () => {
     expect(noiseFloorDbfs(s.levels, o)).toBe(o.minNoiseFloorDbfs);
   });
 
-  it("a constant 0.1 signal reads -20 dBFS (mean square 0.01)", () => {
-    const s = levelSeries(new Float32Array(4800).fill(0.1), 48000, o);
-    expect(noiseFloorDbfs(s.levels, o)).toBeCloseTo(-20, 6);
+  it("a constant 0.1 signal reads -20 dBFS (mean square 0.01) with the level band's high-pass off", () => {
+    const flat = resolveOptions({ levelBandLowHz: 0 });
+    const s = levelSeries(new Float32Array(4800).fill(0.1), 48000, flat);
+    expect(noiseFloorDbfs(s.levels, flat)).toBeCloseTo(-20, 6);
+    // The high-pass takes a constant out altogether.
+    const filtered = levelSeries(new Float32Array(48000).fill(0.1), 48000, o);
+    expect(10 * Math.log10(filtered.levels[filtered.levels.length - 1])).toBeLessThan(-100);
   });
 
   it("percentile by selection equals the sorted value", () => {

@@ -45,15 +45,18 @@ describe("live analyzer gives the offline analyzer's strokes", () => {
     const events = pushAll(live, session.samples, size);
     const cal = events.find((e) => e.type === "calibrated");
     expect(cal && cal.type === "calibrated" && cal.noiseFloorDbfs).toBe(offlineLeadIn.noiseFloorDbfs);
+    // The band floors too, to the bit: the same quiet frames, measured alike.
+    expect(cal && cal.type === "calibrated" && cal.noiseFloors).toEqual(offlineLeadIn.noiseFloors);
     expect(strokesOf(events)).toEqual(offlineLeadIn.strokes);
     expect(rejectedOf(events)).toEqual(offlineLeadIn.rejected);
     expect(live.strokes).toEqual(offlineLeadIn.strokes);
     expect(offlineLeadIn.strokes).toHaveLength(session.strokes.length);
   });
 
-  it("with the floor the offline analyzer estimated from the quietest frames", () => {
+  it("with the floors the offline analyzer estimated from the pauses", () => {
     const offline = analyzeRecording(session.samples, { sampleRate: 44100 });
-    const live = createLiveAnalyzer({ sampleRate: 44100, noiseFloorDbfs: offline.noiseFloorDbfs });
+    expect(offline.noiseFloorSource).toBe("quietest-frames");
+    const live = createLiveAnalyzer({ sampleRate: 44100, noiseFloorDbfs: offline.noiseFloors });
     expect(live.state).toBe("listening");
     expect(strokesOf(pushAll(live, session.samples, () => 128))).toEqual(offline.strokes);
   });
@@ -127,10 +130,12 @@ function pushWithinBudget(live: LiveAnalyzer, samples: Float32Array, nextSize: (
 }
 
 /** Spectra the offline analyzer computes for these strokes. */
+/** Spectra offline analysis computes for these strokes, plus the calibration's band-floor frames (one per whole frame of it). */
 function offlineSpectra(strokes: readonly { startS: number; endS: number }[], sampleRate: number, input: AnalysisOptionsInput): number {
   const o = resolveOptions(input);
   const n = frameSizeFor(sampleRate, o.frameTargetMs);
-  let count = 0;
+  const hop = Math.round((sampleRate * o.hopMs) / 1000);
+  let count = Math.floor((Math.floor(Math.round((sampleRate * o.calibrationMs) / 1000) / hop) * hop) / n);
   for (const st of strokes) count += planStroke(0, Math.round((st.endS - st.startS) * sampleRate), n, sampleRate, o).at.length;
   return count;
 }

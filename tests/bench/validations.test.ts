@@ -32,7 +32,10 @@ describe("strokeInputSchema", () => {
     expect(firstPath(stroke({ onsetDb: -201 }))).toEqual(["onsetDb"]);
     expect(firstPath(stroke({ bodyDb: "loud" }))).toEqual(["bodyDb"]);
     expect(firstPath(stroke({ clientId: "1234" }))).toEqual(["clientId"]);
-    expect(firstPath(stroke({ flags: ["clipping", "too-quiet", "speech-nearby", "clipping"] }))).toEqual(["flags"]);
+    expect(firstPath(stroke({ flags: ["clipping", "too-quiet", "clipping"] }))).toEqual(["flags"]);
+    expect(firstPath(stroke({ flags: ["talking"] }))).toEqual(["flags.0"]);
+    // Every reason the engine gives is accepted, together.
+    expect(strokeInputSchema.safeParse({ ...strokeInputs([3])[0], flags: ["clipping", "too-quiet", "speech", "impulsive", "start-not-heard"] }).success).toBe(true);
   });
 
   it("limits a batch to between 1 and 500 strokes", () => {

@@ -93,8 +93,11 @@ describe("seatStateFor", () => {
   const v = (state: SeatVerdict["state"]): SeatVerdict => ({
     state,
     judgedStrokes: 0,
+    leftOutStrokes: 0,
+    leftOutByFlag: {},
     fit: null,
     strokesRemaining: null,
+    forecastStable: false,
     settled: null,
     notSettling: state === "not-settling",
     rule: { consecutive: 4, maxContrastDb: 1.5, maxSlopeDbPerStroke: 0.3 },
