@@ -21,7 +21,8 @@ function handle(msg: ToWorker) {
         post({ type: "ready", sampleRate: msg.sampleRate });
         return;
       case "recalibrate":
-        analyzer?.reset();
+        // Measure the room again without restarting the clock: stroke times stay on the recording's timeline.
+        analyzer?.startCalibration();
         return;
       case "audio": {
         if (!analyzer) return;

@@ -4,7 +4,7 @@ import Link from "next/link";
 import { useCallback, useEffect, useMemo, useRef, useState } from "react";
 import type { Stroke } from "@/lib/audio/analyzer";
 import type { RejectedSound } from "@/lib/audio/strokes";
-import { judgeSeat, type SeatVerdict } from "@/lib/audio/verdict";
+import { flagText, judgeSeat, leftOutSummary, type SeatVerdict } from "@/lib/audio/verdict";
 import { Outbox, type FlushReport, type PendingStroke } from "@/lib/bench/outbox";
 import type { SeatReport } from "@/lib/bench/service";
 import type { StrokeInput } from "@/lib/validations/bench";
@@ -92,6 +92,7 @@ export function BenchScreen({ initial, initialStage }: { initial: SeatReport; in
   const [refusals, setRefusals] = useState<string[]>([]);
   const [speechHeard, setSpeechHeard] = useState(0);
   const [cue, setCue] = useState<"settled" | "not-settling" | null>(null);
+  const [picked, setPicked] = useState<number | null>(null);
   const sessionRef = useRef<string | null>(null);
   const cueShown = useRef<{ settled: boolean; notSettling: boolean }>({ settled: false, notSettling: false });
   const outboxRef = useRef<Outbox | null>(null);
@@ -237,6 +238,11 @@ export function BenchScreen({ initial, initialStage }: { initial: SeatReport; in
   const verdict: SeatVerdict = combined.pending > 0 ? preview : serverStage.verdict;
   const last = combined.all[combined.all.length - 1];
   const lastFlags = last?.flags ?? [];
+  const leftOut = combined.all.filter((s) => s.flags.length > 0);
+  const leftOutLine = leftOutSummary(verdict);
+  const pickedStroke = picked === null ? undefined : combined.all.find((s) => s.n === picked);
+  // With strokes heard but none judged, "no strokes yet" would contradict the counter.
+  const verdictLabel = verdict.state === "no-strokes" && combined.all.length > 0 ? "Nothing judged yet" : VERDICT_LABELS[verdict.state];
 
   // The offline worker keeps this page and what it loaded; listening loads the analysis worker
   // and the worklet, so it is told again then.
@@ -279,6 +285,7 @@ export function BenchScreen({ initial, initialStage }: { initial: SeatReport; in
     setCue(null);
     setRefusals([]);
     setSpeechHeard(0);
+    setPicked(null);
     cueShown.current = { settled: serverStage.verdict.state === "settled", notSettling: false };
     const sessionId = crypto.randomUUID();
     sessionRef.current = sessionId;
@@ -373,21 +380,56 @@ export function BenchScreen({ initial, initialStage }: { initial: SeatReport; in
         </div>
         <div className="col-span-3 flex flex-wrap items-center justify-between gap-2 border-t border-stone-700 pt-2">
           <span className="text-2xl font-bold" data-testid="verdict">
-            {VERDICT_LABELS[verdict.state]}
+            {verdictLabel}
           </span>
-          <span className="text-sm text-stone-300">
-            {verdict.state === "fading" && verdict.strokesRemaining !== null
-              ? `about ${verdict.strokesRemaining} more stroke${verdict.strokesRemaining === 1 ? "" : "s"}`
+          <span className="text-sm text-stone-300" data-testid="forecast">
+            {verdict.state === "fading"
+              ? verdict.strokesRemaining !== null
+                ? `about ${verdict.strokesRemaining} more stroke${verdict.strokesRemaining === 1 ? "" : "s"}`
+                : "still fading — keep lapping"
               : verdict.state === "settled"
                 ? `at stroke ${verdict.settled?.atStroke}`
                 : `settled: last ${verdict.rule.consecutive} ≤ ${verdict.rule.maxContrastDb} dB and flat`}
           </span>
+          {leftOutLine ? (
+            <span className="w-full text-sm text-amber-200" data-testid="left-out">
+              {leftOutLine}
+            </span>
+          ) : null}
         </div>
       </section>
 
       <div className="rounded-2xl border border-stone-300 bg-white p-2">
-        <FadeChart strokes={combined.all} fit={verdict.fit} thresholdDb={verdict.rule.maxContrastDb} />
-        <p className="px-2 text-xs text-stone-500">Green band: settled zone. Dashed: fitted fade toward its floor.</p>
+        <FadeChart strokes={combined.all} fit={verdict.fit} thresholdDb={verdict.rule.maxContrastDb} onPick={setPicked} />
+        <p className="px-2 text-xs text-stone-500">
+          Green band: settled zone. Dashed: fitted fade through the judged strokes. Hollow rings: strokes left out — tap one for why.
+        </p>
+        {pickedStroke ? (
+          <p className="mx-2 mt-1 rounded-lg bg-stone-100 px-3 py-2 text-sm" data-testid="picked-stroke" aria-live="polite">
+            <span className="figure font-semibold">Stroke {pickedStroke.n}</span> ·{" "}
+            <span className="figure">
+              {pickedStroke.contrastDb >= 0 ? "+" : ""}
+              {pickedStroke.contrastDb.toFixed(1)} dB
+            </span>{" "}
+            · {pickedStroke.flags.length ? `left out: ${pickedStroke.flags.map(flagText).join(", ")}` : "judged"}
+          </p>
+        ) : null}
+        {leftOut.length ? (
+          <ul className="mt-1 flex flex-wrap gap-2 px-2" aria-label="Strokes left out of the verdict">
+            {leftOut.map((s) => (
+              <li key={s.n}>
+                <button
+                  type="button"
+                  onClick={() => setPicked(s.n)}
+                  aria-pressed={picked === s.n}
+                  className="min-h-11 rounded-full border-2 border-stone-500 bg-white px-3 text-sm"
+                >
+                  <span className="figure font-semibold">#{s.n}</span> {flagText(s.flags[0]!)}
+                </button>
+              </li>
+            ))}
+          </ul>
+        ) : null}
       </div>
 
       <div aria-live="polite" className="flex flex-col gap-2">
@@ -428,6 +470,19 @@ export function BenchScreen({ initial, initialStage }: { initial: SeatReport; in
             Clipping: the sound is too loud for the microphone. Move the phone a little further away.
           </p>
         ) : null}
+        {lastFlags.includes("speech") ? (
+          <p className="rounded-lg bg-amber-100 px-3 py-2 text-sm text-amber-900" data-testid="last-left-out">
+            Stroke {last?.n} left out: talk over the stroke. Keep talk to the pauses between strokes.
+          </p>
+        ) : lastFlags.includes("impulsive") ? (
+          <p className="rounded-lg bg-amber-100 px-3 py-2 text-sm text-amber-900" data-testid="last-left-out">
+            Stroke {last?.n} left out: a knock or rattle over it. Lap again when the bay is quieter, or move the phone closer.
+          </p>
+        ) : lastFlags.includes("start-not-heard") ? (
+          <p className="rounded-lg bg-amber-100 px-3 py-2 text-sm text-amber-900" data-testid="last-left-out">
+            Stroke {last?.n} left out: it began before listening did. Start each stroke after &quot;Stay quiet&quot; ends.
+          </p>
+        ) : null}
         {speechHeard > 0 ? (
           <p className="rounded-lg bg-stone-200 px-3 py-2 text-sm text-stone-800">
             Speech or a ringing sound was heard and ignored ({speechHeard}×). Keep talk to the pauses.
@@ -449,7 +504,16 @@ export function BenchScreen({ initial, initialStage }: { initial: SeatReport; in
         <div className="sticky bottom-2 flex flex-col gap-2">
           {listener.phase === "calibrating" ? (
             <p className="rounded-xl bg-amber-400 p-3 text-center text-xl font-bold text-ink" data-testid="calibrating">
-              Stay quiet — measuring the room…
+              {listener.calibrationNote === "measuring-again"
+                ? "Something was heard — stay quiet, measuring the room again…"
+                : listener.calibrationNote === "quieter"
+                  ? "The room is quieter than it was measured — stay quiet, measuring it again…"
+                  : "Stay quiet — measuring the room…"}
+            </p>
+          ) : null}
+          {listener.phase === "listening" && listener.calibrationNote === "quiet-part" ? (
+            <p className="rounded-xl bg-amber-100 p-2 text-center text-sm text-amber-900" data-testid="calibration-note">
+              The room was not quiet while it was measured; its quiet moments were used. Tap Re-measure room when the bay is quiet.
             </p>
           ) : null}
           {listening ? (

@@ -6,9 +6,33 @@ import { fadeAt, type FadeFit } from "@/lib/audio/fade";
 const INK = "#1c1917";
 export const BRASS = "#b45309";
 
-/** Strokes' numbers, their contrasts and the fitted curve at each, in uPlot's column layout. */
-export function fadeData(strokes: ReadonlyArray<{ n: number; contrastDb: number }>, fit: FadeFit | null): uPlot.AlignedData {
-  return [strokes.map((s) => s.n), strokes.map((s) => s.contrastDb), strokes.map((s) => (fit ? fadeAt(fit, s.n) : null))];
+export interface PlotStroke {
+  n: number;
+  contrastDb: number;
+  /** Reasons the stroke was left out of the verdict; empty or absent when judged. */
+  flags?: readonly string[];
+}
+
+export const isLeftOut = (s: PlotStroke) => (s.flags?.length ?? 0) > 0;
+
+/**
+ * uPlot's columns: stroke numbers; judged contrasts; left-out contrasts (drawn
+ * hollow, apart); the fitted curve through the judged strokes only. The fit
+ * counts judged strokes, so its k-th value belongs at the k-th judged stroke.
+ */
+export function fadeData(strokes: ReadonlyArray<PlotStroke>, fit: FadeFit | null): uPlot.AlignedData {
+  let judged = 0;
+  const curve = strokes.map((s) => {
+    if (isLeftOut(s)) return null;
+    judged += 1;
+    return fit ? fadeAt(fit, judged) : null;
+  });
+  return [
+    strokes.map((s) => s.n),
+    strokes.map((s) => (isLeftOut(s) ? null : s.contrastDb)),
+    strokes.map((s) => (isLeftOut(s) ? s.contrastDb : null)),
+    curve,
+  ];
 }
 
 /** Room for every point plus 1 dB, and never less than −1…6 dB so an early curve is not blown up. */
@@ -27,8 +51,10 @@ export function fadeAxes(fontPx: number): uPlot.Axis[] {
 export function fadeSeries(): uPlot.Series[] {
   return [
     {},
-    { label: "Onset contrast", stroke: BRASS, width: 3, points: { show: true, size: 9, fill: BRASS, stroke: BRASS } },
-    { label: "Fitted fade", stroke: "#78716c", width: 2, dash: [6, 4], points: { show: false } },
+    { label: "Onset contrast", stroke: BRASS, width: 3, spanGaps: true, points: { show: true, size: 9, fill: BRASS, stroke: BRASS } },
+    // Left out of the verdict: hollow rings, no line, so they read as apart from the curve.
+    { label: "Left out", stroke: "#57534e", width: 0, points: { show: true, size: 11, width: 2, fill: "#ffffff", stroke: "#57534e" } },
+    { label: "Fitted fade", stroke: "#78716c", width: 2, dash: [6, 4], spanGaps: true, points: { show: false } },
   ];
 }
 

@@ -9,10 +9,16 @@ import type { FromWorker, ToWorker } from "@/lib/bench/worker-protocol";
 
 export type ListenerPhase = "idle" | "starting" | "calibrating" | "listening" | "stopping";
 
+/** How the last room measurement went when it heard something: measuring again, or kept its quiet part. */
+export type CalibrationNote = "measuring-again" | "quieter" | "quiet-part" | null;
+
+/** Room measurements taken again, at most, when each heard a sound, before keeping the quiet part. */
+const CALIBRATION_RETRIES = 2;
+
 export interface ListenerCallbacks {
   onStroke(stroke: Stroke, detectionMs: number): void;
   onRejected(sound: RejectedSound): void;
-  onCalibrated(noiseFloorDbfs: number): void;
+  onCalibrated(noiseFloorDbfs: number, disturbed: boolean): void;
   onRecording(blob: Blob, type: string): void;
 }
 
@@ -61,6 +67,8 @@ export function useListener(callbacks: ListenerCallbacks) {
   const [processing, setProcessing] = useState<ProcessingWarning[]>([]);
   const [sampleRate, setSampleRate] = useState<number | null>(null);
   const [blockMicros, setBlockMicros] = useState<number | null>(null);
+  const [calibrationNote, setCalibrationNote] = useState<CalibrationNote>(null);
+  const retries = useRef(0);
   const parts = useRef<{
     stream: MediaStream;
     ctx: AudioContext;
@@ -77,6 +85,8 @@ export function useListener(callbacks: ListenerCallbacks) {
 
   const start = useCallback(async (options: { record: boolean; noiseFloorDbfs?: number }) => {
     setError(null);
+    setCalibrationNote(null);
+    retries.current = 0;
     const unsupported = browserCanListen();
     if (unsupported) {
       setError(unsupported);
@@ -118,8 +128,19 @@ export function useListener(callbacks: ListenerCallbacks) {
       worker.onmessage = (e: MessageEvent<FromWorker>) => {
         const m = e.data;
         if (m.type === "calibrated") {
+          if (m.disturbed && retries.current < CALIBRATION_RETRIES) {
+            // A sound during "stay quiet": say so and measure again.
+            retries.current += 1;
+            setCalibrationNote("measuring-again");
+            post({ type: "recalibrate" });
+            return;
+          }
+          setCalibrationNote(m.disturbed ? "quiet-part" : null);
           setPhase("listening");
-          cb.current.onCalibrated(m.noiseFloorDbfs);
+          cb.current.onCalibrated(m.noiseFloorDbfs, m.disturbed);
+        } else if (m.type === "remeasuring") {
+          setCalibrationNote("quieter");
+          setPhase("calibrating");
         } else if (m.type === "stroke") cb.current.onStroke(m.stroke, m.detectionMs);
         else if (m.type === "rejected") cb.current.onRejected(m.sound);
         else if (m.type === "level") setBlockMicros(m.blockMicros);
@@ -185,6 +206,8 @@ export function useListener(callbacks: ListenerCallbacks) {
     const p = parts.current;
     if (!p) return;
     p.worker.postMessage({ type: "recalibrate" } satisfies ToWorker);
+    retries.current = 0;
+    setCalibrationNote(null);
     setPhase("calibrating");
   }, []);
 
@@ -216,5 +239,5 @@ export function useListener(callbacks: ListenerCallbacks) {
     [],
   );
 
-  return { phase, error, processing, sampleRate, blockMicros, start, stop, recalibrate, setError };
+  return { phase, error, processing, sampleRate, blockMicros, calibrationNote, start, stop, recalibrate, setError };
 }

@@ -10,6 +10,7 @@ import "uplot/dist/uPlot.min.css";
 import type WaveSurfer from "wavesurfer.js";
 import type { Region } from "wavesurfer.js/dist/plugins/regions.esm.js";
 import type { FadeFit } from "@/lib/audio/fade";
+import { flagText } from "@/lib/audio/verdict";
 import { fadeAxes, fadeData, fadeSeries, fadeYRange, shadeSettledZone } from "@/components/bench/fade-plot";
 
 export interface ReviewStroke {
@@ -42,7 +43,7 @@ function contrastColour(db: number, thresholdDb: number, alpha: number): string 
   return `rgba(${mix(16, 180)}, ${mix(185, 83)}, ${mix(129, 9)}, ${alpha})`;
 }
 
-const FLAG_TEXT: Record<string, string> = { clipping: "Clipped", "too-quiet": "Too quiet" };
+
 
 export function SessionReview({
   sessionId,
@@ -334,7 +335,7 @@ export function SessionReview({
                     <td className="py-2 pr-3">{s.onsetDb.toFixed(1)} dB</td>
                     <td className="py-2 pr-3">{s.bodyDb.toFixed(1)} dB</td>
                     <td className="py-2 pr-3 font-semibold">{s.contrastDb.toFixed(1)} dB</td>
-                    <td className="py-2">{s.flags.length ? s.flags.map((f) => FLAG_TEXT[f] ?? f).join(", ") : "—"}</td>
+                    <td className="py-2">{s.flags.length ? `Left out: ${s.flags.map(flagText).join(", ")}` : "—"}</td>
                   </tr>
                 ))}
               </tbody>

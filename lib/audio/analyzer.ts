@@ -6,10 +6,7 @@
 import { highBandHz, measureStroke, median, strokeBands, type StrokeBands, type StrokeMeasures } from "./contrast";
 import {
   bandFloors,
-  calibrationDisturbed,
   dbToPower,
-  floorGrid,
-  isQuietFrame,
   measureFloorFrame,
   pauseFramePositions,
   type FloorFrame,
@@ -26,7 +23,9 @@ import {
   type AnalysisOptionsInput,
 } from "./options";
 import { StrokeSegmenter, type Candidate, type RejectedSound } from "./strokes";
-import { judgeSeat, type SeatVerdict, type StrokeFlag } from "./verdict";
+import { FLAG_TEXT, judgeSeat, type SeatVerdict, type StrokeFlag } from "./verdict";
+
+export { FLAG_TEXT };
 
 export interface Stroke {
   /** 1-based, counting accepted strokes only. */
@@ -65,14 +64,6 @@ export const WARNING_TEXT: Readonly<Record<RecordingWarning, string>> = Object.f
   "calibration-disturbed": "There was sound during the quiet start; the room noise was measured on its quiet part only.",
 });
 
-/** Why a stroke was left out, in a technician's words. */
-export const FLAG_TEXT: Readonly<Record<StrokeFlag, string>> = Object.freeze({
-  clipping: "clipped",
-  "too-quiet": "too quiet against the room noise",
-  speech: "talk over the stroke",
-  impulsive: "a knock or rattle over the stroke",
-  "start-not-heard": "its start was not heard",
-});
 
 export type NoiseFloorSource = "lead-in" | "quietest-frames" | "given" | "calibration";
 
@@ -339,31 +330,54 @@ export function recordingWarnings(
   return w;
 }
 
-/**
- * Band floors of the lead-in (the offline twin of the live calibration):
- * frames on a whole-frame grid over its samples, the quiet ones averaged.
- */
-export function leadInFloors(
-  samples: Float32Array,
-  leadInHops: number,
-  levels: ArrayLike<number>,
-  hopPowers: ArrayLike<number>,
-  hopSize: number,
-  frame: SpectrumFrame,
-  sampleRateHz: number,
-  options: AnalysisOptions,
-): { floors: NoiseFloors; disturbed: boolean } {
-  const levelDbfs = noiseFloorDbfs(Float64Array.from({ length: leadInHops }, (_, h) => levels[h]), options);
-  const bands = strokeBands(sampleRateHz, frame.size, options);
-  const frames: FloorFrame[] = [];
-  const quiet: boolean[] = [];
-  for (const at of floorGrid(0, leadInHops * hopSize, frame.size)) {
-    frames.push(measureFloorFrame(samples, at, at, frame, bands));
-    quiet.push(isQuietFrame(at, frame.size, hopSize, hopPowers, 0, levelDbfs, options));
+/** Is there a clipping run anywhere in the samples (as the level meter counts them)? */
+export function hasClipping(samples: Float32Array, options: AnalysisOptions): boolean {
+  const c = options.clipLevel;
+  let run = 0;
+  for (let i = 0; i < samples.length; i++) {
+    const x = samples[i];
+    if (x >= c || x <= -c) {
+      if (++run >= options.clipRunSamples) return true;
+    } else run = 0;
   }
+  return false;
+}
+
+/**
+ * A recording with a quiet lead-in is the bench screen's situation: the
+ * lead-in is its calibration, with everything the live analyzer does about
+ * it (a sound during it, a room quieter than measured). So it is analysed by
+ * the live analyzer itself, in chunks.
+ */
+function analyzeWithCalibration(samples: Float32Array, sampleRateHz: number, options: AnalysisOptions): AnalysisResult {
+  const live = new LiveAnalyzer({ sampleRate: sampleRateHz, options: { ...options, calibrationMs: options.leadInMs } });
+  const rejected: RejectedSound[] = [];
+  const collect = (events: readonly LiveEvent[]) => {
+    for (const e of events) if (e.type === "rejected") rejected.push(e.sound);
+  };
+  for (let at = 0; at < samples.length; at += 1 << 15) collect(live.push(samples.subarray(at, at + (1 << 15))));
+  collect(live.flush());
+  return liveResult(live, rejected, samples.length / sampleRateHz, "lead-in", hasClipping(samples, options));
+}
+
+function liveResult(live: LiveAnalyzer, rejected: RejectedSound[], durationS: number, source: NoiseFloorSource, clippedAnywhere: boolean): AnalysisResult {
+  const o = live.options;
+  const sr = live.sampleRate;
+  const strokes = [...live.strokes];
+  const low = o.minNoiseFloorDbfs;
+  // A recording too short to finish its calibration has no floors: the lowest stand in.
+  const floors = live.noiseFloors ?? { levelDbfs: low, grindDbfs: low, voiceDbfs: low };
   return {
-    floors: bandFloors(levelDbfs, frames, quiet, options),
-    disturbed: calibrationDisturbed(levels, 0, leadInHops, levelDbfs, options),
+    sampleRate: sr,
+    durationS,
+    noiseFloorDbfs: floors.levelDbfs,
+    noiseFloors: floors,
+    noiseFloorSource: source,
+    highBandHz: highBandHz(sr, o),
+    strokes,
+    rejected,
+    verdict: judgeSeat(strokes, o),
+    warnings: recordingWarnings(strokes, rejected, clippedAnywhere, sr, o, live.calibrationDisturbed),
   };
 }
 
@@ -372,18 +386,19 @@ export function analyzeRecording(samples: Float32Array, input: AnalyzeRecordingI
   const sr = validateSampleRate(input.sampleRate);
   const o = resolveOptions(input.options ?? {});
   if (!(samples instanceof Float32Array)) throw new TypeError("samples must be a Float32Array");
+  if (input.noiseFloorDbfs === undefined && o.leadInMs >= 100) return analyzeWithCalibration(samples, sr, o);
   const series = levelSeries(samples, sr, o);
   const { levels, clipped, hopSize, hopPowers, hopKurtosis } = series;
   const leadInHops = Math.min(levels.length, Math.floor(Math.round((sr * o.leadInMs) / 1000) / hopSize));
   const judge = new StrokeJudge(sr, o);
   let floors: NoiseFloors;
   let source: NoiseFloorSource;
-  let disturbed = false;
   if (input.noiseFloorDbfs !== undefined) {
     floors = givenFloors(input.noiseFloorDbfs, o);
     source = "given";
   } else if (leadInHops > 0) {
-    ({ floors, disturbed } = leadInFloors(samples, leadInHops, levels, hopPowers, hopSize, judge.frame, sr, o));
+    // A lead-in too short to calibrate on: its level floor alone.
+    floors = givenFloors(noiseFloorDbfs(levels, o, 0, leadInHops), o);
     source = "lead-in";
   } else {
     const levelDbfs = noiseFloorDbfs(levels, o);
@@ -423,7 +438,7 @@ export function analyzeRecording(samples: Float32Array, input: AnalyzeRecordingI
     strokes,
     rejected,
     verdict: judgeSeat(strokes, o),
-    warnings: recordingWarnings(strokes, rejected, clippedAnywhere, sr, o, disturbed),
+    warnings: recordingWarnings(strokes, rejected, clippedAnywhere, sr, o),
   };
 }
 
@@ -476,20 +491,7 @@ export function analyzeWavBytes(bytes: Uint8Array, options: AnalysisOptionsInput
   };
   forEachMonoChunk(bytes, chunk, (samples) => collect(live.push(samples)));
   collect(live.flush());
-  const strokes = [...live.strokes];
-  const floors = live.noiseFloors as NoiseFloors;
-  return {
-    sampleRate: sr,
-    durationS: info.frames / sr,
-    noiseFloorDbfs: floors.levelDbfs,
-    noiseFloors: floors,
-    noiseFloorSource: leadInHops > 0 ? "lead-in" : "quietest-frames",
-    highBandHz: highBandHz(sr, o),
-    strokes,
-    rejected,
-    verdict: judgeSeat(strokes, o),
-    warnings: recordingWarnings(strokes, rejected, clippedAnywhere, sr, o, live.calibrationDisturbed),
-  };
+  return liveResult(live, rejected, info.frames / sr, leadInHops > 0 ? "lead-in" : "quietest-frames", clippedAnywhere);
 }
 
 /** Floor frames at sorted absolute positions, read from the file's chunks through a one-frame carry buffer. */

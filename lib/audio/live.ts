@@ -34,6 +34,8 @@ import { StrokeSegmenter, type Candidate, type RejectedSound } from "./strokes";
 export type LiveState = "calibrating" | "listening";
 
 export type LiveEvent =
+  /** The analyzer measures the room again by itself: it turned out quieter than measured. */
+  | { type: "remeasuring"; atS: number }
   | {
       type: "calibrated";
       /** Level-band floor, dBFS. */
@@ -122,6 +124,12 @@ export class LiveAnalyzer {
   /** Set when the calibration's hops are all in: its level floor, waiting for the band floors. */
   private calibrationLevel: { levelDbfs: number; disturbed: boolean; atS: number } | null = null;
   private disturbed = false;
+  // Whether the floors came from this analyzer's own calibration (only then is
+  // a level far below them a sign the calibration heard a stroke), and how
+  // many hops in a row have been that far below.
+  private selfCalibrated = false;
+  private belowFloorHops = 0;
+  private readonly dropHops: number;
   // Level-band power of every hop since hopBase, for the knock test and the
   // calibration's quiet frames; trimmed with the audio.
   private hopPowers: Float64Array = new Float64Array(1 << 12);
@@ -166,6 +174,7 @@ export class LiveAnalyzer {
     this.bands = strokeBands(this.sampleRate, this.frameSize, o);
     this.onsetAt = onsetPositions(0, Infinity, this.frameSize, this.sampleRate, o);
     this.onsetShape = shapeFrames(this.onsetAt.length + o.maxBodyFrames, o).slice(0, this.onsetAt.length);
+    this.dropHops = Math.max(1, Math.round(o.floorDropMs / o.hopMs));
     const liftHops = Math.ceil(o.minLiftMs / o.hopMs);
     // A stroke is needed whole until its lift has been heard.
     this.maxKeep =
@@ -240,6 +249,7 @@ export class LiveAnalyzer {
       throw new RangeError(`noiseFloorDbfs must be a finite level at or below 0 dBFS, got ${floors}`);
     }
     this.floors = givenFloors(floors, this.options);
+    this.selfCalibrated = false;
     this.calibrationLevel = null;
     this.calibrationFrames = [];
     this.segmenter.setNoiseFloor(this.floors.levelDbfs);
@@ -317,9 +327,22 @@ export class LiveAnalyzer {
         this.calibrationLevel = { levelDbfs, disturbed, atS: ((hop + 1) * this.hopSize) / this.sampleRate };
         this.segmenter.setNoiseFloor(levelDbfs);
         this.liveState = "listening";
+        this.selfCalibrated = true;
+        this.belowFloorHops = 0;
       }
       return;
     }
+    if (this.selfCalibrated && this.segmenter.openStartHop < 0) {
+      const floor = this.floors?.levelDbfs ?? this.calibrationLevel?.levelDbfs ?? 0;
+      const limit = floor - this.options.floorDropDb;
+      // Below the lowest floor there is nothing quieter to measure (digital silence).
+      this.belowFloorHops = limit > this.options.minNoiseFloorDbfs && 10 * Math.log10(level) <= limit ? this.belowFloorHops + 1 : 0;
+      if (this.belowFloorHops >= this.dropHops) {
+        this.events.push({ type: "remeasuring", atS: ((hop + 1) * this.hopSize) / this.sampleRate });
+        this.startCalibration();
+        return;
+      }
+    } else this.belowFloorHops = 0;
     const c = this.segmenter.step(hop, level);
     if (c) this.take(c);
   };

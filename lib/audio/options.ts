@@ -25,6 +25,12 @@ export const ANALYSIS_DEFAULTS = Object.freeze({
   calibrationMs: 2000,
   // Digital silence has no level; clamp the floor so thresholds stay finite.
   minNoiseFloorDbfs: -100,
+  // A calibration made entirely over a sound (lapping begun before "stay
+  // quiet") measures that sound as the room. When the level then stays this
+  // far below the measured floor this long, between strokes, the room was
+  // quieter than measured: the analyzer measures it again.
+  floorDropDb: 6,
+  floorDropMs: 500,
   // The level envelope that finds strokes is measured above this frequency
   // (a second-order Butterworth high-pass): compressor rumble, mains hum and
   // most of a voice's energy lie below it, lapping noise mostly above.
@@ -170,6 +176,8 @@ const BOUNDS: { readonly [K in keyof AnalysisOptions]: Bound } = {
   leadInMs: { min: 0, max: 60_000 },
   calibrationMs: { min: 100, max: 60_000 },
   minNoiseFloorDbfs: { min: -200, max: -20 },
+  floorDropDb: { min: 0, max: 80, minExclusive: true },
+  floorDropMs: { min: 10, max: 60_000 },
   levelBandLowHz: { min: 0, max: 20_000 },
   quietMarginDb: { min: 0, max: 40 },
   floorFramesMax: { min: 1, max: 10_000, integer: true },

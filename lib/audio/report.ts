@@ -3,7 +3,7 @@
 
 import type { AnalysisResult, RecordingWarning } from "./analyzer";
 import { FLAG_TEXT, WARNING_TEXT } from "./analyzer";
-import type { StrokeFlag } from "./verdict";
+import { leftOutSummary, type StrokeFlag } from "./verdict";
 
 export interface ReportStroke {
   index: number;
@@ -111,12 +111,8 @@ export function formatReportText(result: AnalysisResult, label: string): string 
     const rem = v.strokesRemaining === null ? "not yet steady" : `about ${v.strokesRemaining}`;
     lines.push(`Verdict: still fading — strokes remaining ${rem} (rule: ${ruleText}).`);
   }
-  if (v.leftOutStrokes > 0) {
-    const why = Object.entries(v.leftOutByFlag)
-      .map(([f, n]) => `${FLAG_TEXT[f as StrokeFlag] ?? f} ${n}`)
-      .join(", ");
-    lines.push(`Left out of the verdict: ${v.leftOutStrokes} stroke${v.leftOutStrokes === 1 ? "" : "s"} (${why}).`);
-  }
+  const leftOut = leftOutSummary(v);
+  if (leftOut) lines.push(`${leftOut} (kept above, not judged).`);
   for (const w of result.warnings) lines.push(`Warning: ${WARNING_TEXT[w]}`);
   return lines.join("\n") + "\n";
 }

@@ -12,6 +12,31 @@ import { resolveOptions, type AnalysisOptions, type AnalysisOptionsInput } from 
 export const STROKE_FLAGS = ["clipping", "too-quiet", "speech", "impulsive", "start-not-heard"] as const;
 export type StrokeFlag = (typeof STROKE_FLAGS)[number];
 
+/** Why a stroke was left out, in a technician's words. */
+export const FLAG_TEXT: Readonly<Record<StrokeFlag, string>> = Object.freeze({
+  clipping: "clipped",
+  "too-quiet": "too quiet against the room noise",
+  speech: "talk over the stroke",
+  impulsive: "a knock or rattle over the stroke",
+  "start-not-heard": "its start was not heard",
+});
+
+/** The reason for any flag, an unknown one (from an older phone) included. */
+export function flagText(flag: string): string {
+  return (FLAG_TEXT as Record<string, string>)[flag] ?? (flag === "speech-nearby" ? "talk near the stroke" : flag);
+}
+
+/** "3 strokes left out: talk over the stroke (2), clipped (1)", or null when none were. */
+export function leftOutSummary(verdict: Pick<SeatVerdict, "leftOutStrokes" | "leftOutByFlag">): string | null {
+  const n = verdict.leftOutStrokes;
+  if (n === 0) return null;
+  const why = Object.entries(verdict.leftOutByFlag)
+    .sort((a, b) => (b[1] ?? 0) - (a[1] ?? 0))
+    .map(([f, k]) => (n === 1 ? flagText(f) : `${flagText(f)} (${k})`))
+    .join(", ");
+  return `${n} stroke${n === 1 ? "" : "s"} left out: ${why}`;
+}
+
 /** What the verdict needs of a stroke; a full Stroke satisfies it. */
 export interface VerdictStroke {
   contrastDb: number;

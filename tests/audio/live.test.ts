@@ -47,6 +47,13 @@ describe("live analyzer gives the offline analyzer's strokes", () => {
     expect(cal && cal.type === "calibrated" && cal.noiseFloorDbfs).toBe(offlineLeadIn.noiseFloorDbfs);
     // The band floors too, to the bit: the same quiet frames, measured alike.
     expect(cal && cal.type === "calibrated" && cal.noiseFloors).toEqual(offlineLeadIn.noiseFloors);
+    // Offline analysis with a lead-in runs the live analyzer (the lead-in is its calibration);
+    // the offline loop, given the floors the calibration found, is the independent check.
+    if (cal?.type !== "calibrated") throw new Error("no calibration");
+    const loop = analyzeRecording(session.samples, { sampleRate: 44100, noiseFloorDbfs: cal.noiseFloors, options: { leadInMs: 2000 } });
+    expect(loop.noiseFloorSource).toBe("given");
+    expect(strokesOf(events)).toEqual(loop.strokes);
+    expect(rejectedOf(events)).toEqual(loop.rejected);
     expect(strokesOf(events)).toEqual(offlineLeadIn.strokes);
     expect(rejectedOf(events)).toEqual(offlineLeadIn.rejected);
     expect(live.strokes).toEqual(offlineLeadIn.strokes);

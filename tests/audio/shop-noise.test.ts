@@ -287,11 +287,49 @@ describe("a stroke begun during the calibration", () => {
     expect(strokes).toHaveLength(session.strokes.length);
   });
 
-  it("gives the same as offline analysis with a 2 s lead-in, warning included", () => {
+  it("gives the same as offline analysis with a 2 s lead-in, warning included, and as the offline loop given its floors", () => {
     const offline = analyzeRecording(session.samples, { sampleRate: 48000, options: { leadInMs: 2000 } });
     expect(strokes).toEqual(offline.strokes);
     expect(offline.warnings).toContain("calibration-disturbed");
     expect(offline.verdict.judgedStrokes).toBe(strokes.length - 1);
+    if (calibrated?.type !== "calibrated") throw new Error("no calibration");
+    const loop = analyzeRecording(session.samples, { sampleRate: 48000, noiseFloorDbfs: calibrated.noiseFloors, options: { leadInMs: 2000 } });
+    expect(loop.strokes).toEqual(strokes);
+  });
+});
+
+describe("a calibration made entirely over a stroke", () => {
+  // Lapping from 0.1 s to 4.1 s: nearly all of "stay quiet" hears the stroke, so it measures the
+  // stroke as the room. Once the room is heard far quieter between strokes, it is measured again.
+  const contrasts = settling(10, 10);
+  const session = synthesizeSession({
+    sampleRate: 44100,
+    seed: 15,
+    leadInS: 0.1,
+    strokes: [{ contrastDb: 0.5, durationS: 4, gapS: 3 }, ...contrasts.map((contrastDb) => ({ contrastDb }))],
+  });
+  const live = createLiveAnalyzer({ sampleRate: 44100 });
+  const events: LiveEvent[] = [];
+  for (let at = 0; at < session.samples.length; at += 128) events.push(...live.push(session.samples.subarray(at, at + 128)));
+  events.push(...live.flush());
+  const strokes = events.flatMap((e) => (e.type === "stroke" ? [e.stroke] : []));
+
+  it("measures the room again by itself, and then finds every stroke after the long one", () => {
+    const again = events.findIndex((e) => e.type === "remeasuring");
+    expect(again).toBeGreaterThan(-1);
+    const calibrations = events.filter((e) => e.type === "calibrated");
+    expect(calibrations).toHaveLength(2);
+    const first = calibrations[0]!;
+    const second = calibrations[1]!;
+    if (first.type !== "calibrated" || second.type !== "calibrated") throw new Error("no calibration");
+    // The second floor is the room's: far below the first, which was the stroke's.
+    expect(first.noiseFloorDbfs - second.noiseFloorDbfs).toBeGreaterThan(20);
+    expect(strokes).toHaveLength(contrasts.length);
+    strokes.forEach((s, i) => expect(Math.abs(s.contrastDb - session.strokes[i + 1]!.contrastDb)).toBeLessThanOrEqual(1));
+  });
+
+  it("offline analysis with the same lead-in does the same", () => {
+    expect(analyzeRecording(session.samples, { sampleRate: 44100, options: { leadInMs: 2000 } }).strokes).toEqual(strokes);
   });
 });
 

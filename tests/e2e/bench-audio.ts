@@ -21,9 +21,38 @@ function write(name: string, contrasts: number[], seed: number, sampleRate = 480
     tailS: 0.5,
     strokes: contrasts.map((c) => ({ contrastDb: c, durationS: 0.7, gapS: 0.55 })),
   });
+  return save(name, session.samples, contrasts, sampleRate);
+}
+
+/**
+ * A shop's start: the technician is already lapping while the screen says "stay quiet" (a long
+ * stroke from 0.8 s to 5 s, over every room measurement that starts before it ends), then
+ * strokes that fade, one of them under an impact wrench's rattle. `contrastsDb` are the real
+ * strokes after the long one; `rattledStroke` is the 1-based number of the rattled one among them.
+ */
+export function busyBaySession(sampleRate = 48000): FakeMicFile & { rattledStroke: number } {
+  // Fading toward 3 dB: still fading at the end, so no cue covers the screen.
+  const contrasts = decayingContrasts(10, 10, 3, 2.5);
+  const spec = {
+    sampleRate,
+    seed: 41,
+    leadInS: 0.8,
+    tailS: 0.5,
+    strokes: [{ contrastDb: 0.3, durationS: 4.2, gapS: 3.5 }, ...contrasts.map((c) => ({ contrastDb: c, durationS: 0.8, gapS: 0.6 }))],
+  };
+  const plain = synthesizeSession(spec);
+  const rattled = plain.strokes[4];
+  const session = synthesizeSession({
+    ...spec,
+    events: [{ kind: "rattle", atS: rattled.startS + 0.05, durationS: rattled.endS - rattled.startS - 0.1, levelDbfs: -12 }],
+  });
+  return { ...save("busy-bay", session.samples, contrasts, sampleRate), rattledStroke: 4 };
+}
+
+function save(name: string, samples: Float32Array, contrasts: number[], sampleRate: number): FakeMicFile {
   const silence = new Float32Array(sampleRate * 6);
-  const all = new Float32Array(session.samples.length + silence.length);
-  all.set(session.samples);
+  const all = new Float32Array(samples.length + silence.length);
+  all.set(samples);
   const dir = fs.mkdtempSync(path.join(os.tmpdir(), "grindfade-mic-"));
   const file = path.join(dir, `${name}.wav`);
   fs.writeFileSync(file, encodeWav([all], sampleRate, { bitsPerSample: 16 }));

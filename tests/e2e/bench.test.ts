@@ -5,7 +5,7 @@ import path from "node:path";
 import { afterEach, describe, expect, inject, it } from "vitest";
 import type { Browser, BrowserContext, Page } from "playwright-core";
 import { DEMO_USERS } from "@/db/seed";
-import { decayingSession, flatHighSession, type FakeMicFile } from "./bench-audio";
+import { busyBaySession, decayingSession, flatHighSession, type FakeMicFile } from "./bench-audio";
 import { PHONE, launchBrowser, signIn } from "./browser";
 
 const baseURL = inject("baseURL");
@@ -20,7 +20,10 @@ afterEach(async () => {
 
 interface SeatApi {
   seat: { state: string; code: string };
-  stages: Record<"coarse" | "fine", { strokes: Array<{ clientId: string; startS: number; sessionId: string }>; verdict: { state: string } }>;
+  stages: Record<
+    "coarse" | "fine",
+    { strokes: Array<{ clientId: string; startS: number; sessionId: string; contrastDb: number; flags: string[] }>; verdict: { state: string; judgedStrokes: number } }
+  >;
 }
 
 async function openSeat(mic: FakeMicFile, jobNumber: string, seatCode: string): Promise<{ context: BrowserContext; page: Page; seatId: string }> {
@@ -128,6 +131,35 @@ describe("bench screen with a fake microphone", () => {
     expect(server.stages.coarse.verdict.state).toBe("not-settling");
     expect(server.seat.state).toBe("stalled");
     expect(server.stages.coarse.strokes.length).toBeGreaterThanOrEqual(12);
+  });
+
+  it("measures the room again when lapping began during it, and draws a rattled stroke hollow, left out with its reason", async () => {
+    const mic = busyBaySession();
+    const { page, seatId } = await openSeat(mic, "MHW-0141", "2E2");
+    await page.getByTestId("start-listening").tap();
+    // The long stroke over "stay quiet" is heard: the screen says so and measures again.
+    await page.getByText(/Something was heard — stay quiet, measuring the room again/).waitFor({ timeout: 15_000 });
+    await page.screenshot({ path: path.join(ARTIFACTS, "bench-calibration-disturbed.png") });
+    const real = mic.contrastsDb.length;
+    await page.waitForFunction((n) => Number(document.querySelector("[data-testid=stroke-count]")?.textContent) >= n, real, { timeout: 60_000 });
+    await page.waitForFunction(() => Number(document.querySelector("[data-testid=fade-chart]")?.getAttribute("data-left-out")) >= 1, null, { timeout: 10_000 });
+    expect(await page.getByTestId("left-out").innerText()).toMatch(/1 stroke left out: a knock or rattle over the stroke/);
+    await page.getByRole("button", { name: /a knock or rattle over the stroke/ }).tap();
+    expect(await page.getByTestId("picked-stroke").innerText()).toMatch(/left out: a knock or rattle over the stroke/);
+    await page.screenshot({ path: path.join(ARTIFACTS, "bench-left-out.png") });
+    await page.getByRole("button", { name: "Stop listening" }).tap();
+    await page.waitForFunction(() => document.querySelector("[data-testid=sync-state]")?.textContent?.includes("All strokes saved"), null, { timeout: 30_000 });
+
+    const server = await seatFromServer(page, seatId);
+    const saved = server.stages.coarse.strokes;
+    // The stroke under the room measurement never enters the curve as a judged point: either
+    // it is not there at all, or it is left out because its start was not heard.
+    const judged = saved.filter((st) => st.flags.length === 0);
+    expect(saved.filter((st) => st.flags.length > 0 && !st.flags.includes("start-not-heard") && !st.flags.includes("impulsive"))).toEqual([]);
+    expect(judged.length).toBe(real - 1);
+    expect(Math.abs(judged[0]!.contrastDb - mic.contrastsDb[0]!)).toBeLessThan(1.5);
+    expect(saved.filter((st) => st.flags.includes("impulsive"))).toHaveLength(1);
+    expect(server.stages.coarse.verdict.judgedStrokes).toBe(real - 1);
   });
 
   it("explains a refused microphone instead of showing a blank screen", async () => {
