@@ -37,6 +37,12 @@ function wallMs(cmd: string, args: string[]): number {
   return ms;
 }
 
+/** One line per goal, as every benchmark ends. */
+const goals: string[] = [];
+function goal(name: string, held: boolean, figures: string): void {
+  goals.push(`GOAL ${name}: ${held ? "held" : "missed"} (${figures})`);
+}
+
 function main(): void {
   const dir = mkdtempSync(join(tmpdir(), "grindfade-bench-"));
   try {
@@ -63,6 +69,7 @@ function main(): void {
         `median of 5 ${med.toFixed(1)} ms (${(DURATION_S / (med / 1000)).toFixed(0)}× real time); ` +
         `${runs[0].value.strokes.length} strokes; goal ≥ 2000× (≤ 300 ms)`,
     );
+    goal("analysis-speed", med <= 300, `median ${med.toFixed(1)} ms for ${DURATION_S} s, ${(DURATION_S / (med / 1000)).toFixed(0)}× real time; goal ≥ 2000×`);
 
     const chunked = [1, 2, 3].map(() => timeIt(() => analyzeWavBytes(bytes)));
     console.log(
@@ -109,6 +116,8 @@ function main(): void {
         `worst block ${worstUs.toFixed(0)} µs (${share(worstUs)}; best of ${liveRuns} runs per block); ${liveStrokes} strokes; ` +
         `goal < ${100 * goalShare}% (${(goalShare * blockUs).toFixed(0)} µs): average ${verdict(perBlockUs)}, worst block ${verdict(worstUs)}`,
     );
+    goal("live-block-average", perBlockUs < goalShare * blockUs, `${perBlockUs.toFixed(1)} µs of ${blockUs.toFixed(0)} µs, ${share(perBlockUs)}; goal < 10%`);
+    goal("live-worst-block", worstUs < goalShare * blockUs, `${worstUs.toFixed(0)} µs of ${blockUs.toFixed(0)} µs, ${share(worstUs)}; goal < 10%`);
     console.log(
       `live: at most ${mostSpectra} spectra in one block (budget ${SPECTRA_PER_128_SAMPLES} per 128 samples); ` +
         `slowest block of the first run, scheduling and collections included: ${(rawWorstMs * 1000).toFixed(0)} µs (${share(rawWorstMs * 1000)})`,
@@ -126,12 +135,15 @@ function main(): void {
         `process: aubioonset -O hfc, median of 3: ${median(aubio).toFixed(0)} ms; ` +
           `aubioonset / analyzer = ${ratio.toFixed(2)} (goal > 1: the analyzer is faster)`,
       );
+      goal("faster-than-aubioonset", ratio > 1, `aubioonset ${median(aubio).toFixed(0)} ms / analyzer ${median(ours).toFixed(0)} ms = ${ratio.toFixed(2)}; goal > 1`);
     } else {
       console.log("process: aubioonset not installed (apt-get install aubio-tools); ratio not measured");
+      goal("faster-than-aubioonset", false, "aubioonset not installed; not measured");
     }
   } finally {
     rmSync(dir, { recursive: true, force: true });
   }
+  for (const line of goals) console.log(line);
 }
 
 main();
