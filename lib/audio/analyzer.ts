@@ -186,6 +186,7 @@ export class StrokeJudge {
     if (voice.frames >= o.voiceMinFrames || startS - this.lastSpeechEndS <= o.speechGuardMs / 1000) flags.push("speech");
     if (impulsive(hops, o)) flags.push("impulsive");
     if (c.startHeard === false) flags.push("start-not-heard");
+    if (c.endHeard === false) flags.push("end-not-heard");
     if (flags.length === 0) {
       this.voiceShares.push(voice.bodyShare);
       if (this.voiceShares.length > VOICE_REFERENCE_STROKES) this.voiceShares.shift();

@@ -18,6 +18,8 @@ export interface Candidate {
    * calibration, or at the start of a file): its start was never heard.
    */
   startHeard?: boolean;
+  /** False when input ended while the burst still sounded: its end (and so its body) was never heard. */
+  endHeard?: boolean;
 }
 
 export type RejectionReason = "too-short" | "too-long" | "not-noise-like";
@@ -181,9 +183,9 @@ export class StrokeSegmenter {
     return c;
   }
 
-  /** End of input: close a burst still in progress. */
+  /** End of input: close a burst still in progress, its end not heard. */
   finish(): Candidate | null {
-    return this.active ? this.close() : null;
+    return this.active ? { ...this.close(), endHeard: false } : null;
   }
 
   private endHopNow(): number {

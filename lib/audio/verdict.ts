@@ -9,7 +9,7 @@ import { resolveOptions, type AnalysisOptions, type AnalysisOptionsInput } from 
  * Reasons a stroke's contrast is not trusted. A flagged stroke keeps its
  * figures for review but never enters the fit or the settled rule.
  */
-export const STROKE_FLAGS = ["clipping", "too-quiet", "speech", "impulsive", "start-not-heard"] as const;
+export const STROKE_FLAGS = ["clipping", "too-quiet", "speech", "impulsive", "start-not-heard", "end-not-heard"] as const;
 export type StrokeFlag = (typeof STROKE_FLAGS)[number];
 
 /** Why a stroke was left out, in a technician's words. */
@@ -19,6 +19,7 @@ export const FLAG_TEXT: Readonly<Record<StrokeFlag, string>> = Object.freeze({
   speech: "talk over the stroke",
   impulsive: "a knock or rattle over the stroke",
   "start-not-heard": "its start was not heard",
+  "end-not-heard": "listening stopped before it ended",
 });
 
 /** The reason for any flag, an unknown one (from an older phone) included. */

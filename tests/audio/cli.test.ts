@@ -39,7 +39,7 @@ const Report = z
           bodyDb: z.number(),
           contrastDb: z.number(),
           bandSnrDb: z.number(),
-          flags: z.array(z.enum(["clipping", "too-quiet", "speech", "impulsive", "start-not-heard"])),
+          flags: z.array(z.enum(["clipping", "too-quiet", "speech", "impulsive", "start-not-heard", "end-not-heard"])),
           reasons: z.array(z.string().min(3)),
         })
         .strict(),

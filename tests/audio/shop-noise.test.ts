@@ -333,6 +333,19 @@ describe("a calibration made entirely over a stroke", () => {
   });
 });
 
+describe("listening stopped in the middle of a stroke", () => {
+  it("the cut stroke keeps its figures but is left out: its body was never heard", () => {
+    const session = synthesizeSession({ sampleRate: 48000, seed: 16, strokes: settling(6).map((contrastDb) => ({ contrastDb, durationS: 1.2 })) });
+    const last = session.strokes[5]!;
+    const cut = session.samples.subarray(0, Math.round((last.startS + 0.35) * 48000));
+    const r = analyzeRecording(cut, { sampleRate: 48000, options: { leadInMs: 2000 } });
+    expect(r.strokes).toHaveLength(6);
+    expect(r.strokes[5]!.flags).toEqual(["end-not-heard"]);
+    expect(r.strokes.slice(0, 5).every((s) => s.flags.length === 0)).toBe(true);
+    expect(r.verdict.judgedStrokes).toBe(5);
+  });
+});
+
 describe("recordings with nothing to judge answer with a warning and no verdict", () => {
   it("bay noise only", () => {
     const s = synthesizeSession({ sampleRate: 48000, seed: 20, roomNoiseDbfs: -40, rumble: { levelDbfs: -30 }, humHz: 60, humDbfs: -35, strokes: [], leadInS: 8 });

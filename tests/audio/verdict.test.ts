@@ -11,7 +11,7 @@ describe("flagged strokes are left out of the verdict, and counted", () => {
     const contrasts = decayingContrasts(24, 10, 0.3, 3);
     const strokes = contrasts.map((contrastDb, i) => ({ contrastDb, index: i + 1, flags: [] as string[] }));
     // A wildly wrong contrast on each flagged stroke: were it judged, the seat could not settle.
-    const flaggedAt = [2, 6, 9, 12, 14];
+    const flaggedAt = [2, 6, 9, 12, 14, 16];
     flaggedAt.forEach((k, j) => {
       strokes[k] = { contrastDb: 25, index: k + 1, flags: [STROKE_FLAGS[j % STROKE_FLAGS.length]] };
     });
@@ -19,7 +19,7 @@ describe("flagged strokes are left out of the verdict, and counted", () => {
     const v = judgeSeat(strokes);
     expect(v.judgedStrokes).toBe(24 - flaggedAt.length);
     expect(v.leftOutStrokes).toBe(flaggedAt.length);
-    expect(v.leftOutByFlag).toEqual({ clipping: 1, "too-quiet": 1, speech: 2, impulsive: 1, "start-not-heard": 1 });
+    expect(v.leftOutByFlag).toEqual({ clipping: 1, "too-quiet": 1, speech: 2, impulsive: 1, "start-not-heard": 1, "end-not-heard": 1 });
     const clean = judgeSeat(strokes.filter((s) => s.flags.length === 0).map(({ contrastDb }) => ({ contrastDb })));
     expect(clean.state).toBe("settled");
     expect(v.state).toBe(clean.state);

@@ -35,7 +35,7 @@ describe("strokeInputSchema", () => {
     expect(firstPath(stroke({ flags: ["clipping", "too-quiet", "clipping"] }))).toEqual(["flags"]);
     expect(firstPath(stroke({ flags: ["talking"] }))).toEqual(["flags.0"]);
     // Every reason the engine gives is accepted, together.
-    expect(strokeInputSchema.safeParse({ ...strokeInputs([3])[0], flags: ["clipping", "too-quiet", "speech", "impulsive", "start-not-heard"] }).success).toBe(true);
+    expect(strokeInputSchema.safeParse({ ...strokeInputs([3])[0], flags: ["clipping", "too-quiet", "speech", "impulsive", "start-not-heard", "end-not-heard"] }).success).toBe(true);
   });
 
   it("limits a batch to between 1 and 500 strokes", () => {
