@@ -335,7 +335,7 @@ describe("a calibration made entirely over a stroke", () => {
 
 describe("listening stopped in the middle of a stroke", () => {
   it("the cut stroke keeps its figures but is left out: its body was never heard", () => {
-    const session = synthesizeSession({ sampleRate: 48000, seed: 16, strokes: settling(6).map((contrastDb) => ({ contrastDb, durationS: 1.2 })) });
+    const session = synthesizeSession({ sampleRate: 48000, seed: 16, leadInS: 3, strokes: settling(6).map((contrastDb) => ({ contrastDb, durationS: 1.2 })) });
     const last = session.strokes[5]!;
     const cut = session.samples.subarray(0, Math.round((last.startS + 0.35) * 48000));
     const r = analyzeRecording(cut, { sampleRate: 48000, options: { leadInMs: 2000 } });
