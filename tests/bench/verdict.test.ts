@@ -224,6 +224,27 @@ describe("the server's verdict", () => {
     expect(after.seatState).toBe("lapping");
   });
 
+  it.each(["speech", "impulsive", "start-not-heard", "end-not-heard", "clipping"] as const)(
+    "strokes flagged %s are left out of the server's verdict too, and counted",
+    async (flag) => {
+      const seat = await findSeat(db(), "MHW-0141", { speech: "4I1", impulsive: "4I2", "start-not-heard": "4E1", "end-not-heard": "4E2", clipping: "2E2" }[flag]);
+      const session = await open(seat, "coarse");
+      const loud = strokeInputs([6, 5, 4.5, 4, 3.8, 3.6], 1);
+      const doubted = strokeInputs([0.2, 0.2, 0.2, 0.2], 7).map((s) => ({ ...s, flags: [flag] }));
+      const res = await send(session, [...loud, ...doubted]);
+      expect(res.strokeCount).toBe(10);
+      expect(res.verdict.judgedStrokes).toBe(6);
+      expect(res.verdict.leftOutStrokes).toBe(4);
+      expect(res.verdict.leftOutByFlag).toEqual({ [flag]: 4 });
+      expect(res.verdict.state).toBe("fading");
+      // The seat read gives the same verdict from the stored strokes.
+      const read = await seatRoute.GET(new Request(`http://localhost/api/seats/${seat}`), { params: Promise.resolve({ seatId: seat }) });
+      const report = (await read.json()) as { stages: { coarse: { verdict: SeatVerdict; strokes: Array<{ flags: string[] }> } } };
+      expect(report.stages.coarse.verdict.leftOutStrokes).toBe(4);
+      expect(report.stages.coarse.strokes.filter((st) => st.flags.includes(flag))).toHaveLength(4);
+    },
+  );
+
   it("strokes flagged too quiet are left out of the verdict", async () => {
     const seat = await findSeat(db(), "MHW-0141", "3E1");
     const session = await open(seat, "fine");
