@@ -386,7 +386,7 @@ export function BenchScreen({ initial, initialStage }: { initial: SeatReport; in
             {verdict.state === "fading"
               ? verdict.strokesRemaining !== null
                 ? `about ${verdict.strokesRemaining} more stroke${verdict.strokesRemaining === 1 ? "" : "s"}`
-                : "still fading — keep lapping"
+                : "keep lapping — no steady forecast yet"
               : verdict.state === "settled"
                 ? `at stroke ${verdict.settled?.atStroke}`
                 : `settled: last ${verdict.rule.consecutive} ≤ ${verdict.rule.maxContrastDb} dB and flat`}
