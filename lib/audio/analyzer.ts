@@ -368,17 +368,34 @@ function liveResult(live: LiveAnalyzer, rejected: RejectedSound[], durationS: nu
   const low = o.minNoiseFloorDbfs;
   // A recording too short to finish its calibration has no floors: the lowest stand in.
   const floors = live.noiseFloors ?? { levelDbfs: low, grindDbfs: low, voiceDbfs: low };
+  return resultOf(sr, o, { durationS, floors, source, strokes, rejected, clippedAnywhere, disturbed: live.calibrationDisturbed });
+}
+
+/** The result of an analysis from what it found, verdict and warnings derived. */
+function resultOf(
+  sr: number,
+  o: AnalysisOptions,
+  found: {
+    durationS: number;
+    floors: NoiseFloors;
+    source: NoiseFloorSource;
+    strokes: Stroke[];
+    rejected: RejectedSound[];
+    clippedAnywhere: boolean;
+    disturbed: boolean;
+  },
+): AnalysisResult {
   return {
     sampleRate: sr,
-    durationS,
-    noiseFloorDbfs: floors.levelDbfs,
-    noiseFloors: floors,
-    noiseFloorSource: source,
+    durationS: found.durationS,
+    noiseFloorDbfs: found.floors.levelDbfs,
+    noiseFloors: found.floors,
+    noiseFloorSource: found.source,
     highBandHz: highBandHz(sr, o),
-    strokes,
-    rejected,
-    verdict: judgeSeat(strokes, o),
-    warnings: recordingWarnings(strokes, rejected, clippedAnywhere, sr, o, live.calibrationDisturbed),
+    strokes: found.strokes,
+    rejected: found.rejected,
+    verdict: judgeSeat(found.strokes, o),
+    warnings: recordingWarnings(found.strokes, found.rejected, found.clippedAnywhere, sr, o, found.disturbed),
   };
 }
 
@@ -429,18 +446,7 @@ export function analyzeRecording(samples: Float32Array, input: AnalyzeRecordingI
   if (last) take(last);
   let clippedAnywhere = false;
   for (let h = 0; h < clipped.length; h++) if (clipped[h]) clippedAnywhere = true;
-  return {
-    sampleRate: sr,
-    durationS: samples.length / sr,
-    noiseFloorDbfs: floors.levelDbfs,
-    noiseFloors: floors,
-    noiseFloorSource: source,
-    highBandHz: highBandHz(sr, o),
-    strokes,
-    rejected,
-    verdict: judgeSeat(strokes, o),
-    warnings: recordingWarnings(strokes, rejected, clippedAnywhere, sr, o),
-  };
+  return resultOf(sr, o, { durationS: samples.length / sr, floors, source, strokes, rejected, clippedAnywhere, disturbed: false });
 }
 
 /**

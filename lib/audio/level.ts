@@ -31,28 +31,24 @@ export interface Biquad {
   a2: number;
 }
 
-export function butterworthHighPass(cutoffHz: number, sampleRateHz: number): Biquad {
+/**
+ * Second-order Butterworth sections (R. Bristow-Johnson's Audio EQ Cookbook,
+ * Q = 1/√2): the high- and low-pass share their poles; their zeros differ.
+ */
+function butterworth(kind: "high" | "low", cutoffHz: number, sampleRateHz: number): Biquad {
   if (!(cutoffHz > 0 && cutoffHz < sampleRateHz / 2)) {
-    throw new RangeError(`high-pass cutoff must lie between 0 and ${sampleRateHz / 2} Hz, got ${cutoffHz}`);
+    throw new RangeError(`${kind}-pass cutoff must lie between 0 and ${sampleRateHz / 2} Hz, got ${cutoffHz}`);
   }
   const w0 = (2 * Math.PI * cutoffHz) / sampleRateHz;
   const cos = Math.cos(w0);
   const alpha = Math.sin(w0) / (2 * Math.SQRT1_2);
   const a0 = 1 + alpha;
-  return { b0: (1 + cos) / 2 / a0, b1: -(1 + cos) / a0, b2: (1 + cos) / 2 / a0, a1: (-2 * cos) / a0, a2: (1 - alpha) / a0 };
+  const edge = kind === "high" ? (1 + cos) / 2 / a0 : (1 - cos) / 2 / a0;
+  return { b0: edge, b1: kind === "high" ? -2 * edge : 2 * edge, b2: edge, a1: (-2 * cos) / a0, a2: (1 - alpha) / a0 };
 }
 
-/** The matching second-order Butterworth low-pass (same cookbook, Q = 1/√2). */
-export function butterworthLowPass(cutoffHz: number, sampleRateHz: number): Biquad {
-  if (!(cutoffHz > 0 && cutoffHz < sampleRateHz / 2)) {
-    throw new RangeError(`low-pass cutoff must lie between 0 and ${sampleRateHz / 2} Hz, got ${cutoffHz}`);
-  }
-  const w0 = (2 * Math.PI * cutoffHz) / sampleRateHz;
-  const cos = Math.cos(w0);
-  const alpha = Math.sin(w0) / (2 * Math.SQRT1_2);
-  const a0 = 1 + alpha;
-  return { b0: (1 - cos) / 2 / a0, b1: (1 - cos) / a0, b2: (1 - cos) / 2 / a0, a1: (-2 * cos) / a0, a2: (1 - alpha) / a0 };
-}
+export const butterworthHighPass = (cutoffHz: number, sampleRateHz: number) => butterworth("high", cutoffHz, sampleRateHz);
+export const butterworthLowPass = (cutoffHz: number, sampleRateHz: number) => butterworth("low", cutoffHz, sampleRateHz);
 
 /** Run a biquad over samples in place (direct form I, from rest). */
 export function filterInPlace(samples: Float32Array | Float64Array, f: Biquad): void {
