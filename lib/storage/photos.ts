@@ -4,11 +4,12 @@
 import { randomUUID } from "node:crypto";
 import { and, asc, eq } from "drizzle-orm";
 import type { Db } from "@/db/client";
-import { heads, jobs, seatPhotos, seats, users, type Seat } from "@/db/schema";
+import { heads, jobs, seatPhotos, seats, users, type Job, type Seat } from "@/db/schema";
 import { recordAudit } from "@/lib/audit";
 import type { Actor } from "@/lib/auth/guard";
 import { assertCanWorkOn } from "@/lib/auth/job-access";
 import { BadRequestError, ConflictError, NotFoundError, PayloadTooLargeError, UnsupportedMediaTypeError } from "@/lib/errors";
+import { holdJob, signedOffSeats } from "@/lib/jobs/hold";
 import { isClosed } from "@/lib/jobs/lifecycle";
 import { blobStore, TooLargeError } from "./index";
 import { peekStream, sniff } from "./sniff";
@@ -40,12 +41,16 @@ async function loadSeat(db: Db, shopId: string, seatId: string) {
   return row;
 }
 
+function assertPhotoAllowed(seat: Pick<Seat, "state">, job: Pick<Job, "status" | "number">): void {
+  if (seat.state === "approved") throw new ConflictError("This seat is signed off. A supervisor must reopen it before photos are added.");
+  if (isClosed(job.status)) throw new ConflictError(signedOffSeats(job));
+}
+
 /** Checks, stores and records one photo of the seat. */
 export async function addSeatPhoto(db: Db, actor: Actor, seatId: string, body: ReadableStream<Uint8Array> | null): Promise<SeatPhoto> {
   const { seat, job } = await loadSeat(db, actor.shopId, seatId);
   assertCanWorkOn(actor, job);
-  if (seat.state === "approved") throw new ConflictError("This seat is signed off. A supervisor must reopen it before photos are added.");
-  if (isClosed(job.status)) throw new ConflictError(`Job ${job.number} is signed off; its seats are read-only.`);
+  assertPhotoAllowed(seat, job);
 
   const peeked = body ? await peekStream(body) : null;
   if (!peeked) throw new BadRequestError("The photo is empty.");
@@ -71,6 +76,10 @@ export async function addSeatPhoto(db: Db, actor: Actor, seatId: string, body: R
   }
   try {
     const row = await db.transaction(async (tx) => {
+      // Checked again with the job held against sign-off: the seat and job as they are now.
+      const now = await holdJob(tx, job.id);
+      const [seatNow] = await tx.select().from(seats).where(eq(seats.id, seatId)).limit(1);
+      assertPhotoAllowed(seatNow ?? seat, now);
       const [inserted] = await tx.insert(seatPhotos).values({ id, seatId, key, type: kind.type, bytes, takenById: actor.id }).returning();
       await recordAudit(tx, {
         actorId: actor.id,

@@ -1,4 +1,5 @@
 // The rules one session recording has to meet, shared by the single upload and the chunked one.
+import { randomUUID } from "node:crypto";
 import type { Db } from "@/db/client";
 import type { Actor } from "@/lib/auth/guard";
 import { attachRecording, getSessionForUpload } from "@/lib/bench/service";
@@ -37,8 +38,12 @@ export async function sniffRecording(
   return { sniffed, stream: peeked.stream };
 }
 
-/** Storage key of a session's recording; the extension follows the sniffed kind. */
-export const recordingKey = (sessionId: string, s: Sniffed) => `recordings/${sessionId}.${s.ext}`;
+/**
+ * Storage key of one upload of a session's recording; the extension follows the sniffed kind.
+ * Every upload has a key of its own, so two at once never write over each other, and an upload
+ * refused at the last moment (the seat was signed off meanwhile) never touches the kept one.
+ */
+export const recordingKey = (sessionId: string, s: Sniffed) => `recordings/${sessionId}-${randomUUID()}.${s.ext}`;
 
 /**
  * Sniffs, stores and attaches a session's recording, replacing an earlier one. Checked before
@@ -63,9 +68,15 @@ export async function storeRecording(
     throw err;
   }
   const recording = { key, type: accepted.sniffed.type, bytes };
-  await attachRecording(db, actor, sessionId, recording);
-  // A WebM upload replacing a WAV lands under another key; the old one would be kept for nothing.
-  const previous = ctx.session.recordingKey;
+  let previous: string | null;
+  try {
+    previous = await attachRecording(db, actor, sessionId, recording);
+  } catch (err) {
+    // No row points at these bytes, so they must not stay in storage.
+    await store.delete(key).catch(() => {});
+    throw err;
+  }
+  // The recording replaced is no longer pointed at by anything.
   if (previous && previous !== key) await store.delete(previous).catch(() => {});
   return recording;
 }
