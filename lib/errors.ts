@@ -101,6 +101,35 @@ export function fieldErrorsOf(error: ZodError): Record<string, string[]> {
   return out;
 }
 
+/** PostgreSQL's SQLSTATE of an error, or of the error it wraps (drizzle wraps the driver's). */
+function sqlState(err: unknown): string | null {
+  for (let e: unknown = err, depth = 0; e && typeof e === "object" && depth < 4; e = (e as { cause?: unknown }).cause, depth++) {
+    const code = (e as { code?: unknown }).code;
+    if (typeof code === "string" && /^[0-9A-Z]{5}$/.test(code)) return code;
+  }
+  return null;
+}
+
+/**
+ * A refusal by the database that says something about the request or the moment, not a fault of
+ * the server: the same row written twice at once, two writers waiting for each other, a value a
+ * column cannot hold. Checks before the database should catch the last kind; this keeps any that
+ * slip through from being answered as a server error.
+ */
+export function databaseRefusal(err: unknown): AppError | null {
+  const code = sqlState(err);
+  if (!code) return null;
+  if (code === "23505") return new ConflictError("Someone saved the same thing at the same moment. Reload and check before saving again.");
+  if (code === "40001" || code === "40P01" || code === "55P03") {
+    return new DatabaseStoppingError("The database was busy with the same records; nothing was changed. Send it again.");
+  }
+  // Class 22: data exceptions (a number, date or text a column cannot hold); 23: other integrity rules.
+  if (code.startsWith("22") || code === "23502" || code === "23503" || code === "23514") {
+    return new BadRequestError("A value is outside what can be stored. Check the figures and dates and send it again.");
+  }
+  return null;
+}
+
 /** The JSON body every API error shares. */
 export interface ApiErrorBody {
   error: string;
@@ -113,6 +142,8 @@ export function errorAnswer(err: unknown): { status: number; body: ApiErrorBody 
   if (err instanceof ZodError) {
     return { status: 400, body: { error: "bad_request", message: "Some values are not valid.", fieldErrors: fieldErrorsOf(err) } };
   }
+  const refusal = err instanceof AppError ? null : databaseRefusal(err);
+  if (refusal) return errorAnswer(refusal);
   if (err instanceof AppError) {
     const body: ApiErrorBody = { error: codeFor(err.status), message: err.message };
     if (err instanceof BadRequestError && Object.keys(err.fieldErrors).length) {
