@@ -54,8 +54,10 @@ export async function saveStrokes(db: Db, actor: Actor, sessionId: string, input
  * belongs to its own save and leaves the others alone. If the database refuses the batch as a
  * whole, each save is run on its own, so that one bad save cannot fail the rest.
  */
-export async function saveStrokeBatch(db: Db, batch: StrokeSave[]): Promise<StrokeSaveOutcome[]> {
-  if (batch.length === 0) return [];
+export async function saveStrokeBatch(db: Db, given: StrokeSave[]): Promise<StrokeSaveOutcome[]> {
+  if (given.length === 0) return [];
+  // Ids are matched against the database's answers as text, which are in lower case.
+  const batch = given.map((s) => ({ ...s, userId: s.userId.toLowerCase(), sessionId: s.sessionId.toLowerCase() }));
   try {
     const statements = statementsFor(db);
     return await db.transaction((tx) => writeBatch(tx as unknown as Db, batch, statements));
