@@ -5,9 +5,10 @@ import CredentialsProvider from "next-auth/providers/credentials";
 import { getDb } from "@/db/client";
 import { serverEnv } from "@/lib/env";
 import { signInSchema } from "@/lib/validations/auth";
-import { checkCredentials, lockedMessage } from "./credentials";
+import { checkCredentials } from "./credentials";
 import { authSecret } from "./secret";
-import { AddressThrottle, clientAddress, throttledMessage } from "./throttle";
+import { signInRefusal } from "./sign-in-errors";
+import { AddressThrottle, clientAddress } from "./throttle";
 
 const g = globalThis as unknown as { __grindfadeSignInThrottle?: AddressThrottle };
 function throttle(): AddressThrottle {
@@ -32,11 +33,10 @@ export const authOptions: NextAuthOptions = {
       async authorize(raw, req) {
         const address = clientAddress(req?.headers);
         const wait = throttle().waitMinutes(address);
-        if (wait > 0) throw new Error(throttledMessage(wait));
+        // Refusals are codes: the sign-in page turns them into sentences (lib/auth/sign-in-errors.ts).
+        if (wait > 0) throw new Error(signInRefusal.throttled(wait));
         const parsed = signInSchema.safeParse(raw ?? {});
-        if (!parsed.success) {
-          throw new Error(parsed.error.issues[0]?.message ?? "Enter your e-mail and password.");
-        }
+        if (!parsed.success) throw new Error(signInRefusal.badInput);
         const env = serverEnv();
         const result = await checkCredentials(await getDb(), parsed.data.email, parsed.data.password, {
           maxFailures: env.GRINDFADE_SIGNIN_MAX_FAILURES,
@@ -46,8 +46,8 @@ export const authOptions: NextAuthOptions = {
           return { id: result.user.id, name: result.user.name, email: result.user.email, role: result.user.role };
         }
         throttle().recordFailure(address);
-        if (result.reason === "locked") throw new Error(lockedMessage(result.retryInMinutes));
-        throw new Error("Wrong e-mail or password.");
+        if (result.reason === "locked") throw new Error(signInRefusal.locked(result.retryInMinutes));
+        throw new Error(signInRefusal.invalid);
       },
     }),
   ],

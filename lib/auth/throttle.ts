@@ -56,9 +56,4 @@ export function clientAddress(headers: Record<string, string | string[] | undefi
   return parts[parts.length - 1] ?? "unknown";
 }
 
-export function throttledMessage(minutes: number): string {
-  return (
-    `Too many wrong sign-ins from this device: wait ${minutes} minute${minutes === 1 ? "" : "s"} ` +
-    "before trying again, or ask an admin to reset the password."
-  );
-}
+export { throttledMessage } from "./sign-in-errors";
