@@ -7,6 +7,12 @@ const nextConfig: NextConfig = {
   // No X-Powered-By header.
   poweredByHeader: false,
   typedRoutes: false,
+  experimental: {
+    // proxy.ts makes Next.js buffer each request body, and past this size it passes on only the
+    // first part, with a warning in the log. Above the largest upload taken (a 64 MB recording),
+    // so an upload over its limit still reaches the route whole enough to be refused with 413.
+    proxyClientMaxBodySize: "65mb",
+  },
   // `npm test` type-checks the whole project once (next typegen && tsc); the build need not repeat it.
   typescript: { ignoreBuildErrors: true },
   // The content security policy is set per response in proxy.ts (it carries a nonce).

@@ -12,6 +12,7 @@ import { BadRequestError, ConflictError, NotFoundError, PayloadTooLargeError, Un
 import { holdJob, signedOffSeats } from "@/lib/jobs/hold";
 import { isClosed } from "@/lib/jobs/lifecycle";
 import { blobStore, TooLargeError } from "./index";
+import { assertIntact, digesting, type DeclaredBody } from "./intact";
 import { peekStream, sniff } from "./sniff";
 
 /** A phone camera's JPEG is 2–6 MB; 10 MB leaves room for a large PNG without taking anything. */
@@ -47,7 +48,13 @@ function assertPhotoAllowed(seat: Pick<Seat, "state">, job: Pick<Job, "status" |
 }
 
 /** Checks, stores and records one photo of the seat. */
-export async function addSeatPhoto(db: Db, actor: Actor, seatId: string, body: ReadableStream<Uint8Array> | null): Promise<SeatPhoto> {
+export async function addSeatPhoto(
+  db: Db,
+  actor: Actor,
+  seatId: string,
+  body: ReadableStream<Uint8Array> | null,
+  declared: DeclaredBody = { bytes: null, sha256: null },
+): Promise<SeatPhoto> {
   const { seat, job } = await loadSeat(db, actor.shopId, seatId);
   assertCanWorkOn(actor, job);
   assertPhotoAllowed(seat, job);
@@ -68,13 +75,15 @@ export async function addSeatPhoto(db: Db, actor: Actor, seatId: string, body: R
   const key = `photos/${seatId}/${id}.${kind.ext}`;
   const store = blobStore();
   let bytes: number;
+  const read = digesting(peeked.stream);
   try {
-    ({ bytes } = await store.put(key, peeked.stream, { maxBytes: MAX_PHOTO_BYTES }));
+    ({ bytes } = await store.put(key, read.stream, { maxBytes: MAX_PHOTO_BYTES }));
   } catch (err) {
     if (err instanceof TooLargeError) throw tooLargePhoto();
     throw err;
   }
   try {
+    assertIntact(declared, { bytes, sha256: read.sha256() }, "photo");
     const row = await db.transaction(async (tx) => {
       // Checked again with the job held against sign-off: the seat and job as they are now.
       const now = await holdJob(tx, job.id);

@@ -5,6 +5,7 @@ import type { Actor } from "@/lib/auth/guard";
 import { attachRecording, getSessionForUpload } from "@/lib/bench/service";
 import { BadRequestError, PayloadTooLargeError, UnsupportedMediaTypeError } from "@/lib/errors";
 import { blobStore, TooLargeError } from "./index";
+import { assertIntact, digesting, type DeclaredBody } from "./intact";
 import { peekStream, sniff, type Sniffed } from "./sniff";
 
 /** 60 minutes of Opus at 64 kbit/s is about 29 MB; anything much larger is not a bench recording. */
@@ -54,6 +55,7 @@ export async function storeRecording(
   actor: Actor,
   sessionId: string,
   body: ReadableStream<Uint8Array> | null,
+  declared: DeclaredBody = { bytes: null, sha256: null },
 ): Promise<{ key: string; type: string; bytes: number }> {
   const ctx = await getSessionForUpload(db, actor, sessionId);
   const accepted = body ? await sniffRecording(body) : null;
@@ -61,8 +63,9 @@ export async function storeRecording(
   const key = recordingKey(sessionId, accepted.sniffed);
   const store = blobStore();
   let bytes: number;
+  const read = digesting(accepted.stream);
   try {
-    ({ bytes } = await store.put(key, accepted.stream, { maxBytes: MAX_RECORDING_BYTES }));
+    ({ bytes } = await store.put(key, read.stream, { maxBytes: MAX_RECORDING_BYTES }));
   } catch (err) {
     if (err instanceof TooLargeError) throw tooLargeRecording();
     throw err;
@@ -70,6 +73,7 @@ export async function storeRecording(
   const recording = { key, type: accepted.sniffed.type, bytes };
   let previous: string | null;
   try {
+    assertIntact(declared, { bytes, sha256: read.sha256() }, "recording");
     previous = await attachRecording(db, actor, sessionId, recording);
   } catch (err) {
     // No row points at these bytes, so they must not stay in storage.
