@@ -32,7 +32,19 @@ async function main(): Promise<void> {
   // Only now: next/server, which the stroke path uses, needs what Next.js sets up as it prepares.
   const { answerStrokeSave, strokeSaveTarget } = await import("@/lib/server/stroke-save");
 
+  const { COMMON_HEADERS, API_POLICY } = await import("@/lib/security/headers");
+  const { isServedMethod, METHOD_REFUSAL, SERVED_METHODS } = await import("@/lib/security/request-gate");
+
   const server = http.createServer((req, res) => {
+    // Next.js cannot even read a TRACE request (a 500); nothing of ours answers these methods.
+    if (!isServedMethod(req.method)) {
+      req.resume();
+      const body = JSON.stringify(METHOD_REFUSAL);
+      for (const [key, value] of Object.entries(COMMON_HEADERS)) res.setHeader(key, value);
+      res.writeHead(405, { "Content-Type": "application/json", "Content-Security-Policy": API_POLICY, Allow: SERVED_METHODS.join(", "), "Content-Length": Buffer.byteLength(body) });
+      res.end(body);
+      return;
+    }
     const sessionId = strokeSaveTarget(req.method, req.url);
     if (sessionId === null) {
       void handle(req, res);
