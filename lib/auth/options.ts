@@ -8,7 +8,7 @@ import { signInSchema } from "@/lib/validations/auth";
 import { checkCredentials } from "./credentials";
 import { authSecret } from "./secret";
 import { signInRefusal } from "./sign-in-errors";
-import { AddressThrottle, clientAddress } from "./throttle";
+import { AddressThrottle, requestAddress } from "./throttle";
 
 const g = globalThis as unknown as { __grindfadeSignInThrottle?: AddressThrottle };
 function throttle(): AddressThrottle {
@@ -31,7 +31,7 @@ export const authOptions: NextAuthOptions = {
         password: { label: "Password", type: "password" },
       },
       async authorize(raw, req) {
-        const address = clientAddress(req?.headers);
+        const address = requestAddress(req?.headers, serverEnv().GRINDFADE_TRUSTED_PROXIES);
         const wait = throttle().waitMinutes(address);
         // Refusals are codes: the sign-in page turns them into sentences (lib/auth/sign-in-errors.ts).
         if (wait > 0) throw new Error(signInRefusal.throttled(wait));
@@ -43,7 +43,7 @@ export const authOptions: NextAuthOptions = {
           lockMinutes: env.GRINDFADE_SIGNIN_LOCK_MINUTES,
         });
         if (result.ok) {
-          return { id: result.user.id, name: result.user.name, email: result.user.email, role: result.user.role };
+          return { id: result.user.id, name: result.user.name, email: result.user.email, role: result.user.role, sessionVersion: result.user.sessionVersion };
         }
         throttle().recordFailure(address);
         if (result.reason === "locked") throw new Error(signInRefusal.locked(result.retryInMinutes));
@@ -56,12 +56,13 @@ export const authOptions: NextAuthOptions = {
       if (user) {
         token.uid = user.id;
         token.role = user.role;
+        token.sv = user.sessionVersion ?? 0;
       }
       return token;
     },
     async session({ session, token }) {
       if (token.uid && token.role) {
-        session.user = { ...session.user, id: token.uid, role: token.role };
+        session.user = { ...session.user, id: token.uid, role: token.role, sv: token.sv ?? 0 };
       }
       return session;
     },

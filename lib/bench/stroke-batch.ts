@@ -31,6 +31,8 @@ export interface StrokeSaveResult {
 /** One stroke save: who signed in (their id, from the session token), which session, what strokes. */
 export interface StrokeSave {
   userId: string;
+  /** The session token's version; the save is refused as signed out when the account's has moved on. Undefined: not checked. */
+  sessionVersion?: number;
   sessionId: string;
   strokes: StrokeInput[];
 }
@@ -177,7 +179,7 @@ async function writeBatch(tx: Db, batch: StrokeSave[], statements: Statements): 
   statements.begin(tx);
   const userIds = [...new Set(batch.map((s) => s.userId))];
   const sessionIds = [...new Set(batch.map((s) => s.sessionId))];
-  type Person = Actor & { active: boolean };
+  type Person = Actor & { active: boolean; sessionVersion: number };
   // Both go out together (lib/bench/statements.ts).
   const [peopleRows, contextRows] = (await statements.run(tx, [
     { statement: PEOPLE, values: { userIds } },
@@ -200,7 +202,7 @@ async function writeBatch(tx: Db, batch: StrokeSave[], statements: Statements): 
   const accepted: Array<{ save: StrokeSave; at: number; actor: Actor; ctx: Context }> = [];
   batch.forEach((save, at) => {
     try {
-      const actor = authorize(actorFromRow(personById.get(save.userId)), "jobs:work");
+      const actor = authorize(actorFromRow(personById.get(save.userId), save.sessionVersion), "jobs:work");
       const ctx = contextBySession.get(save.sessionId);
       if (!ctx || ctx.job.shopId !== actor.shopId) throw new NotFoundError(SESSION_NOT_FOUND);
       assertCanWorkOn(actor, ctx.job);
