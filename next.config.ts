@@ -3,7 +3,7 @@ import { COMMON_HEADERS } from "./lib/security/headers";
 
 const nextConfig: NextConfig = {
   // PGlite ships WebAssembly and data files that must be loaded from node_modules at run time.
-  serverExternalPackages: ["@electric-sql/pglite", "pg"],
+  serverExternalPackages: ["@electric-sql/pglite", "pg", "pino"],
   // No X-Powered-By header.
   poweredByHeader: false,
   typedRoutes: false,

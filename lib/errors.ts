@@ -2,6 +2,7 @@
 // at the bench: they say what happened and what to do, never a stack.
 import { NextResponse } from "next/server";
 import { ZodError } from "zod";
+import { currentRequestId, log } from "@/lib/log";
 
 // Every error carries the kinds it is (its class and those above it) under a process-wide symbol,
 // and `instanceof` reads them: the production server's own bundle, Next.js's bundle and the
@@ -135,15 +136,35 @@ export interface ApiErrorBody {
   error: string;
   message: string;
   fieldErrors?: Record<string, string[]>;
+  /** On a server error: the id its log line carries. */
+  requestId?: string;
 }
 
 /** The status and JSON body an error is answered with (errorResponse, and the production server's own stroke path). */
-export function errorAnswer(err: unknown): { status: number; body: ApiErrorBody } {
+/**
+ * The status and JSON body an error is answered with (errorResponse, and the production server's
+ * own stroke path). A refusal is logged as one line without a stack; a server error logs its
+ * stack once, with the request id that its answer also carries.
+ */
+export function errorAnswer(err: unknown, requestId: string | undefined = currentRequestId()): { status: number; body: ApiErrorBody } {
+  const answer = answerFor(err);
+  if (answer.status >= 500 && answer.body.error === "internal") {
+    const id = requestId ?? "none";
+    log.error({ requestId: id, err }, "server error");
+    answer.body.requestId = id;
+    answer.body.message = `Something went wrong on the server. Try again in a moment; if it keeps happening, give an admin this code: ${id}.`;
+  } else {
+    log.info({ requestId, status: answer.status, error: answer.body.error }, answer.body.message);
+  }
+  return answer;
+}
+
+function answerFor(err: unknown): { status: number; body: ApiErrorBody } {
   if (err instanceof ZodError) {
     return { status: 400, body: { error: "bad_request", message: "Some values are not valid.", fieldErrors: fieldErrorsOf(err) } };
   }
   const refusal = err instanceof AppError ? null : databaseRefusal(err);
-  if (refusal) return errorAnswer(refusal);
+  if (refusal) return answerFor(refusal);
   if (err instanceof AppError) {
     const body: ApiErrorBody = { error: codeFor(err.status), message: err.message };
     if (err instanceof BadRequestError && Object.keys(err.fieldErrors).length) {
@@ -151,12 +172,11 @@ export function errorAnswer(err: unknown): { status: number; body: ApiErrorBody 
     }
     return { status: err.status, body };
   }
-  console.error(err);
   return { status: 500, body: { error: "internal", message: "Something went wrong on the server. Try again in a moment." } };
 }
 
-export function errorResponse(err: unknown): NextResponse<ApiErrorBody> {
-  const { status, body } = errorAnswer(err);
+export function errorResponse(err: unknown, requestId?: string): NextResponse<ApiErrorBody> {
+  const { status, body } = errorAnswer(err, requestId ?? currentRequestId());
   return NextResponse.json(body, { status });
 }
 

@@ -1,6 +1,7 @@
 // The shape every server action returns to its form.
 import { ZodError } from "zod";
 import { AppError, BadRequestError, databaseRefusal, fieldErrorsOf } from "@/lib/errors";
+import { currentRequestId, log } from "@/lib/log";
 
 export interface ActionState {
   ok: boolean;
@@ -18,6 +19,11 @@ export function actionFailure(err: unknown): ActionState {
   if (refusal) return { ok: false, message: refusal.message, fieldErrors: {} };
   if (err instanceof BadRequestError) return { ok: false, message: err.message, fieldErrors: err.fieldErrors };
   if (err instanceof AppError) return { ok: false, message: err.message, fieldErrors: {} };
-  console.error(err);
-  return { ok: false, message: "The change could not be saved. Nothing was changed; try again.", fieldErrors: {} };
+  const requestId = currentRequestId();
+  log.error({ requestId, err }, "server error in an action");
+  return {
+    ok: false,
+    message: `The change could not be saved. Nothing was changed; try again.${requestId ? ` If it keeps happening, give an admin this code: ${requestId}.` : ""}`,
+    fieldErrors: {},
+  };
 }
