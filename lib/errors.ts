@@ -2,7 +2,7 @@
 // at the bench: they say what happened and what to do, never a stack.
 import { NextResponse } from "next/server";
 import { ZodError } from "zod";
-import { currentRequestId, log } from "@/lib/log";
+
 
 // Every error carries the kinds it is (its class and those above it) under a process-wide symbol,
 // and `instanceof` reads them: the production server's own bundle, Next.js's bundle and the
@@ -102,6 +102,30 @@ export function fieldErrorsOf(error: ZodError): Record<string, string[]> {
   return out;
 }
 
+// The server's logger (lib/log.ts, pino) registers itself here when it loads; this module is also
+// in the browser's bundle (through the actions' shared state), which must not pull in pino or
+// node:async_hooks. Until then, or in the browser, lines go to the console as JSON.
+interface LogSink {
+  error(fields: object, message: string): void;
+  info(fields: object, message: string): void;
+}
+const SINK = Symbol.for("grindfade.log.sink");
+const CONTEXT = Symbol.for("grindfade.log.requestContext");
+type GlobalWithLog = typeof globalThis & { [SINK]?: LogSink; [CONTEXT]?: { getStore(): { requestId: string } | undefined } };
+const consoleSink: LogSink = {
+  error: (fields, message) => console.error(JSON.stringify({ level: "error", msg: message, ...fields, err: String((fields as { err?: unknown }).err) })),
+  info: () => {},
+};
+const logSink = (): LogSink => (globalThis as GlobalWithLog)[SINK] ?? consoleSink;
+
+/** The id of the request being answered (lib/log.ts's request context), when there is one. */
+export const currentRequestId = (): string | undefined => (globalThis as GlobalWithLog)[CONTEXT]?.getStore()?.requestId;
+
+/** Logs a server error with its stack, once, under the request's id. */
+export function logServerError(err: unknown, requestId: string | undefined, message = "server error"): void {
+  logSink().error({ requestId, err }, message);
+}
+
 /** PostgreSQL's SQLSTATE of an error, or of the error it wraps (drizzle wraps the driver's). */
 function sqlState(err: unknown): string | null {
   for (let e: unknown = err, depth = 0; e && typeof e === "object" && depth < 4; e = (e as { cause?: unknown }).cause, depth++) {
@@ -150,11 +174,11 @@ export function errorAnswer(err: unknown, requestId: string | undefined = curren
   const answer = answerFor(err);
   if (answer.status >= 500 && answer.body.error === "internal") {
     const id = requestId ?? "none";
-    log.error({ requestId: id, err }, "server error");
+    logServerError(err, id);
     answer.body.requestId = id;
     answer.body.message = `Something went wrong on the server. Try again in a moment; if it keeps happening, give an admin this code: ${id}.`;
   } else {
-    log.info({ requestId, status: answer.status, error: answer.body.error }, answer.body.message);
+    logSink().info({ requestId, status: answer.status, error: answer.body.error }, answer.body.message);
   }
   return answer;
 }

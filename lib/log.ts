@@ -29,6 +29,8 @@ export function makeLogger(level: string, destination?: pino.DestinationStream):
 }
 
 export const log = makeLogger(process.env.GRINDFADE_LOG_LEVEL ?? (process.env.NODE_ENV === "test" ? "silent" : "info"));
+// lib/errors.ts logs through whichever logger registered itself (it must stay free of pino for the browser).
+(globalThis as typeof globalThis & { [k: symbol]: unknown })[Symbol.for("grindfade.log.sink")] = log;
 
 export const newRequestId = (): string => randomUUID();
 
@@ -39,6 +41,4 @@ export function requestIdFrom(value: string | string[] | null | undefined): stri
 }
 
 /** The id of the request being answered, when there is one. */
-export function currentRequestId(): string | undefined {
-  return requestContext.getStore()?.requestId;
-}
+export { currentRequestId } from "@/lib/errors";

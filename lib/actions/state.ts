@@ -1,7 +1,6 @@
 // The shape every server action returns to its form.
 import { ZodError } from "zod";
-import { AppError, BadRequestError, databaseRefusal, fieldErrorsOf } from "@/lib/errors";
-import { currentRequestId, log } from "@/lib/log";
+import { AppError, BadRequestError, currentRequestId, databaseRefusal, fieldErrorsOf, logServerError } from "@/lib/errors";
 
 export interface ActionState {
   ok: boolean;
@@ -20,7 +19,7 @@ export function actionFailure(err: unknown): ActionState {
   if (err instanceof BadRequestError) return { ok: false, message: err.message, fieldErrors: err.fieldErrors };
   if (err instanceof AppError) return { ok: false, message: err.message, fieldErrors: {} };
   const requestId = currentRequestId();
-  log.error({ requestId, err }, "server error in an action");
+  logServerError(err, requestId, "server error in an action");
   return {
     ok: false,
     message: `The change could not be saved. Nothing was changed; try again.${requestId ? ` If it keeps happening, give an admin this code: ${requestId}.` : ""}`,
