@@ -17,6 +17,17 @@ function isUniqueViolation(err: unknown): boolean {
   return e?.code === "23505" || e?.cause?.code === "23505";
 }
 
+type Tx = Parameters<Parameters<Awaited<ReturnType<typeof getDb>>["transaction"]>[0]>[0];
+
+/** The shop keeps at least one active admin besides `personId`. */
+async function assertAnotherAdmin(tx: Tx, shopId: string, personId: string): Promise<void> {
+  const [others] = await tx
+    .select({ n: sql<number>`count(*)::int` })
+    .from(users)
+    .where(and(eq(users.shopId, shopId), eq(users.role, "admin"), ne(users.id, personId), eq(users.active, true)));
+  if ((others?.n ?? 0) === 0) throw new ConflictError("The shop needs at least one active admin.");
+}
+
 export async function createUser(input: unknown): Promise<ActionState> {
   try {
     const actor = await requireActor("users:manage");
@@ -94,13 +105,7 @@ export async function changeRole(_prev: ActionState, formData: FormData): Promis
         .for("update");
       if (!before) throw new NotFoundError("That person is not in your shop.");
       if (before.role === data.role) return;
-      if (before.role === "admin") {
-        const [others] = await tx
-          .select({ n: sql<number>`count(*)::int` })
-          .from(users)
-          .where(and(eq(users.shopId, actor.shopId), eq(users.role, "admin"), ne(users.id, data.id), eq(users.active, true)));
-        if ((others?.n ?? 0) === 0) throw new ConflictError("The shop needs at least one admin.");
-      }
+      if (before.role === "admin") await assertAnotherAdmin(tx, actor.shopId, data.id);
       await tx.update(users).set({ role: data.role, updatedAt: new Date() }).where(eq(users.id, data.id));
       await recordAudit(tx, {
         actorId: actor.id,
@@ -136,13 +141,7 @@ export async function setActive(_prev: ActionState, formData: FormData): Promise
         .for("update");
       if (!before) throw new NotFoundError("That person is not in your shop.");
       if (before.active === data.active) return false;
-      if (!data.active && before.role === "admin") {
-        const [others] = await tx
-          .select({ n: sql<number>`count(*)::int` })
-          .from(users)
-          .where(and(eq(users.shopId, actor.shopId), eq(users.role, "admin"), ne(users.id, data.id), eq(users.active, true)));
-        if ((others?.n ?? 0) === 0) throw new ConflictError("The shop needs at least one active admin.");
-      }
+      if (!data.active && before.role === "admin") await assertAnotherAdmin(tx, actor.shopId, data.id);
       await tx
         .update(users)
         .set({ active: data.active, sessionVersion: sql`${users.sessionVersion} + 1`, updatedAt: new Date() })

@@ -4,6 +4,7 @@
 // connection) or changed is refused, and nothing of it is kept.
 import { createHash } from "node:crypto";
 import { BadRequestError } from "@/lib/errors";
+import { TooLargeError, type BlobStore } from "./index";
 
 export interface DeclaredBody {
   bytes: number | null;
@@ -59,4 +60,36 @@ export function assertIntact(declared: DeclaredBody, stored: { bytes: number; sh
   if (declared.sha256 !== null && declared.sha256 !== stored.sha256) {
     throw new BadRequestError(`The ${what} arrived changed (its SHA-256 does not match Content-Digest); nothing was kept. Send it again.`);
   }
+}
+
+/** Nothing declared: the body is taken as it arrives (a caller inside the server). */
+export const NOTHING_DECLARED: DeclaredBody = { bytes: null, sha256: null };
+
+/**
+ * Stores the body under `key`, no more than `maxBytes` (else `tooLarge()`), and checks it against
+ * what was declared; a body that is not whole is deleted again and refused. Answers its length.
+ */
+export async function storeWhole(
+  store: BlobStore,
+  key: string,
+  body: ReadableStream<Uint8Array>,
+  limit: { maxBytes: number; tooLarge: () => Error },
+  declared: DeclaredBody,
+  what: string,
+): Promise<number> {
+  const read = digesting(body);
+  let bytes: number;
+  try {
+    ({ bytes } = await store.put(key, read.stream, { maxBytes: limit.maxBytes }));
+  } catch (err) {
+    if (err instanceof TooLargeError) throw limit.tooLarge();
+    throw err;
+  }
+  try {
+    assertIntact(declared, { bytes, sha256: read.sha256() }, what);
+  } catch (err) {
+    await store.delete(key).catch(() => {});
+    throw err;
+  }
+  return bytes;
 }

@@ -11,8 +11,8 @@ import { assertCanWorkOn } from "@/lib/auth/job-access";
 import { BadRequestError, ConflictError, NotFoundError, PayloadTooLargeError, UnsupportedMediaTypeError } from "@/lib/errors";
 import { holdJob, signedOffSeats } from "@/lib/jobs/hold";
 import { isClosed } from "@/lib/jobs/lifecycle";
-import { blobStore, TooLargeError } from "./index";
-import { assertIntact, digesting, type DeclaredBody } from "./intact";
+import { blobStore } from "./index";
+import { NOTHING_DECLARED, storeWhole, type DeclaredBody } from "./intact";
 import { peekStream, sniff } from "./sniff";
 
 /** A phone camera's JPEG is 2–6 MB; 10 MB leaves room for a large PNG without taking anything. */
@@ -53,7 +53,7 @@ export async function addSeatPhoto(
   actor: Actor,
   seatId: string,
   body: ReadableStream<Uint8Array> | null,
-  declared: DeclaredBody = { bytes: null, sha256: null },
+  declared: DeclaredBody = NOTHING_DECLARED,
 ): Promise<SeatPhoto> {
   const { seat, job } = await loadSeat(db, actor.shopId, seatId);
   assertCanWorkOn(actor, job);
@@ -74,16 +74,8 @@ export async function addSeatPhoto(
   const id = randomUUID();
   const key = `photos/${seatId}/${id}.${kind.ext}`;
   const store = blobStore();
-  let bytes: number;
-  const read = digesting(peeked.stream);
+  const bytes = await storeWhole(store, key, peeked.stream, { maxBytes: MAX_PHOTO_BYTES, tooLarge: tooLargePhoto }, declared, "photo");
   try {
-    ({ bytes } = await store.put(key, read.stream, { maxBytes: MAX_PHOTO_BYTES }));
-  } catch (err) {
-    if (err instanceof TooLargeError) throw tooLargePhoto();
-    throw err;
-  }
-  try {
-    assertIntact(declared, { bytes, sha256: read.sha256() }, "photo");
     const row = await db.transaction(async (tx) => {
       // Checked again with the job held against sign-off: the seat and job as they are now.
       const now = await holdJob(tx, job.id);

@@ -4,8 +4,8 @@ import type { Db } from "@/db/client";
 import type { Actor } from "@/lib/auth/guard";
 import { attachRecording, getSessionForUpload } from "@/lib/bench/service";
 import { BadRequestError, PayloadTooLargeError, UnsupportedMediaTypeError } from "@/lib/errors";
-import { blobStore, TooLargeError } from "./index";
-import { assertIntact, digesting, type DeclaredBody } from "./intact";
+import { blobStore } from "./index";
+import { NOTHING_DECLARED, storeWhole, type DeclaredBody } from "./intact";
 import { peekStream, sniff, type Sniffed } from "./sniff";
 
 /** 60 minutes of Opus at 64 kbit/s is about 29 MB; anything much larger is not a bench recording. */
@@ -55,25 +55,17 @@ export async function storeRecording(
   actor: Actor,
   sessionId: string,
   body: ReadableStream<Uint8Array> | null,
-  declared: DeclaredBody = { bytes: null, sha256: null },
+  declared: DeclaredBody = NOTHING_DECLARED,
 ): Promise<{ key: string; type: string; bytes: number }> {
   const ctx = await getSessionForUpload(db, actor, sessionId);
   const accepted = body ? await sniffRecording(body) : null;
   if (!accepted) throw new BadRequestError("The recording is empty.");
   const key = recordingKey(sessionId, accepted.sniffed);
   const store = blobStore();
-  let bytes: number;
-  const read = digesting(accepted.stream);
-  try {
-    ({ bytes } = await store.put(key, read.stream, { maxBytes: MAX_RECORDING_BYTES }));
-  } catch (err) {
-    if (err instanceof TooLargeError) throw tooLargeRecording();
-    throw err;
-  }
+  const bytes = await storeWhole(store, key, accepted.stream, { maxBytes: MAX_RECORDING_BYTES, tooLarge: tooLargeRecording }, declared, "recording");
   const recording = { key, type: accepted.sniffed.type, bytes };
   let previous: string | null;
   try {
-    assertIntact(declared, { bytes, sha256: read.sha256() }, "recording");
     previous = await attachRecording(db, actor, sessionId, recording);
   } catch (err) {
     // No row points at these bytes, so they must not stay in storage.

@@ -77,14 +77,10 @@ describe.each(backends)("writes racing a sign-off on %s", (_name, open) => {
     await bench.startSession(db, rhea, last, { sessionId, stage: "fine", deviceId });
     await bench.saveStrokes(db, rhea, sessionId, strokeInputs([8, 6, 4, 2, 1, 1, 1, 1]));
     await storeRecording(db, rhea, sessionId, streamOf(wavFile));
-    const sheetId = await sheets.setUpTorqueSheet(db, rhea, {
-      camshaftId: head.camshafts[0]!.id,
-      capCount: 5,
-      boltsPerCap: 2,
-      order: "centre-out",
-      finalNm: 10,
-      stageFractions: [0.3, 0.6, 1],
-    });
+    // Five caps of two bolts, centre outwards, 10 N·m in three stages (invented demo figures).
+    const torqueSetup = (camshaftId: string) =>
+      sheets.setUpTorqueSheet(db, rhea, { camshaftId, capCount: 5, boltsPerCap: 2, order: "centre-out", finalNm: 10, stageFractions: [0.3, 0.6, 1] });
+    const sheetId = await torqueSetup(head.camshafts[0]!.id);
     await db.update(seats).set({ state: "approved" }).where(sql`${seats.headId} = ${head.headId} and ${seats.id} <> ${last}`);
     expect((await seatRow(db, last))!.state).toBe("settled");
     await setJob(db, "MHW-0141", { status: "awaiting_audit" });
@@ -104,15 +100,7 @@ describe.each(backends)("writes racing a sign-off on %s", (_name, open) => {
           enteredUnit: "mm",
           spec: null,
         }),
-      () =>
-        sheets.setUpTorqueSheet(db, rhea, {
-          camshaftId: head.camshafts[1]!.id,
-          capCount: 5,
-          boltsPerCap: 2,
-          order: "centre-out",
-          finalNm: 10,
-          stageFractions: [0.3, 0.6, 1],
-        }),
+      () => torqueSetup(head.camshafts[1]!.id),
       () => sheets.tickBolt(db, rhea, { sheetId, stage: 1, boltId: order[tick++ % order.length]! }),
       () => sheets.recordMeasurement(db, rhea, { jobId: head.jobId, kind: "deck_flatness", seatId: null, valueSi: 0.03, enteredUnit: "mm", method: null, spec: null, note: null }),
       () => sheets.recordMeasurement(db, rhea, { jobId: head.jobId, kind: "seat_contact_width", seatId: last, valueSi: 1.4, enteredUnit: "mm", method: null, spec: null, note: null }),
