@@ -89,6 +89,19 @@ describe("requests the framework cannot take", () => {
   });
 });
 
+describe("request ids", () => {
+  it("gives every answer an id of its own, whatever the client sent", async () => {
+    const ids = new Set<string>();
+    for (const path of ["/api/health", "/sign-in", "/api/jobs"]) {
+      const res = await fetch(`${baseURL}${path}`, { headers: { "x-request-id": "forged-id" } });
+      const id = res.headers.get("x-request-id") ?? "";
+      expect(id, path).toMatch(/^[0-9a-f-]{36}$/);
+      ids.add(id);
+    }
+    expect(ids.size).toBe(3);
+  });
+});
+
 describe("uploads over HTTP", () => {
   it("keeps a 20 MB recording whole, and refuses one over 64 MB sent without a length with 413", async () => {
     const sessionId = randomUUID();

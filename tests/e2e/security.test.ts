@@ -179,5 +179,11 @@ describe("sign-in throttle per address", () => {
     const { location, setCookies } = await httpSignIn(server.baseURL, supervisor.email, supervisor.password);
     expect(decodeURIComponent(location)).toMatch(/error=throttled:15\b/);
     expect(setCookies.some((c) => /session-token=/.test(c))).toBe(false);
+    // Claiming another address in a header changes nothing: the connection's is the one counted.
+    for (const spoof of [{ "x-forwarded-for": "203.0.113.77" }, { "x-real-ip": "203.0.113.78" }, { "x-grindfade-client-address": "guess 203.0.113.79" }] as Array<Record<string, string>>) {
+      const again = await httpSignIn(server.baseURL, supervisor.email, supervisor.password, spoof);
+      expect(decodeURIComponent(again.location), JSON.stringify(spoof)).toMatch(/error=throttled:\d+\b/);
+      expect(again.signedIn).toBe(false);
+    }
   });
 });
