@@ -89,17 +89,7 @@ describe.each(backends)("writes racing a sign-off on %s", (_name, open) => {
     let tick = 0;
     let strokeIndex = 100;
     const writes: Array<() => Promise<unknown>> = [
-      () =>
-        sheets.recordJournalClearance(db, rhea, {
-          journalId: head.camshafts[0]!.journalIds[0]!,
-          clearanceMm: 0.05,
-          method: "strip",
-          stripId: "narrow",
-          boreMm: null,
-          journalMm: null,
-          enteredUnit: "mm",
-          spec: null,
-        }),
+      () => sheets.recordJournalClearance(db, rhea, h.stripClearance(head.camshafts[0]!.journalIds[0]!, 0.05)),
       () => torqueSetup(head.camshafts[1]!.id),
       () => sheets.tickBolt(db, rhea, { sheetId, stage: 1, boltId: order[tick++ % order.length]! }),
       () => sheets.recordMeasurement(db, rhea, { jobId: head.jobId, kind: "deck_flatness", seatId: null, valueSi: 0.03, enteredUnit: "mm", method: null, spec: null, note: null }),
