@@ -3,10 +3,16 @@ import { COMMON_HEADERS } from "./lib/security/headers";
 
 const nextConfig: NextConfig = {
   // PGlite ships WebAssembly and data files that must be loaded from node_modules at run time.
-  serverExternalPackages: ["@electric-sql/pglite", "pg"],
+  serverExternalPackages: ["@electric-sql/pglite", "pg", "pino"],
   // No X-Powered-By header.
   poweredByHeader: false,
   typedRoutes: false,
+  experimental: {
+    // proxy.ts makes Next.js buffer each request body, and past this size it passes on only the
+    // first part, with a warning in the log. Above the largest upload taken (a 64 MB recording),
+    // so an upload over its limit still reaches the route whole enough to be refused with 413.
+    proxyClientMaxBodySize: "65mb",
+  },
   // `npm test` type-checks the whole project once (next typegen && tsc); the build need not repeat it.
   typescript: { ignoreBuildErrors: true },
   // The content security policy is set per response in proxy.ts (it carries a nonce).

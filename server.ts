@@ -32,21 +32,49 @@ async function main(): Promise<void> {
   // Only now: next/server, which the stroke path uses, needs what Next.js sets up as it prepares.
   const { answerStrokeSave, strokeSaveTarget } = await import("@/lib/server/stroke-save");
 
+  const { COMMON_HEADERS, API_POLICY } = await import("@/lib/security/headers");
+  const { isServedMethod, METHOD_REFUSAL, SERVED_METHODS } = await import("@/lib/security/request-gate");
+  const { ADDRESS_HEADER, clientAddress, stampAddress } = await import("@/lib/auth/throttle");
+  const { serverEnv } = await import("@/lib/env");
+  const { randomBytes } = await import("node:crypto");
+  const { log, newRequestId, REQUEST_ID_HEADER, requestContext } = await import("@/lib/log");
+  const trustedProxies = serverEnv().GRINDFADE_TRUSTED_PROXIES;
+
   const server = http.createServer((req, res) => {
+    // Every request gets an id of ours (a client's is not taken), sent back and on every log line.
+    const requestId = newRequestId();
+    req.headers[REQUEST_ID_HEADER] = requestId;
+    res.setHeader("X-Request-Id", requestId);
+    requestContext.run({ requestId }, () => serve(req, res));
+  });
+
+  function serve(req: http.IncomingMessage, res: http.ServerResponse): void {
+    // Next.js cannot even read a TRACE request (a 500); nothing of ours answers these methods.
+    if (!isServedMethod(req.method)) {
+      req.resume();
+      const body = JSON.stringify(METHOD_REFUSAL);
+      for (const [key, value] of Object.entries(COMMON_HEADERS)) res.setHeader(key, value);
+      res.writeHead(405, { "Content-Type": "application/json", "Content-Security-Policy": API_POLICY, Allow: SERVED_METHODS.join(", "), "Content-Length": Buffer.byteLength(body) });
+      res.end(body);
+      return;
+    }
+    // Who is asking, for the sign-in throttle: from the connection, or the trusted proxies' header.
+    req.headers[ADDRESS_HEADER] = stampAddress(clientAddress(req.headers, req.socket.remoteAddress, trustedProxies), () => randomBytes(18).toString("base64url"));
     const sessionId = strokeSaveTarget(req.method, req.url);
     if (sessionId === null) {
       void handle(req, res);
       return;
     }
     answerStrokeSave(req, res, sessionId).catch((err: unknown) => {
-      console.error(err);
+      const requestId = String(req.headers[REQUEST_ID_HEADER]);
+      log.error({ requestId, err }, "server error");
       if (!res.headersSent) {
         res.statusCode = 500;
         res.setHeader("Content-Type", "application/json");
       }
-      res.end(JSON.stringify({ error: "internal", message: "Something went wrong on the server. Try again in a moment." }));
+      res.end(JSON.stringify({ error: "internal", message: `Something went wrong on the server. Try again in a moment; if it keeps happening, give an admin this code: ${requestId}.`, requestId }));
     });
-  });
+  }
   server.keepAliveTimeout = 5_000;
 
   // As `next start` does: stop taking connections, then exit. The database's own handler

@@ -89,6 +89,9 @@ export const users = pgTable(
     active: boolean("active").notNull().default(true),
     failedSignIns: integer("failed_sign_ins").notNull().default(0),
     lockedUntil: timestamp("locked_until", { withTimezone: true }),
+    // Carried in every session token; a password reset, a deactivation or "end all sessions" moves
+    // it on, and a token with an older one no longer signs anyone in.
+    sessionVersion: integer("session_version").notNull().default(0),
     ...timestamps,
   },
   (t) => [

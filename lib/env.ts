@@ -17,6 +17,9 @@ const schema = z.object({
   GRINDFADE_SIGNIN_LOCK_MINUTES: z.coerce.number().int().min(1).max(24 * 60).default(15),
   // Wrong passwords from one network address (any accounts) before it must wait.
   GRINDFADE_SIGNIN_MAX_PER_ADDRESS: z.coerce.number().int().min(1).max(10_000).default(30),
+  // Reverse proxies in front of the app that append to X-Forwarded-For; 0 (none) takes a client's
+  // address from the connection and ignores the header, which anyone can write.
+  GRINDFADE_TRUSTED_PROXIES: z.coerce.number().int().min(0).max(10).default(0),
   // The built database thread (db/pglite-thread.ts) that PGlite runs on; the production server
   // sets it. "off", or unset, keeps PGlite on the app's own thread, as `next dev` and tests do.
   GRINDFADE_DB_THREAD: z.string().trim().min(1).optional(),

@@ -112,7 +112,8 @@ export function isUuid(value: unknown): value is string {
   return uuid.safeParse(value).success;
 }
 
+/** A path's id, in the lower case the database answers ids in. */
 export function parseId(value: string, what: string): string {
   if (!isUuid(value)) throw new BadRequestError(`${what} must be a UUID.`);
-  return value;
+  return value.toLowerCase();
 }

@@ -4,6 +4,8 @@
 // database.
 import { getDatabase, getDb } from "@/db/client";
 import { startMailWorker } from "@/lib/mail/worker";
+// The structured logger registers itself for lib/errors.ts on load.
+import "@/lib/log";
 
 export async function startServer(): Promise<void> {
   try {

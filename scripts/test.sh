@@ -45,7 +45,8 @@ if [ -z "${TEST_DATABASE_URL:-}" ]; then
   PGPORT="$(node -e 'const s=require("net").createServer();s.listen(0,"127.0.0.1",()=>{console.log(s.address().port);s.close()})')"
   if [ "$(id -u)" = "0" ]; then chown postgres "$PGROOT"; fi
   as_pg "'$PGBIN/initdb' -D '$PGROOT/data' -U postgres --auth=trust -E UTF8 >/dev/null"
-  as_pg "'$PGBIN/pg_ctl' -D '$PGROOT/data' -l '$PGROOT/log' -w -o \"-p $PGPORT -k $PGROOT -c listen_addresses=127.0.0.1\" start >/dev/null"
+  # Commit timestamps let the sign-off race test (tests/review/sign-off-race.test.ts) read the order writes landed in.
+  as_pg "'$PGBIN/pg_ctl' -D '$PGROOT/data' -l '$PGROOT/log' -w -o \"-p $PGPORT -k $PGROOT -c listen_addresses=127.0.0.1 -c track_commit_timestamp=on\" start >/dev/null"
   export TEST_DATABASE_URL="postgres://postgres@127.0.0.1:$PGPORT/postgres"
   echo "test: throwaway PostgreSQL $("$PGBIN/postgres" --version | awk '{print $3}') on port $PGPORT"
 fi

@@ -3,11 +3,12 @@ import type { UserRole } from "@/db/schema";
 
 declare module "next-auth" {
   interface Session {
-    user: { id: string; role: UserRole } & DefaultSession["user"];
+    user: { id: string; role: UserRole; sv?: number } & DefaultSession["user"];
   }
   interface User {
     id: string;
     role: UserRole;
+    sessionVersion?: number;
   }
 }
 
@@ -15,5 +16,7 @@ declare module "next-auth/jwt" {
   interface JWT {
     uid?: string;
     role?: UserRole;
+    /** The account's session version when this token was made (users.session_version). */
+    sv?: number;
   }
 }

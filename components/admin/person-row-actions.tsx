@@ -2,7 +2,7 @@
 
 import { useActionState } from "react";
 import type { PersonRow } from "@/db/queries/users";
-import { changeRole, resetPassword } from "@/lib/actions/users";
+import { changeRole, endSessions, resetPassword, setActive } from "@/lib/actions/users";
 import { initialActionState } from "@/lib/actions/state";
 import { ROLE_LABELS } from "@/lib/auth/roles";
 import { ROLES } from "@/lib/validations/auth";
@@ -12,6 +12,8 @@ const field = "min-h-12 rounded-lg border border-stone-400 bg-white px-3 text-ba
 export function PersonRowActions({ person, isSelf }: { person: PersonRow; isSelf: boolean }) {
   const [roleState, roleAction, rolePending] = useActionState(changeRole, initialActionState);
   const [pwState, pwAction, pwPending] = useActionState(resetPassword, initialActionState);
+  const [activeState, activeAction, activePending] = useActionState(setActive, initialActionState);
+  const [endState, endAction, endPending] = useActionState(endSessions, initialActionState);
   return (
     <div className="mt-3 grid grid-cols-1 gap-3 md:grid-cols-2">
       <form action={roleAction} className="flex flex-wrap items-end gap-2">
@@ -54,6 +56,24 @@ export function PersonRowActions({ person, isSelf }: { person: PersonRow; isSelf
           {pwState.fieldErrors.password?.[0] ?? pwState.message}
         </p>
       </form>
+      <div className="flex flex-wrap items-end gap-2 md:col-span-2">
+        <form action={activeAction}>
+          <input type="hidden" name="id" value={person.id} />
+          <input type="hidden" name="active" value={person.active ? "false" : "true"} />
+          <button type="submit" disabled={activePending || isSelf} className="min-h-12 rounded-lg border border-stone-500 px-4 font-semibold disabled:opacity-50">
+            {activePending ? "Saving…" : person.active ? "Deactivate" : "Let them sign in again"}
+          </button>
+        </form>
+        <form action={endAction}>
+          <input type="hidden" name="id" value={person.id} />
+          <button type="submit" disabled={endPending} className="min-h-12 rounded-lg border border-stone-500 px-4 font-semibold disabled:opacity-50">
+            {endPending ? "Saving…" : "Sign out everywhere"}
+          </button>
+        </form>
+        <p aria-live="polite" className={`w-full text-sm ${(activeState.message ? activeState : endState).ok ? "text-emerald-800" : "text-rose-700"}`}>
+          {activeState.message ?? endState.message}
+        </p>
+      </div>
     </div>
   );
 }

@@ -5,6 +5,7 @@ import { signIn } from "next-auth/react";
 import { useRouter } from "next/navigation";
 import { useState } from "react";
 import { useForm } from "react-hook-form";
+import { signInErrorMessage } from "@/lib/auth/sign-in-errors";
 import { signInSchema, type SignInInput } from "@/lib/validations/auth";
 
 export function SignInForm({ callbackUrl, initialError }: { callbackUrl: string; initialError: string | null }) {
@@ -21,9 +22,7 @@ export function SignInForm({ callbackUrl, initialError }: { callbackUrl: string;
     try {
       const result = await signIn("credentials", { ...values, redirect: false });
       if (!result || result.error) {
-        setFormError(
-          !result || result.error === "CredentialsSignin" ? "Wrong e-mail or password." : result.error ?? "Sign-in failed.",
-        );
+        setFormError(signInErrorMessage(result?.error ?? "invalid"));
         return;
       }
       router.replace(callbackUrl);

@@ -90,6 +90,8 @@ export function BenchScreen({ initial, initialStage }: { initial: SeatReport; in
   const [pendingCount, setPendingCount] = useState(0);
   const [syncNote, setSyncNote] = useState<string | null>(null);
   const [refusals, setRefusals] = useState<string[]>([]);
+  // Strokes the server failed on too often: kept on this phone, shown until sent again.
+  const [setAside, setSetAside] = useState<{ strokes: number; others: number; message: string } | null>(null);
   const [speechHeard, setSpeechHeard] = useState(0);
   const [cue, setCue] = useState<"settled" | "not-settling" | null>(null);
   const [picked, setPicked] = useState<number | null>(null);
@@ -111,6 +113,12 @@ export function BenchScreen({ initial, initialStage }: { initial: SeatReport; in
       return;
     }
     setPendingCount(report.pending);
+    const aside = await outbox().setAsideOps(seatId);
+    setSetAside(
+      aside.length
+        ? { strokes: aside.filter((op) => op.kind === "stroke").length, others: aside.filter((op) => op.kind !== "stroke").length, message: aside[aside.length - 1]!.setAside! }
+        : null,
+    );
     if (report.refused.length) setRefusals((r) => [...r, ...report.refused.map((x) => x.message)]);
     // The server refused this phone's session (seat busy, signed off, not yours): stop listening
     // rather than gather strokes that will never count.
@@ -443,6 +451,23 @@ export function BenchScreen({ initial, initialStage }: { initial: SeatReport; in
           </p>
         )}
         {syncNote ? <p className="rounded-lg bg-amber-100 px-3 py-2 text-sm text-amber-900">{syncNote}</p> : null}
+        {setAside ? (
+          <div role="alert" className="flex flex-wrap items-center gap-2 rounded-lg bg-rose-100 px-3 py-2 text-sm text-rose-900" data-testid="set-aside">
+            <p className="font-semibold">
+              {setAside.strokes > 0
+                ? `${setAside.strokes} ${setAside.strokes === 1 ? "stroke" : "strokes"} could not be saved`
+                : `${setAside.others} ${setAside.others === 1 ? "item" : "items"} could not be saved`}
+              : {setAside.message} {setAside.strokes === 1 ? "It is" : "They are"} kept on this phone; show this to a supervisor.
+            </p>
+            <button
+              type="button"
+              className="min-h-10 rounded-lg border border-rose-400 bg-white px-3 font-semibold"
+              onClick={() => void outbox().retrySetAside(seatId).then(sync)}
+            >
+              Send again
+            </button>
+          </div>
+        ) : null}
         {busyRefusal ? (
           <p role="alert" className="rounded-lg bg-rose-100 px-3 py-2 text-sm font-semibold text-rose-900">
             {busyRefusal}

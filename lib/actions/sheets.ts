@@ -23,6 +23,7 @@ import {
 } from "@/lib/validations/measurements";
 import { storableText } from "@/lib/validations/text";
 import { actionFailure, type ActionState } from "./state";
+import { uuidText } from "@/lib/validations/ids";
 
 
 const text = (f: FormData, k: string) => {
@@ -36,7 +37,7 @@ function done(jobId: string, sub: string, message: string): ActionState {
   return { ok: true, message, fieldErrors: {} };
 }
 
-const jobIdSchema = z.string().uuid("Unknown job.");
+const jobIdSchema = uuidText("Unknown job.");
 const noteSchema = z.object({
   note: storableText(z.string().trim().max(300, "Keep the note under 300 characters.")).transform((v) => v || null),
 });
@@ -149,8 +150,8 @@ export async function saveMeasurement(_prev: ActionState, f: FormData): Promise<
 }
 
 const valveIdentitySchema = z.object({
-  jobId: z.string().uuid(),
-  valveId: z.string().uuid("Unknown valve."),
+  jobId: uuidText(),
+  valveId: uuidText("Unknown valve."),
   tag: storableText(z.string().trim().min(1, "Give the valve a tag.").max(20, "Keep the tag under 20 characters.")),
   partNumber: storableText(z.string().trim().max(40, "Keep the part number under 40 characters.")).transform((v) => v || null),
   serial: storableText(z.string().trim().max(40, "Keep the serial under 40 characters.")).transform((v) => v || null),
@@ -177,7 +178,7 @@ export async function saveValveIdentity(_prev: ActionState, f: FormData): Promis
   }
 }
 
-const moveSchema = z.object({ jobId: z.string().uuid(), valveId: z.string().uuid("Unknown valve."), toSeatId: z.string().uuid("Choose a seat.") });
+const moveSchema = z.object({ jobId: uuidText(), valveId: uuidText("Unknown valve."), toSeatId: uuidText("Choose a seat.") });
 
 export async function saveValveMove(_prev: ActionState, f: FormData): Promise<ActionState> {
   try {

@@ -97,7 +97,7 @@ export async function saveJobOverride(_prev: ActionState, f: FormData): Promise<
     const key = v.key as SpecKey;
     const db = await getDb();
     await db.transaction(async (tx) => {
-      const [job] = await tx.select().from(jobs).where(and(eq(jobs.id, jobId), eq(jobs.shopId, actor.shopId)));
+      const [job] = await tx.select().from(jobs).where(and(eq(jobs.id, jobId), eq(jobs.shopId, actor.shopId))).for("share");
       if (!job) throw new NotFoundError("That job does not exist in your shop.");
       if (isClosed(job.status)) throw new ConflictError(`Job ${job.number} is signed off; its figures are read-only.`);
       const values = {

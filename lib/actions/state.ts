@@ -1,6 +1,6 @@
 // The shape every server action returns to its form.
 import { ZodError } from "zod";
-import { AppError, BadRequestError, fieldErrorsOf } from "@/lib/errors";
+import { AppError, BadRequestError, currentRequestId, databaseRefusal, fieldErrorsOf, logServerError } from "@/lib/errors";
 
 export interface ActionState {
   ok: boolean;
@@ -14,8 +14,15 @@ export function actionFailure(err: unknown): ActionState {
   if (err instanceof ZodError) {
     return { ok: false, message: "Check the highlighted fields.", fieldErrors: fieldErrorsOf(err) };
   }
+  const refusal = err instanceof AppError ? null : databaseRefusal(err);
+  if (refusal) return { ok: false, message: refusal.message, fieldErrors: {} };
   if (err instanceof BadRequestError) return { ok: false, message: err.message, fieldErrors: err.fieldErrors };
   if (err instanceof AppError) return { ok: false, message: err.message, fieldErrors: {} };
-  console.error(err);
-  return { ok: false, message: "The change could not be saved. Nothing was changed; try again.", fieldErrors: {} };
+  const requestId = currentRequestId();
+  logServerError(err, requestId, "server error in an action");
+  return {
+    ok: false,
+    message: `The change could not be saved. Nothing was changed; try again.${requestId ? ` If it keeps happening, give an admin this code: ${requestId}.` : ""}`,
+    fieldErrors: {},
+  };
 }

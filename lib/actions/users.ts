@@ -9,12 +9,23 @@ import { requireActor } from "@/lib/auth/guard";
 import { recordAudit } from "@/lib/audit";
 import { BadRequestError, ConflictError, NotFoundError } from "@/lib/errors";
 import { passwordProblem } from "@/lib/validations/password-rules";
-import { changeRoleSchema, createUserSchema, resetPasswordSchema } from "@/lib/validations/users";
+import { changeRoleSchema, createUserSchema, personSchema, resetPasswordSchema, setActiveSchema } from "@/lib/validations/users";
 import { actionFailure, type ActionState } from "./state";
 
 function isUniqueViolation(err: unknown): boolean {
   const e = err as { code?: string; cause?: { code?: string } };
   return e?.code === "23505" || e?.cause?.code === "23505";
+}
+
+type Tx = Parameters<Parameters<Awaited<ReturnType<typeof getDb>>["transaction"]>[0]>[0];
+
+/** The shop keeps at least one active admin besides `personId`. */
+async function assertAnotherAdmin(tx: Tx, shopId: string, personId: string): Promise<void> {
+  const [others] = await tx
+    .select({ n: sql<number>`count(*)::int` })
+    .from(users)
+    .where(and(eq(users.shopId, shopId), eq(users.role, "admin"), ne(users.id, personId), eq(users.active, true)));
+  if ((others?.n ?? 0) === 0) throw new ConflictError("The shop needs at least one active admin.");
 }
 
 export async function createUser(input: unknown): Promise<ActionState> {
@@ -63,7 +74,8 @@ export async function resetPassword(_prev: ActionState, formData: FormData): Pro
     await db.transaction(async (tx) => {
       const [updated] = await tx
         .update(users)
-        .set({ passwordHash, failedSignIns: 0, lockedUntil: null, updatedAt: new Date() })
+        // A reset ends every session signed in with the old password.
+        .set({ passwordHash, failedSignIns: 0, lockedUntil: null, sessionVersion: sql`${users.sessionVersion} + 1`, updatedAt: new Date() })
         .where(and(eq(users.id, data.id), eq(users.shopId, actor.shopId)))
         .returning({ id: users.id });
       if (!updated) throw new NotFoundError("That person is not in your shop.");
@@ -71,7 +83,7 @@ export async function resetPassword(_prev: ActionState, formData: FormData): Pro
       await recordAudit(tx, { actorId: actor.id, action: "user.password_reset", entityType: "user", entityId: data.id });
     });
     revalidatePath("/admin/people");
-    return { ok: true, message: "Password reset; any lock on the account is cleared.", fieldErrors: {} };
+    return { ok: true, message: "Password reset; any lock on the account is cleared and every device signed in as them is signed out.", fieldErrors: {} };
   } catch (err) {
     return actionFailure(err);
   }
@@ -93,13 +105,7 @@ export async function changeRole(_prev: ActionState, formData: FormData): Promis
         .for("update");
       if (!before) throw new NotFoundError("That person is not in your shop.");
       if (before.role === data.role) return;
-      if (before.role === "admin") {
-        const [others] = await tx
-          .select({ n: sql<number>`count(*)::int` })
-          .from(users)
-          .where(and(eq(users.shopId, actor.shopId), eq(users.role, "admin"), ne(users.id, data.id), eq(users.active, true)));
-        if ((others?.n ?? 0) === 0) throw new ConflictError("The shop needs at least one admin.");
-      }
+      if (before.role === "admin") await assertAnotherAdmin(tx, actor.shopId, data.id);
       await tx.update(users).set({ role: data.role, updatedAt: new Date() }).where(eq(users.id, data.id));
       await recordAudit(tx, {
         actorId: actor.id,
@@ -112,6 +118,69 @@ export async function changeRole(_prev: ActionState, formData: FormData): Promis
     });
     revalidatePath("/admin/people");
     return { ok: true, message: "Role changed. It applies from their next page.", fieldErrors: {} };
+  } catch (err) {
+    return actionFailure(err);
+  }
+}
+
+/**
+ * Lets a person sign in again, or stops them: a deactivated account is refused on its next
+ * request on every path (its sessions end), and cannot sign in until an admin lets it again.
+ */
+export async function setActive(_prev: ActionState, formData: FormData): Promise<ActionState> {
+  try {
+    const actor = await requireActor("users:manage");
+    const data = setActiveSchema.parse({ id: formData.get("id"), active: formData.get("active") });
+    if (data.id === actor.id) throw new BadRequestError("You cannot deactivate yourself; ask another admin.");
+    const db = await getDb();
+    const changed = await db.transaction(async (tx) => {
+      const [before] = await tx
+        .select({ role: users.role, active: users.active })
+        .from(users)
+        .where(and(eq(users.id, data.id), eq(users.shopId, actor.shopId)))
+        .for("update");
+      if (!before) throw new NotFoundError("That person is not in your shop.");
+      if (before.active === data.active) return false;
+      if (!data.active && before.role === "admin") await assertAnotherAdmin(tx, actor.shopId, data.id);
+      await tx
+        .update(users)
+        .set({ active: data.active, sessionVersion: sql`${users.sessionVersion} + 1`, updatedAt: new Date() })
+        .where(eq(users.id, data.id));
+      await recordAudit(tx, {
+        actorId: actor.id,
+        action: data.active ? "user.reactivated" : "user.deactivated",
+        entityType: "user",
+        entityId: data.id,
+        before: { active: before.active },
+        after: { active: data.active },
+      });
+      return true;
+    });
+    revalidatePath("/admin/people");
+    const message = data.active ? "They can sign in again." : "Deactivated: they are signed out everywhere and cannot sign in.";
+    return { ok: true, message: changed ? message : "Nothing to change.", fieldErrors: {} };
+  } catch (err) {
+    return actionFailure(err);
+  }
+}
+
+/** Signs a person out on every device (a lost phone): their tokens stop working at the next request. */
+export async function endSessions(_prev: ActionState, formData: FormData): Promise<ActionState> {
+  try {
+    const actor = await requireActor("users:manage");
+    const data = personSchema.parse({ id: formData.get("id") });
+    const db = await getDb();
+    await db.transaction(async (tx) => {
+      const [updated] = await tx
+        .update(users)
+        .set({ sessionVersion: sql`${users.sessionVersion} + 1`, updatedAt: new Date() })
+        .where(and(eq(users.id, data.id), eq(users.shopId, actor.shopId)))
+        .returning({ id: users.id });
+      if (!updated) throw new NotFoundError("That person is not in your shop.");
+      await recordAudit(tx, { actorId: actor.id, action: "user.sessions_ended", entityType: "user", entityId: data.id });
+    });
+    revalidatePath("/admin/people");
+    return { ok: true, message: "Signed out on every device; they sign in again with their password.", fieldErrors: {} };
   } catch (err) {
     return actionFailure(err);
   }

@@ -20,11 +20,18 @@ export const actorColumns = {
   email: users.email,
   role: users.role,
   active: users.active,
+  sessionVersion: users.sessionVersion,
 };
 
-/** The person as the guard sees them, or null when the account is gone or disabled. */
-export function actorFromRow(row: (Actor & { active: boolean }) | undefined): Actor | null {
+/**
+ * The person as the guard sees them, or null when the account is gone or disabled, or when the
+ * session's token was made before the account's sessions were ended (a password reset, a
+ * deactivation, "end all sessions"): `tokenVersion` is the token's, undefined when there is none
+ * to compare (a caller inside the server).
+ */
+export function actorFromRow(row: (Actor & { active: boolean; sessionVersion: number }) | undefined, tokenVersion?: number): Actor | null {
   if (!row || !row.active) return null;
+  if (tokenVersion !== undefined && tokenVersion !== row.sessionVersion) return null;
   return { id: row.id, shopId: row.shopId, name: row.name, email: row.email, role: row.role };
 }
 

@@ -64,9 +64,4 @@ export async function checkCredentials(
   return { ok: false, reason: "invalid" };
 }
 
-export function lockedMessage(minutes: number): string {
-  return (
-    `Too many wrong passwords: this account is locked for ${minutes} more minute` +
-    `${minutes === 1 ? "" : "s"}. Wait, or ask an admin to reset the password.`
-  );
-}
+export { lockedMessage } from "./sign-in-errors";

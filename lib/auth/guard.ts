@@ -7,6 +7,8 @@ import type { NextRequest } from "next/server";
 import { getDb } from "@/db/client";
 import { users, type UserRole } from "@/db/schema";
 import { errorResponse } from "@/lib/errors";
+import { isUuid } from "@/lib/http";
+import { REQUEST_ID_HEADER, requestIdFrom } from "@/lib/log";
 import { actorColumns, actorFromRow, authorize, type Actor } from "./authorize";
 import { authOptions } from "./options";
 import type { Permission } from "./roles";
@@ -14,17 +16,18 @@ import type { Permission } from "./roles";
 export { authorize, forbiddenMessage, type Actor } from "./authorize";
 
 /** Who the session cookie says is signed in, before the users table is read. */
-export async function sessionUser(): Promise<{ id: string; role?: UserRole } | null> {
+export async function sessionUser(): Promise<{ id: string; role?: UserRole; sv: number } | null> {
   const session = await getServerSession(authOptions);
-  return session?.user?.id ? { id: session.user.id, role: session.user.role } : null;
+  // A token made before session versions counts as version 0.
+  return session?.user?.id ? { id: session.user.id, role: session.user.role, sv: session.user.sv ?? 0 } : null;
 }
 
 export async function currentActor(): Promise<Actor | null> {
-  const id = (await sessionUser())?.id;
-  if (!id) return null;
+  const user = await sessionUser();
+  if (!user || !isUuid(user.id)) return null;
   const db = await getDb();
-  const [row] = await db.select(actorColumns).from(users).where(eq(users.id, id)).limit(1);
-  return actorFromRow(row);
+  const [row] = await db.select(actorColumns).from(users).where(eq(users.id, user.id)).limit(1);
+  return actorFromRow(row, user.sv);
 }
 
 /** For server actions and server components: throws Unauthorized/Forbidden errors. */
@@ -41,7 +44,7 @@ export function guardedRoute<C>(permission: Permission, handler: RouteHandler<C>
       const actor = await requireActor(permission);
       return await handler(req, ctx, actor);
     } catch (err) {
-      return errorResponse(err);
+      return errorResponse(err, requestIdFrom(req.headers.get(REQUEST_ID_HEADER)));
     }
   };
 }

@@ -5,9 +5,10 @@ import CredentialsProvider from "next-auth/providers/credentials";
 import { getDb } from "@/db/client";
 import { serverEnv } from "@/lib/env";
 import { signInSchema } from "@/lib/validations/auth";
-import { checkCredentials, lockedMessage } from "./credentials";
+import { checkCredentials } from "./credentials";
 import { authSecret } from "./secret";
-import { AddressThrottle, clientAddress, throttledMessage } from "./throttle";
+import { signInRefusal } from "./sign-in-errors";
+import { AddressThrottle, requestAddress } from "./throttle";
 
 const g = globalThis as unknown as { __grindfadeSignInThrottle?: AddressThrottle };
 function throttle(): AddressThrottle {
@@ -30,24 +31,23 @@ export const authOptions: NextAuthOptions = {
         password: { label: "Password", type: "password" },
       },
       async authorize(raw, req) {
-        const address = clientAddress(req?.headers);
+        const address = requestAddress(req?.headers, serverEnv().GRINDFADE_TRUSTED_PROXIES);
         const wait = throttle().waitMinutes(address);
-        if (wait > 0) throw new Error(throttledMessage(wait));
+        // Refusals are codes: the sign-in page turns them into sentences (lib/auth/sign-in-errors.ts).
+        if (wait > 0) throw new Error(signInRefusal.throttled(wait));
         const parsed = signInSchema.safeParse(raw ?? {});
-        if (!parsed.success) {
-          throw new Error(parsed.error.issues[0]?.message ?? "Enter your e-mail and password.");
-        }
+        if (!parsed.success) throw new Error(signInRefusal.badInput);
         const env = serverEnv();
         const result = await checkCredentials(await getDb(), parsed.data.email, parsed.data.password, {
           maxFailures: env.GRINDFADE_SIGNIN_MAX_FAILURES,
           lockMinutes: env.GRINDFADE_SIGNIN_LOCK_MINUTES,
         });
         if (result.ok) {
-          return { id: result.user.id, name: result.user.name, email: result.user.email, role: result.user.role };
+          return { id: result.user.id, name: result.user.name, email: result.user.email, role: result.user.role, sessionVersion: result.user.sessionVersion };
         }
         throttle().recordFailure(address);
-        if (result.reason === "locked") throw new Error(lockedMessage(result.retryInMinutes));
-        throw new Error("Wrong e-mail or password.");
+        if (result.reason === "locked") throw new Error(signInRefusal.locked(result.retryInMinutes));
+        throw new Error(signInRefusal.invalid);
       },
     }),
   ],
@@ -56,12 +56,13 @@ export const authOptions: NextAuthOptions = {
       if (user) {
         token.uid = user.id;
         token.role = user.role;
+        token.sv = user.sessionVersion ?? 0;
       }
       return token;
     },
     async session({ session, token }) {
       if (token.uid && token.role) {
-        session.user = { ...session.user, id: token.uid, role: token.role };
+        session.user = { ...session.user, id: token.uid, role: token.role, sv: token.sv ?? 0 };
       }
       return session;
     },

@@ -44,21 +44,44 @@ export class AddressThrottle {
   }
 }
 
+type HeaderBag = Record<string, string | string[] | undefined> | undefined;
+
 /**
- * The address a request came from: the last X-Forwarded-For entry, which the server in front of
- * the app (Next.js itself, or a shop's reverse proxy) wrote; earlier entries are the client's own
- * claim and can be forged.
+ * The address a request came from. With no trusted proxies, the connection's own address: an
+ * X-Forwarded-For header is the client's claim (Next.js keeps one the client sent) and is not
+ * read. Behind `trustedProxies` reverse proxies that each append the address they were reached
+ * from, the entry the outermost of them wrote: that many from the right. Entries left of it are
+ * the client's own and can be forged.
  */
-export function clientAddress(headers: Record<string, string | string[] | undefined> | undefined): string {
-  const raw = headers?.["x-forwarded-for"] ?? headers?.["x-real-ip"];
-  const value = Array.isArray(raw) ? raw.join(",") : (raw ?? "");
-  const parts = value.split(",").map((p) => p.trim()).filter(Boolean);
-  return parts[parts.length - 1] ?? "unknown";
+export function clientAddress(headers: HeaderBag, socketAddress: string | undefined, trustedProxies: number): string {
+  if (trustedProxies > 0) {
+    const raw = headers?.["x-forwarded-for"];
+    const parts = (Array.isArray(raw) ? raw.join(",") : (raw ?? "")).split(",").map((p) => p.trim()).filter(Boolean);
+    if (parts.length > 0) return parts[Math.max(0, parts.length - trustedProxies)]!;
+  }
+  return socketAddress || "unknown";
 }
 
-export function throttledMessage(minutes: number): string {
-  return (
-    `Too many wrong sign-ins from this device: wait ${minutes} minute${minutes === 1 ? "" : "s"} ` +
-    "before trying again, or ask an admin to reset the password."
-  );
+// The production server (server.ts) reads each request's address from its connection and hands
+// it on in ADDRESS_HEADER, marked with a token made at start-up, which a client cannot know; a
+// header without the token (a client's, or under `next dev`, which has no such server) is ignored.
+export const ADDRESS_HEADER = "x-grindfade-client-address";
+type GlobalWithStamp = typeof globalThis & { __grindfadeAddressStamp?: string };
+
+/** The production server: the header value for an address, under this process's token. */
+export function stampAddress(address: string, newToken: () => string): string {
+  const g = globalThis as GlobalWithStamp;
+  g.__grindfadeAddressStamp ??= newToken();
+  return `${g.__grindfadeAddressStamp} ${address}`;
 }
+
+/** The address the production server stamped on the request; without a valid stamp, clientAddress without a socket. */
+export function requestAddress(headers: HeaderBag, trustedProxies: number): string {
+  const stamp = (globalThis as GlobalWithStamp).__grindfadeAddressStamp;
+  const raw = headers?.[ADDRESS_HEADER];
+  const value = Array.isArray(raw) ? raw[0] : raw;
+  if (stamp && value?.startsWith(`${stamp} `)) return value.slice(stamp.length + 1);
+  return clientAddress(headers, undefined, trustedProxies);
+}
+
+export { throttledMessage } from "./sign-in-errors";

@@ -66,12 +66,12 @@ function parseCookies(header: string | null): Map<string, string> {
 }
 
 /** Who the session cookie names: from a web Request's headers, or from Node's own request headers. */
-export async function tokenUser(headers: Headers | IncomingHttpHeaders): Promise<{ id: string; role: UserRole } | null> {
+export async function tokenUser(headers: Headers | IncomingHttpHeaders): Promise<{ id: string; role: UserRole; sv: number } | null> {
   const cookie = headers instanceof Headers ? headers.get("cookie") : (headers.cookie ?? null);
   const token = await getToken({
     req: { headers, cookies: parseCookies(cookie) } as unknown as Parameters<typeof getToken>[0]["req"],
     secret: process.env.NEXTAUTH_SECRET,
     decode,
   });
-  return token?.uid && token.role ? { id: token.uid, role: token.role } : null;
+  return token?.uid && token.role ? { id: token.uid, role: token.role, sv: typeof token.sv === "number" ? token.sv : 0 } : null;
 }

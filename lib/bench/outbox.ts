@@ -11,7 +11,19 @@ export type OutboxOp =
   | { kind: "end"; seatId: string; sessionId: string }
   | { kind: "recording"; seatId: string; sessionId: string; type: string; blob: Blob };
 
-export type StoredOp = OutboxOp & { seq: number; failed?: string };
+/**
+ * `failed`: refused by the server (a 4xx), kept with its reason and never sent again.
+ * `setAside`: the server failed on it (a 500) SERVER_FAILURE_TRIES times; kept on the phone with
+ * the last answer and not sent again until someone asks (retrySetAside), so the ops behind it go on.
+ * `serverFailures`/`retryAt`: the 500s so far and when it may be tried again (back-off).
+ */
+export type StoredOp = OutboxOp & { seq: number; failed?: string; setAside?: string; serverFailures?: number; retryAt?: number };
+
+/** 500s in a row for one op before it is set aside. */
+export const SERVER_FAILURE_TRIES = 5;
+
+/** Wait before try n + 1 after n server failures: 2, 4, 8, 16 s. */
+export const serverRetryDelayMs = (failures: number) => Math.min(30_000, 1000 * 2 ** failures);
 
 export interface PendingStroke {
   sessionId: string;
@@ -25,7 +37,7 @@ interface OutboxSchema extends DBSchema {
 
 export type SendResult =
   | { kind: "sent"; body?: unknown }
-  | { kind: "retry"; reason: string }
+  | { kind: "retry"; reason: string; status?: number; message?: string }
   | { kind: "refused"; status: number; message: string }
   | { kind: "signed-out" };
 
@@ -33,6 +45,8 @@ export interface FlushReport {
   sent: number;
   pending: number;
   refused: Array<{ op: StoredOp; message: string }>;
+  /** Set aside in this run after the server failed on them too often. */
+  setAside: Array<{ op: StoredOp; message: string }>;
   stoppedBy: "done" | "offline" | "signed-out" | "server";
   lastBody?: unknown;
 }
@@ -50,7 +64,7 @@ async function send(fetchFn: Fetch, url: string, init: RequestInit): Promise<Sen
   if (res.ok) return { kind: "sent", body };
   if (res.status === 401) return { kind: "signed-out" };
   if (res.status >= 500 || res.status === 408 || res.status === 429) {
-    return { kind: "retry", reason: `HTTP ${res.status}` };
+    return { kind: "retry", reason: `HTTP ${res.status}`, status: res.status, message: body?.message };
   }
   return { kind: "refused", status: res.status, message: body?.message ?? `Refused (HTTP ${res.status}).` };
 }
@@ -126,6 +140,20 @@ export class Outbox {
     for (const op of await db.getAll("ops")) if (op.failed) await db.delete("ops", op.seq);
   }
 
+  /** What is set aside (for a seat, or all): kept here, waiting for someone to send it again. */
+  async setAsideOps(seatId?: string): Promise<StoredOp[]> {
+    return (await this.all(seatId)).filter((op) => op.setAside !== undefined);
+  }
+
+  /** Puts what was set aside back in line, with its count of failures cleared. */
+  async retrySetAside(seatId?: string): Promise<void> {
+    const db = await this.dbp;
+    for (const op of await this.setAsideOps(seatId)) {
+      const { setAside: _gone, serverFailures: _n, retryAt: _at, ...again } = op;
+      await db.put("ops", again as StoredOp);
+    }
+  }
+
   /** Sends everything in order; concurrent calls share one run. */
   flush(): Promise<FlushReport> {
     if (this.flushing) {
@@ -144,6 +172,7 @@ export class Outbox {
               ...pass,
               sent: total.sent + pass.sent,
               refused: [...total.refused, ...pass.refused],
+              setAside: [...total.setAside, ...pass.setAside],
               lastBody: pass.lastBody ?? total.lastBody,
             }
           : pass;
@@ -158,12 +187,15 @@ export class Outbox {
   private async run(): Promise<FlushReport> {
     const db = await this.dbp;
     const stored = await db.getAll("ops");
-    const ops = stored.filter((o) => !o.failed);
-    const report: FlushReport = { sent: 0, pending: 0, refused: [], stoppedBy: "done" };
+    const ops = stored.filter((o) => !o.failed && o.setAside === undefined);
+    const report: FlushReport = { sent: 0, pending: 0, refused: [], setAside: [], stoppedBy: "done" };
     // A session refused by the server refuses everything recorded in it, in this flush or a
     // later one: its strokes, end and recording are kept, marked with the refusal, not sent.
     const blockedSessions = new Map<string, string>();
     for (const o of stored) if (o.kind === "session" && o.failed) blockedSessions.set(o.body.sessionId, o.failed);
+    // A session set aside (not yet on the server) sets aside what was recorded in it, likewise.
+    const setAsideSessions = new Map<string, string>();
+    for (const o of stored) if (o.kind === "session" && o.setAside !== undefined) setAsideSessions.set(o.body.sessionId, o.setAside);
     // After a batch is refused as malformed, its strokes go one by one so only the bad one is kept back.
     let singlyUntil = -1;
     let i = 0;
@@ -178,11 +210,24 @@ export class Outbox {
         i++;
         continue;
       }
+      const asideBy = op.kind === "session" ? undefined : setAsideSessions.get(op.sessionId);
+      if (asideBy !== undefined) {
+        await db.put("ops", { ...op, setAside: asideBy });
+        report.setAside.push({ op, message: asideBy });
+        i++;
+        continue;
+      }
+      // Backing off after a server failure on this op: wait for the next run after retryAt.
+      if (op.retryAt !== undefined && op.retryAt > Date.now()) {
+        report.stoppedBy = "server";
+        break;
+      }
       if (op.kind === "session") {
         result = await send(this.fetchFn, `/api/seats/${op.seatId}/sessions`, { method: "POST", headers: json, body: JSON.stringify(op.body) });
       } else if (op.kind === "stroke") {
         batch = [];
-        const limit = i < singlyUntil ? 1 : 200;
+        // One at a time after a refusal or failure of a batch, and for a stroke the server failed on before.
+        const limit = i < singlyUntil || op.serverFailures ? 1 : 200;
         for (let j = i; j < ops.length && batch.length < limit; j++) {
           const o = ops[j]!;
           if (o.kind !== "stroke" || o.sessionId !== op.sessionId) break;
@@ -208,13 +253,32 @@ export class Outbox {
         for (const b of batch) await db.put("ops", { ...b, failed: result.message });
         report.refused.push({ op, message: result.message });
         if (op.kind === "session") blockedSessions.set(op.body.sessionId, result.message);
+      } else if (result.kind === "retry" && result.status === 500) {
+        // The server failed on this (a 503 or a proxy's 502/504 is the server away, waited out
+        // without counting). A batch is split first, so that only the stroke it fails on waits.
+        if (op.kind === "stroke" && batch.length > 1) {
+          singlyUntil = i + batch.length;
+          continue;
+        }
+        const failures = (op.serverFailures ?? 0) + 1;
+        const message = result.message ?? "the server failed on it";
+        if (failures >= SERVER_FAILURE_TRIES) {
+          await db.put("ops", { ...op, serverFailures: failures, setAside: message, retryAt: undefined });
+          report.setAside.push({ op, message });
+          if (op.kind === "session") setAsideSessions.set(op.body.sessionId, message);
+          i += 1;
+          continue;
+        }
+        await db.put("ops", { ...op, serverFailures: failures, retryAt: Date.now() + serverRetryDelayMs(failures) });
+        report.stoppedBy = "server";
+        break;
       } else {
         report.stoppedBy = result.kind === "signed-out" ? "signed-out" : result.reason.startsWith("HTTP") ? "server" : "offline";
         break;
       }
       i += batch.length;
     }
-    report.pending = (await db.getAll("ops")).filter((o) => !o.failed).length;
+    report.pending = (await db.getAll("ops")).filter((o) => !o.failed && o.setAside === undefined).length;
     return report;
   }
 }

@@ -6,6 +6,7 @@ import { judgeSeat, type SeatVerdict } from "@/lib/audio";
 import type { Actor } from "@/lib/auth/authorize";
 import { ConflictError, ForbiddenError } from "@/lib/errors";
 import { seatCode } from "@/lib/heads/layout";
+import { signedOffSeats } from "@/lib/jobs/hold";
 import { isClosed } from "@/lib/jobs/lifecycle";
 
 /** A phone that has sent nothing for this long no longer holds its seat. */
@@ -31,7 +32,7 @@ export function assertOpenForWork(ctx: WorkTarget): void {
     );
   }
   if (isClosed(ctx.job.status)) {
-    throw new ConflictError(`Job ${ctx.job.number} is signed off; its seats are read-only.`);
+    throw new ConflictError(signedOffSeats(ctx.job));
   }
 }
 

@@ -21,6 +21,7 @@ import { assertCanWorkOn } from "@/lib/auth/job-access";
 import { recordAudit } from "@/lib/audit";
 import { ConflictError, ForbiddenError, NotFoundError } from "@/lib/errors";
 import { seatCode, seatLabel } from "@/lib/heads/layout";
+import { holdJob } from "@/lib/jobs/hold";
 import { isClosed } from "@/lib/jobs/lifecycle";
 import type { StartSessionInput } from "@/lib/validations/bench";
 import {
@@ -48,14 +49,19 @@ interface SeatContext {
 
 type Reader = Pick<Db, "select">;
 
-async function loadSeat(db: Reader, shopId: string, seatId: string): Promise<SeatContext> {
-  const [row] = await db
+/**
+ * The seat with its head and job. `lock` locks the seat and the job as a seat decision does
+ * (lib/review/service.ts), for a write that changes both and must not cross a sign-off.
+ */
+async function loadSeat(db: Reader, shopId: string, seatId: string, lock = false): Promise<SeatContext> {
+  const query = db
     .select({ seat: seats, head: heads, job: jobs })
     .from(seats)
     .innerJoin(heads, eq(heads.id, seats.headId))
     .innerJoin(jobs, eq(jobs.id, heads.jobId))
     .where(and(eq(seats.id, seatId), eq(jobs.shopId, shopId)))
     .limit(1);
+  const [row] = lock ? await query.for("no key update", { of: [seats, jobs] }) : await query;
   if (!row) throw new NotFoundError("That seat does not exist in your shop.");
   return row;
 }
@@ -249,10 +255,12 @@ export interface StartedSession {
  * is told the seat is busy.
  */
 export async function startSession(db: Db, actor: Actor, seatId: string, input: StartSessionInput): Promise<StartedSession> {
-  const ctx = await loadSeat(db, actor.shopId, seatId);
-  assertCanWorkOn(actor, ctx.job);
-  assertOpenForWork(ctx);
+  assertCanWorkOn(actor, (await loadSeat(db, actor.shopId, seatId)).job);
   return db.transaction(async (tx) => {
+    // Checked again under the lock a sign-off takes: the seat and job as they are now.
+    const ctx = await loadSeat(tx, actor.shopId, seatId, true);
+    assertCanWorkOn(actor, ctx.job);
+    assertOpenForWork(ctx);
     const [existing] = await tx.select().from(lappingSessions).where(eq(lappingSessions.id, input.sessionId)).limit(1);
     if (existing) {
       if (existing.seatId !== seatId || existing.stage !== input.stage) {
@@ -329,8 +337,9 @@ export async function startSession(db: Db, actor: Actor, seatId: string, input: 
   });
 }
 
-async function loadSession(db: Reader, shopId: string, sessionId: string) {
-  const [row] = await db
+/** The session with its seat and job; `lock` locks the session's row, for a write that replaces its recording. */
+async function loadSession(db: Reader, shopId: string, sessionId: string, lock = false) {
+  const query = db
     .select({ session: lappingSessions, seat: seats, head: heads, job: jobs, starterName: users.name })
     .from(lappingSessions)
     .innerJoin(users, eq(users.id, lappingSessions.technicianId))
@@ -339,6 +348,7 @@ async function loadSession(db: Reader, shopId: string, sessionId: string) {
     .innerJoin(jobs, eq(jobs.id, heads.jobId))
     .where(and(eq(lappingSessions.id, sessionId), eq(jobs.shopId, shopId)))
     .limit(1);
+  const [row] = lock ? await query.for("no key update", { of: [lappingSessions] }) : await query;
   if (!row) throw new NotFoundError(SESSION_NOT_FOUND);
   return row;
 }
@@ -384,15 +394,23 @@ export async function attachRecording(
   actor: Actor,
   sessionId: string,
   recording: { key: string; type: string; bytes: number },
-): Promise<void> {
-  const ctx = await loadSession(db, actor.shopId, sessionId);
-  assertCanWorkOn(actor, ctx.job);
-  assertOwnSession(actor, ctx.session, ctx.starterName);
-  assertRecordingReplaceable(ctx);
-  await db
-    .update(lappingSessions)
-    .set({ recordingKey: recording.key, recordingType: recording.type, recordingBytes: recording.bytes })
-    .where(eq(lappingSessions.id, sessionId));
+): Promise<string | null> {
+  const early = await loadSession(db, actor.shopId, sessionId);
+  assertCanWorkOn(actor, early.job);
+  return db.transaction(async (tx) => {
+    // Checked again with the job held against sign-off (lib/jobs/hold.ts): the session, seat and
+    // job as they are now.
+    await holdJob(tx, early.job.id);
+    const ctx = await loadSession(tx, actor.shopId, sessionId, true);
+    assertCanWorkOn(actor, ctx.job);
+    assertOwnSession(actor, ctx.session, ctx.starterName);
+    assertRecordingReplaceable(ctx);
+    await tx
+      .update(lappingSessions)
+      .set({ recordingKey: recording.key, recordingType: recording.type, recordingBytes: recording.bytes })
+      .where(eq(lappingSessions.id, sessionId));
+    return ctx.session.recordingKey;
+  });
 }
 
 export async function getSessionForUpload(db: Db, actor: Actor, sessionId: string) {

@@ -31,6 +31,8 @@ export interface StrokeSaveResult {
 /** One stroke save: who signed in (their id, from the session token), which session, what strokes. */
 export interface StrokeSave {
   userId: string;
+  /** The session token's version; the save is refused as signed out when the account's has moved on. Undefined: not checked. */
+  sessionVersion?: number;
   sessionId: string;
   strokes: StrokeInput[];
 }
@@ -54,8 +56,10 @@ export async function saveStrokes(db: Db, actor: Actor, sessionId: string, input
  * belongs to its own save and leaves the others alone. If the database refuses the batch as a
  * whole, each save is run on its own, so that one bad save cannot fail the rest.
  */
-export async function saveStrokeBatch(db: Db, batch: StrokeSave[]): Promise<StrokeSaveOutcome[]> {
-  if (batch.length === 0) return [];
+export async function saveStrokeBatch(db: Db, given: StrokeSave[]): Promise<StrokeSaveOutcome[]> {
+  if (given.length === 0) return [];
+  // Ids are matched against the database's answers as text, which are in lower case.
+  const batch = given.map((s) => ({ ...s, userId: s.userId.toLowerCase(), sessionId: s.sessionId.toLowerCase() }));
   try {
     const statements = statementsFor(db);
     return await db.transaction((tx) => writeBatch(tx as unknown as Db, batch, statements));
@@ -175,7 +179,7 @@ async function writeBatch(tx: Db, batch: StrokeSave[], statements: Statements): 
   statements.begin(tx);
   const userIds = [...new Set(batch.map((s) => s.userId))];
   const sessionIds = [...new Set(batch.map((s) => s.sessionId))];
-  type Person = Actor & { active: boolean };
+  type Person = Actor & { active: boolean; sessionVersion: number };
   // Both go out together (lib/bench/statements.ts).
   const [peopleRows, contextRows] = (await statements.run(tx, [
     { statement: PEOPLE, values: { userIds } },
@@ -198,7 +202,7 @@ async function writeBatch(tx: Db, batch: StrokeSave[], statements: Statements): 
   const accepted: Array<{ save: StrokeSave; at: number; actor: Actor; ctx: Context }> = [];
   batch.forEach((save, at) => {
     try {
-      const actor = authorize(actorFromRow(personById.get(save.userId)), "jobs:work");
+      const actor = authorize(actorFromRow(personById.get(save.userId), save.sessionVersion), "jobs:work");
       const ctx = contextBySession.get(save.sessionId);
       if (!ctx || ctx.job.shopId !== actor.shopId) throw new NotFoundError(SESSION_NOT_FOUND);
       assertCanWorkOn(actor, ctx.job);

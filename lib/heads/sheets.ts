@@ -19,6 +19,7 @@ import type { Actor } from "@/lib/auth/guard";
 import { assertCanWorkOn } from "@/lib/auth/job-access";
 import { recordAudit } from "@/lib/audit";
 import { BadRequestError, ConflictError, NotFoundError } from "@/lib/errors";
+import { assertSeatOpen, holdOpenJob, openSeatsNow, signedOffSheets } from "@/lib/jobs/hold";
 import { isClosed } from "@/lib/jobs/lifecycle";
 import { judgeClearance, stripCheck, type ClearanceVerdict, type StripCheck, type StripId } from "@/lib/measure/clearance";
 import { judgeRange, MEASUREMENT_KINDS, type MeasurementKind, type RangeVerdict } from "@/lib/measure/results";
@@ -38,18 +39,13 @@ import { seatCode } from "./layout";
 
 type Reader = Pick<Db, "select">;
 
+/**
+ * Refused early, before anything is worked out; each write checks again inside its transaction,
+ * under the job's hold (holdOpenJob), which is the check that counts.
+ */
 function assertEditable(actor: Actor, job: Job): void {
   assertCanWorkOn(actor, job);
-  if (isClosed(job.status)) {
-    throw new ConflictError(`Job ${job.number} is signed off: its sheets are read-only until a supervisor reopens it.`);
-  }
-}
-
-/** An approved seat is read-only, like a signed-off head, until a supervisor reopens it. */
-function assertSeatOpen(seat: { state: string; cylinder: number; kind: "intake" | "exhaust"; position: number }): void {
-  if (seat.state === "approved") {
-    throw new ConflictError(`Seat ${seatCode(seat)} is approved: it is read-only until a supervisor reopens it.`);
-  }
+  if (isClosed(job.status)) throw new ConflictError(signedOffSheets(job));
 }
 
 /**
@@ -115,6 +111,9 @@ export async function recordJournalClearance(db: Db, actor: Actor, input: Cleara
   const verdict = spec ? judgeClearance(input.clearanceMm, spec) : null;
   const strip = input.method === "strip" && input.stripId ? stripCheck(input.clearanceMm, input.stripId) : null;
   await db.transaction(async (tx) => {
+    await holdOpenJob(tx, row.job.id, signedOffSheets);
+    // The journal is locked so that two readings of it at once replace each other rather than both insert.
+    await tx.select({ id: journals.id }).from(journals).where(eq(journals.id, input.journalId)).for("no key update");
     const [before] = await tx
       .select()
       .from(measurements)
@@ -280,6 +279,9 @@ export async function setUpTorqueSheet(db: Db, actor: Actor, input: TorqueSetupI
   }
   stagesFor(finalNm, input.stageFractions);
   return db.transaction(async (tx) => {
+    await holdOpenJob(tx, row.job.id, signedOffSheets);
+    // The camshaft is locked so that two set-ups at once run one after the other (one sheet per camshaft).
+    await tx.select({ id: camshafts.id }).from(camshafts).where(eq(camshafts.id, input.camshaftId)).for("no key update");
     const [existing] = await tx.select().from(torqueSheets).where(eq(torqueSheets.camshaftId, input.camshaftId)).for("update");
     if (existing) {
       const ticked = await tx.select({ id: torqueTicks.id }).from(torqueTicks).where(eq(torqueTicks.sheetId, existing.id)).limit(1);
@@ -375,6 +377,7 @@ export async function tickBolt(db: Db, actor: Actor, input: { jobId?: string; sh
   assertEditable(actor, row.job);
   const stages = stagesFor(row.sheet.finalNm, row.sheet.stageFractions);
   return db.transaction(async (tx) => {
+    await holdOpenJob(tx, row.job.id, signedOffSheets);
     // Lock the sheet so two phones ticking at once are checked one after the other.
     await tx.select({ id: torqueSheets.id }).from(torqueSheets).where(eq(torqueSheets.id, input.sheetId)).for("update");
     const done = (await tx.select().from(torqueTicks).where(eq(torqueTicks.sheetId, input.sheetId))).map((t) => ({ stage: t.stage, boltId: t.boltId }));
@@ -443,6 +446,8 @@ export async function recordMeasurement(db: Db, actor: Actor, input: Measurement
   const specSource: "entered" | "library" | "job_override" | null = input.spec ? "entered" : library ? library.source : null;
   const verdict: RangeVerdict | null = spec && (spec.min !== null || spec.max !== null) ? judgeRange(input.valueSi, { min: spec.min ?? undefined, max: spec.max ?? undefined }) : null;
   const id = await db.transaction(async (tx) => {
+    await holdOpenJob(tx, job.id, signedOffSheets);
+    if (info.scope === "seat") await openSeatsNow(tx, [input.seatId!]);
     const [created] = await tx
       .insert(measurements)
       .values({
@@ -553,6 +558,14 @@ async function loadValveForEdit(db: Db, actor: Actor, valveId: string, jobId: st
   return row;
 }
 
+/** Holds the job (holdOpenJob) and locks the valve, answering the valve as it is now. */
+async function holdValve(tx: Reader, jobId: string, valveId: string) {
+  await holdOpenJob(tx, jobId, signedOffSheets);
+  const [valve] = await tx.select().from(valves).where(eq(valves.id, valveId)).limit(1).for("update");
+  if (!valve) throw new NotFoundError("That valve does not exist in your shop.");
+  return valve;
+}
+
 export async function updateValveIdentity(
   db: Db,
   actor: Actor,
@@ -560,6 +573,8 @@ export async function updateValveIdentity(
 ) {
   const row = await loadValveForEdit(db, actor, input.valveId, input.jobId);
   await db.transaction(async (tx) => {
+    const valve = await holdValve(tx, row.job.id, input.valveId);
+    if (valve.seatId) await openSeatsNow(tx, [valve.seatId]);
     await tx
       .update(valves)
       .set({ tag: input.tag, partNumber: input.partNumber, serial: input.serial, updatedAt: new Date() })
@@ -600,6 +615,11 @@ export async function moveValve(db: Db, actor: Actor, input: { jobId?: string; v
     });
   }
   await db.transaction(async (tx) => {
+    const valve = await holdValve(tx, row.job.id, row.valve.id);
+    await openSeatsNow(tx, valve.seatId ? [valve.seatId, target.id] : [target.id]);
+    if (valve.seatId !== row.valve.seatId || valve.lappedInSeatId !== row.valve.lappedInSeatId) {
+      throw new ConflictError(`Valve ${row.valve.tag} was moved or lapped a moment ago. Reload the sheet and try again.`);
+    }
     const [occupant] = await tx.select().from(valves).where(eq(valves.seatId, target.id)).for("update");
     if (occupant?.lappedInSeatId) {
       throw new ConflictError(`Seat ${seatCode(target)} already holds valve ${occupant.tag}, lapped into it; it cannot be swapped out.`);

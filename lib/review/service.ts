@@ -62,8 +62,12 @@ function requiredText(value: string, field: "comment" | "reason", min: number): 
 type Tx = Parameters<Parameters<Db["transaction"]>[0]>[0];
 
 /**
- * Locks the seat with its head and job, so a seat decision and a head decision on the same job
- * run one after the other: the head is never signed off while a seat is changing under it.
+ * Locks the seat with its job, so a seat decision and a head decision on the same job run one
+ * after the other: the head is never signed off while a seat is changing under it. Every write on
+ * the head holds the job's row for share while it checks and writes (lib/jobs/hold.ts), so a
+ * decision waits for the writes under way and the writes after it see it. "No key update" rather
+ * than "update": a write's foreign keys (an audit entry's job, a photo's seat) take key-share
+ * locks, which must not wait for a decision holding the row, or the two would wait for each other.
  */
 async function lockSeat(tx: Tx, shopId: string, seatId: string) {
   const [row] = await tx
@@ -73,7 +77,7 @@ async function lockSeat(tx: Tx, shopId: string, seatId: string) {
     .innerJoin(jobs, eq(jobs.id, heads.jobId))
     .where(and(eq(seats.id, seatId), eq(jobs.shopId, shopId)))
     .limit(1)
-    .for("update");
+    .for("no key update", { of: [seats, jobs] });
   if (!row) throw new NotFoundError("That seat does not exist in your shop.");
   return row;
 }
@@ -84,7 +88,7 @@ async function lockJob(tx: Tx, shopId: string, jobId: string) {
     .from(jobs)
     .where(and(eq(jobs.id, jobId), eq(jobs.shopId, shopId)))
     .limit(1)
-    .for("update");
+    .for("no key update");
   if (!job) throw new NotFoundError("That job does not exist in your shop.");
   return job;
 }

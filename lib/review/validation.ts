@@ -1,6 +1,7 @@
 // The review forms' shapes, shared by the actions and the JSON route alike.
 import { z } from "zod";
-import { isCalendarDate, storableText } from "@/lib/validations/text";
+import { DATE_RANGE_MESSAGE, isCalendarDate, isDateInRange, storableText } from "@/lib/validations/text";
+import { uuidText } from "@/lib/validations/ids";
 
 const comment = storableText(
   z
@@ -20,10 +21,10 @@ const reason = storableText(
 
 const decision = z.enum(["approved", "sent_back"], { error: "Choose approve or send back." });
 
-export const seatReviewSchema = z.object({ seatId: z.string().uuid("Unknown seat."), jobId: z.string().uuid("Unknown job."), decision, comment });
-export const seatReopenSchema = z.object({ seatId: z.string().uuid("Unknown seat."), jobId: z.string().uuid("Unknown job."), reason });
-export const headReviewSchema = z.object({ jobId: z.string().uuid("Unknown job."), decision, comment });
-export const headReopenSchema = z.object({ jobId: z.string().uuid("Unknown job."), reason });
+export const seatReviewSchema = z.object({ seatId: uuidText("Unknown seat."), jobId: uuidText("Unknown job."), decision, comment });
+export const seatReopenSchema = z.object({ seatId: uuidText("Unknown seat."), jobId: uuidText("Unknown job."), reason });
+export const headReviewSchema = z.object({ jobId: uuidText("Unknown job."), decision, comment });
+export const headReopenSchema = z.object({ jobId: uuidText("Unknown job."), reason });
 
 const optionalUuid = z
   .string()
@@ -41,7 +42,8 @@ const optionalDay = z
     z
       .string()
       .regex(/^\d{4}-\d{2}-\d{2}$/, { message: "Use a date like 2026-03-14.", abort: true })
-      .refine(isCalendarDate, "That day is not on the calendar.")
+      .refine(isCalendarDate, { message: "That day is not on the calendar.", abort: true })
+      .refine(isDateInRange, DATE_RANGE_MESSAGE)
       .optional(),
   );
 

@@ -1,5 +1,6 @@
 // Where recordings and photos are kept. One small interface; files under the data directory
 // by default, S3-compatible object storage (./s3.ts) when GRINDFADE_S3_BUCKET is set.
+import { randomUUID } from "node:crypto";
 import fs from "node:fs";
 import fsp from "node:fs/promises";
 import path from "node:path";
@@ -51,13 +52,15 @@ export class LocalDiskStore implements BlobStore {
   async put(key: string, body: ReadableStream<Uint8Array> | Uint8Array, options: { maxBytes?: number } = {}) {
     const target = this.file(key);
     await fsp.mkdir(path.dirname(target), { recursive: true });
-    const temp = `${target}.part-${process.pid}-${Date.now()}`;
+    // A name of its own for every write, created exclusively: two uploads of one key at the same
+    // moment never share a temporary file, and the last one to finish is the one kept.
+    const temp = `${target}.part-${randomUUID()}`;
     let bytes = 0;
     const max = options.maxBytes ?? Number.POSITIVE_INFINITY;
     const source = body instanceof Uint8Array ? Readable.from([body]) : Readable.fromWeb(body as import("node:stream/web").ReadableStream);
     // The file is opened before the first byte: a write stream opens its file on its own time,
     // and one refused early could otherwise create it after the clean-up below has run.
-    const handle = await fsp.open(temp, "w");
+    const handle = await fsp.open(temp, "wx");
     try {
       await pipeline(
         source,

@@ -4,13 +4,15 @@
 import { randomUUID } from "node:crypto";
 import { and, asc, eq } from "drizzle-orm";
 import type { Db } from "@/db/client";
-import { heads, jobs, seatPhotos, seats, users, type Seat } from "@/db/schema";
+import { heads, jobs, seatPhotos, seats, users, type Job, type Seat } from "@/db/schema";
 import { recordAudit } from "@/lib/audit";
 import type { Actor } from "@/lib/auth/guard";
 import { assertCanWorkOn } from "@/lib/auth/job-access";
 import { BadRequestError, ConflictError, NotFoundError, PayloadTooLargeError, UnsupportedMediaTypeError } from "@/lib/errors";
+import { holdJob, signedOffSeats } from "@/lib/jobs/hold";
 import { isClosed } from "@/lib/jobs/lifecycle";
-import { blobStore, TooLargeError } from "./index";
+import { blobStore } from "./index";
+import { NOTHING_DECLARED, storeWhole, type DeclaredBody } from "./intact";
 import { peekStream, sniff } from "./sniff";
 
 /** A phone camera's JPEG is 2–6 MB; 10 MB leaves room for a large PNG without taking anything. */
@@ -40,12 +42,22 @@ async function loadSeat(db: Db, shopId: string, seatId: string) {
   return row;
 }
 
+function assertPhotoAllowed(seat: Pick<Seat, "state">, job: Pick<Job, "status" | "number">): void {
+  if (seat.state === "approved") throw new ConflictError("This seat is signed off. A supervisor must reopen it before photos are added.");
+  if (isClosed(job.status)) throw new ConflictError(signedOffSeats(job));
+}
+
 /** Checks, stores and records one photo of the seat. */
-export async function addSeatPhoto(db: Db, actor: Actor, seatId: string, body: ReadableStream<Uint8Array> | null): Promise<SeatPhoto> {
+export async function addSeatPhoto(
+  db: Db,
+  actor: Actor,
+  seatId: string,
+  body: ReadableStream<Uint8Array> | null,
+  declared: DeclaredBody = NOTHING_DECLARED,
+): Promise<SeatPhoto> {
   const { seat, job } = await loadSeat(db, actor.shopId, seatId);
   assertCanWorkOn(actor, job);
-  if (seat.state === "approved") throw new ConflictError("This seat is signed off. A supervisor must reopen it before photos are added.");
-  if (isClosed(job.status)) throw new ConflictError(`Job ${job.number} is signed off; its seats are read-only.`);
+  assertPhotoAllowed(seat, job);
 
   const peeked = body ? await peekStream(body) : null;
   if (!peeked) throw new BadRequestError("The photo is empty.");
@@ -62,15 +74,13 @@ export async function addSeatPhoto(db: Db, actor: Actor, seatId: string, body: R
   const id = randomUUID();
   const key = `photos/${seatId}/${id}.${kind.ext}`;
   const store = blobStore();
-  let bytes: number;
-  try {
-    ({ bytes } = await store.put(key, peeked.stream, { maxBytes: MAX_PHOTO_BYTES }));
-  } catch (err) {
-    if (err instanceof TooLargeError) throw tooLargePhoto();
-    throw err;
-  }
+  const bytes = await storeWhole(store, key, peeked.stream, { maxBytes: MAX_PHOTO_BYTES, tooLarge: tooLargePhoto }, declared, "photo");
   try {
     const row = await db.transaction(async (tx) => {
+      // Checked again with the job held against sign-off: the seat and job as they are now.
+      const now = await holdJob(tx, job.id);
+      const [seatNow] = await tx.select().from(seats).where(eq(seats.id, seatId)).limit(1);
+      assertPhotoAllowed(seatNow ?? seat, now);
       const [inserted] = await tx.insert(seatPhotos).values({ id, seatId, key, type: kind.type, bytes, takenById: actor.id }).returning();
       await recordAudit(tx, {
         actorId: actor.id,

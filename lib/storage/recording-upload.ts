@@ -1,9 +1,11 @@
 // The rules one session recording has to meet, shared by the single upload and the chunked one.
+import { randomUUID } from "node:crypto";
 import type { Db } from "@/db/client";
 import type { Actor } from "@/lib/auth/guard";
 import { attachRecording, getSessionForUpload } from "@/lib/bench/service";
 import { BadRequestError, PayloadTooLargeError, UnsupportedMediaTypeError } from "@/lib/errors";
-import { blobStore, TooLargeError } from "./index";
+import { blobStore } from "./index";
+import { NOTHING_DECLARED, storeWhole, type DeclaredBody } from "./intact";
 import { peekStream, sniff, type Sniffed } from "./sniff";
 
 /** 60 minutes of Opus at 64 kbit/s is about 29 MB; anything much larger is not a bench recording. */
@@ -37,8 +39,12 @@ export async function sniffRecording(
   return { sniffed, stream: peeked.stream };
 }
 
-/** Storage key of a session's recording; the extension follows the sniffed kind. */
-export const recordingKey = (sessionId: string, s: Sniffed) => `recordings/${sessionId}.${s.ext}`;
+/**
+ * Storage key of one upload of a session's recording; the extension follows the sniffed kind.
+ * Every upload has a key of its own, so two at once never write over each other, and an upload
+ * refused at the last moment (the seat was signed off meanwhile) never touches the kept one.
+ */
+export const recordingKey = (sessionId: string, s: Sniffed) => `recordings/${sessionId}-${randomUUID()}.${s.ext}`;
 
 /**
  * Sniffs, stores and attaches a session's recording, replacing an earlier one. Checked before
@@ -49,23 +55,24 @@ export async function storeRecording(
   actor: Actor,
   sessionId: string,
   body: ReadableStream<Uint8Array> | null,
+  declared: DeclaredBody = NOTHING_DECLARED,
 ): Promise<{ key: string; type: string; bytes: number }> {
   const ctx = await getSessionForUpload(db, actor, sessionId);
   const accepted = body ? await sniffRecording(body) : null;
   if (!accepted) throw new BadRequestError("The recording is empty.");
   const key = recordingKey(sessionId, accepted.sniffed);
   const store = blobStore();
-  let bytes: number;
+  const bytes = await storeWhole(store, key, accepted.stream, { maxBytes: MAX_RECORDING_BYTES, tooLarge: tooLargeRecording }, declared, "recording");
+  const recording = { key, type: accepted.sniffed.type, bytes };
+  let previous: string | null;
   try {
-    ({ bytes } = await store.put(key, accepted.stream, { maxBytes: MAX_RECORDING_BYTES }));
+    previous = await attachRecording(db, actor, sessionId, recording);
   } catch (err) {
-    if (err instanceof TooLargeError) throw tooLargeRecording();
+    // No row points at these bytes, so they must not stay in storage.
+    await store.delete(key).catch(() => {});
     throw err;
   }
-  const recording = { key, type: accepted.sniffed.type, bytes };
-  await attachRecording(db, actor, sessionId, recording);
-  // A WebM upload replacing a WAV lands under another key; the old one would be kept for nothing.
-  const previous = ctx.session.recordingKey;
+  // The recording replaced is no longer pointed at by anything.
   if (previous && previous !== key) await store.delete(previous).catch(() => {});
   return recording;
 }

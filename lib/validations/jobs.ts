@@ -1,6 +1,6 @@
 // One schema for the job form and its server action.
 import { z } from "zod";
-import { isCalendarDate, storableText } from "./text";
+import { DATE_RANGE_MESSAGE, isCalendarDate, isDateInRange, storableText } from "./text";
 
 const optionalUuid = z
   .string({ error: "Choose from the list." })
@@ -36,6 +36,7 @@ export const jobFormSchema = z
       .default("")
       .refine((v) => v === null || v === "" || /^\d{4}-\d{2}-\d{2}$/.test(v), "Use a date like 2026-12-24.")
       .refine((v) => v === null || v === "" || !/^\d{4}-\d{2}-\d{2}$/.test(v) || isCalendarDate(v), "That day is not on the calendar.")
+      .refine((v) => v === null || v === "" || !isCalendarDate(v) || isDateInRange(v), DATE_RANGE_MESSAGE)
       .transform((v) => (v === "" ? null : v)),
     assignedTechnicianId: optionalUuid,
     notes: storableText(z.string().trim().max(2000, "Keep notes under 2000 characters.")).default(""),

@@ -23,6 +23,7 @@ import {
   validateOrder,
   type BoltsPerCap,
 } from "@/lib/measure/torque";
+import { uuidText } from "./ids";
 import {
   FORCE_UNITS,
   isForceUnit,
@@ -83,7 +84,7 @@ const wholeNumber = (what: string, min: number, max: number, range: string) =>
   );
 
 const uuidField = (what: string) =>
-  z.string({ error: `Choose ${what}.` }).uuid(`Unknown ${what.replace(/^(the|a) /, "")}.`);
+  z.string({ error: `Choose ${what}.` }).pipe(uuidText(`Unknown ${what.replace(/^(the|a) /, "")}.`));
 
 const optionalUuidField = (what: string) =>
   z.preprocess(blankToUndefined, uuidField(what).optional());

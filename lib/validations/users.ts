@@ -25,5 +25,9 @@ export const createUserSchema = userBaseSchema.omit({ id: true }).superRefine((d
 });
 export const resetPasswordSchema = userBaseSchema.pick({ id: true, password: true });
 export const changeRoleSchema = userBaseSchema.pick({ id: true, role: true });
+export const personSchema = userBaseSchema.pick({ id: true });
+export const setActiveSchema = personSchema.extend({
+  active: z.enum(["true", "false"], { error: "Choose whether the account may sign in." }).transform((v) => v === "true"),
+});
 
 export type CreateUserInput = z.infer<typeof createUserSchema>;

@@ -24,7 +24,10 @@ describe("the session token on a plain request", () => {
     process.env.NEXTAUTH_SECRET = SECRET;
     process.env.NEXTAUTH_URL = "http://grindfade.test";
     const jwt = await encode({ token: { uid: "user-1", role: "technician" }, secret: SECRET });
-    expect(await tokenUser(requestWith(`other=1; next-auth.session-token=${jwt}; theme=dark`))).toEqual({ id: "user-1", role: "technician" });
+    expect(await tokenUser(requestWith(`other=1; next-auth.session-token=${jwt}; theme=dark`))).toEqual({ id: "user-1", role: "technician", sv: 0 });
+    // The session version rides along; a token from before versions counts as 0 (above).
+    const versioned = await encode({ token: { uid: "user-1", role: "technician", sv: 5 }, secret: SECRET });
+    expect(await tokenUser(requestWith(`next-auth.session-token=${versioned}`))).toEqual({ id: "user-1", role: "technician", sv: 5 });
   });
 
   it("reads a token split over several cookies, as next-auth writes a long one", async () => {
@@ -33,14 +36,14 @@ describe("the session token on a plain request", () => {
     const jwt = await encode({ token: { uid: "user-2", role: "supervisor" }, secret: SECRET });
     const half = Math.floor(jwt.length / 2);
     const cookie = `next-auth.session-token.1=${jwt.slice(half)}; next-auth.session-token.0=${jwt.slice(0, half)}`;
-    expect(await tokenUser(requestWith(cookie))).toEqual({ id: "user-2", role: "supervisor" });
+    expect(await tokenUser(requestWith(cookie))).toEqual({ id: "user-2", role: "supervisor", sv: 0 });
   });
 
   it("uses the __Secure- cookie behind https, and ignores the plain one there", async () => {
     process.env.NEXTAUTH_SECRET = SECRET;
     process.env.NEXTAUTH_URL = "https://grindfade.test";
     const jwt = await encode({ token: { uid: "user-3", role: "admin" }, secret: SECRET });
-    expect(await tokenUser(requestWith(`__Secure-next-auth.session-token=${jwt}`))).toEqual({ id: "user-3", role: "admin" });
+    expect(await tokenUser(requestWith(`__Secure-next-auth.session-token=${jwt}`))).toEqual({ id: "user-3", role: "admin", sv: 0 });
     expect(await tokenUser(requestWith(`next-auth.session-token=${jwt}`))).toBeNull();
   });
 
@@ -58,7 +61,7 @@ describe("the session token on a plain request", () => {
     expect(await tokenUser(requestWith(null))).toBeNull();
     expect(await tokenUser(requestWith("next-auth.session-token=%E0%A4%A"))).toBeNull();
     // The same secret still reads a good token after the failures (the cached key is not spoiled).
-    expect(await tokenUser(requestWith(`next-auth.session-token=${good}`))).toEqual({ id: "user-4", role: "technician" });
+    expect(await tokenUser(requestWith(`next-auth.session-token=${good}`))).toEqual({ id: "user-4", role: "technician", sv: 0 });
   });
 
   it("follows a change of secret", async () => {
@@ -74,10 +77,10 @@ describe("the session token on a plain request", () => {
     process.env.NEXTAUTH_SECRET = SECRET;
     process.env.NEXTAUTH_URL = "http://grindfade.test";
     const jwt = await encode({ token: { uid: "user-6", role: "technician" }, secret: SECRET });
-    expect(await tokenUser({ cookie: `a=b; next-auth.session-token=${jwt}`, host: "grindfade.test" })).toEqual({ id: "user-6", role: "technician" });
+    expect(await tokenUser({ cookie: `a=b; next-auth.session-token=${jwt}`, host: "grindfade.test" })).toEqual({ id: "user-6", role: "technician", sv: 0 });
     expect(await tokenUser({ host: "grindfade.test" })).toBeNull();
     // A bearer token, as next-auth's getToken reads it when there is no cookie.
-    expect(await tokenUser({ authorization: `Bearer ${encodeURIComponent(jwt)}` })).toEqual({ id: "user-6", role: "technician" });
+    expect(await tokenUser({ authorization: `Bearer ${encodeURIComponent(jwt)}` })).toEqual({ id: "user-6", role: "technician", sv: 0 });
   });
 
   it("stops answering for a token it has read once as soon as that token expires", async () => {
@@ -86,14 +89,14 @@ describe("the session token on a plain request", () => {
     vi.useFakeTimers({ toFake: ["Date"] });
     vi.setSystemTime(new Date("2026-12-02T08:00:00Z"));
     const jwt = await encode({ token: { uid: "user-7", role: "technician" }, secret: SECRET, maxAge: 3600 });
-    expect(await tokenUser(requestWith(`next-auth.session-token=${jwt}`))).toEqual({ id: "user-7", role: "technician" });
+    expect(await tokenUser(requestWith(`next-auth.session-token=${jwt}`))).toEqual({ id: "user-7", role: "technician", sv: 0 });
     // Within next-auth's 15 s of clock tolerance past the expiry: still good.
     vi.setSystemTime(new Date("2026-12-02T09:00:10Z"));
-    expect(await tokenUser(requestWith(`next-auth.session-token=${jwt}`))).toEqual({ id: "user-7", role: "technician" });
+    expect(await tokenUser(requestWith(`next-auth.session-token=${jwt}`))).toEqual({ id: "user-7", role: "technician", sv: 0 });
     vi.setSystemTime(new Date("2026-12-02T09:00:20Z"));
     expect(await tokenUser(requestWith(`next-auth.session-token=${jwt}`))).toBeNull();
     // What decides is the token's own expiry against the clock, not a mark left by an earlier read.
     vi.setSystemTime(new Date("2026-12-02T08:30:00Z"));
-    expect(await tokenUser(requestWith(`next-auth.session-token=${jwt}`))).toEqual({ id: "user-7", role: "technician" });
+    expect(await tokenUser(requestWith(`next-auth.session-token=${jwt}`))).toEqual({ id: "user-7", role: "technician", sv: 0 });
   });
 });

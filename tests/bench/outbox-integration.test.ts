@@ -160,7 +160,10 @@ describe("outbox and server together", () => {
     expect(report.stages.coarse.verdict.state).toBe(reference.state);
     expect(report.stages.coarse.verdict.settled?.atStroke).toBe(reference.settled?.atStroke);
     expect(report.stages.coarse.sessions).toEqual([expect.objectContaining({ endedAt: expect.any(String), hasRecording: true })]);
-    const file = path.join(dataDir, "blobs", "recordings", `${session.sessionId}.wav`);
+    // Each upload is kept under a key of its own: the session's one file.
+    const kept = fs.readdirSync(path.join(dataDir, "blobs", "recordings")).filter((f) => f.startsWith(session.sessionId));
+    expect(kept).toEqual([expect.stringMatching(/\.wav$/)]);
+    const file = path.join(dataDir, "blobs", "recordings", kept[0]!);
     expect(fs.readFileSync(file)).toEqual(Buffer.from(await smallWav().arrayBuffer()));
   });
 

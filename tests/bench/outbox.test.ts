@@ -2,8 +2,8 @@
 // batching, resend after failures, refusals that are kept but never resent, and shared flushes.
 import "fake-indexeddb/auto";
 import { randomUUID } from "node:crypto";
-import { describe, expect, it } from "vitest";
-import { Outbox, type OutboxOp } from "@/lib/bench/outbox";
+import { describe, expect, it, vi } from "vitest";
+import { Outbox, SERVER_FAILURE_TRIES, type OutboxOp } from "@/lib/bench/outbox";
 import type { StrokeInput } from "@/lib/validations/bench";
 import { sessionBody, strokeInputs } from "./helpers";
 
@@ -206,7 +206,17 @@ describe("Outbox", () => {
     expect((await box.flush()).sent).toBe(3);
   });
 
-  for (const status of [500, 503, 429]) {
+  it("after a 500 on a batch, sends its strokes one by one at once, so only a stroke it fails on waits", async () => {
+    const net = scriptedNetwork();
+    const box = newOutbox(net);
+    const { ops, strokes } = sessionOps(randomUUID(), [5, 4]);
+    await addAll(box, ops);
+    net.script.push(Response.json({ sessionId: "x" }, { status: 201 }), refusal(500, "Try again."));
+    expect(await box.flush()).toMatchObject({ sent: 3, pending: 0, stoppedBy: "done", refused: [], setAside: [] });
+    expect(net.calls.slice(-2).map((c) => sentStrokeIds([c]))).toEqual(strokes.map((s) => [s.clientId]));
+  });
+
+  for (const status of [503, 429]) {
     it(`retries after ${status}: stops, keeps the op, and sends it on the next flush`, async () => {
       const net = scriptedNetwork();
       const box = newOutbox(net);
@@ -328,5 +338,98 @@ describe("Outbox", () => {
     const after = await box.pendingStrokes(seat);
     expect(after.map((p) => p.stroke.clientId)).toEqual(strokes.map((s) => s.clientId));
     expect(after.every((p) => p.stage === undefined)).toBe(true);
+  });
+
+  it("sets aside a stroke the server keeps failing on, after backing off, and sends the strokes behind it", async () => {
+    const net = scriptedNetwork();
+    const box = newOutbox(net);
+    const seat = randomUUID();
+    const { sessionId, strokes, ops } = sessionOps(seat, [9, 8, 7, 6, 5]);
+    const bad = strokes[1]!.clientId;
+    // The server fails (500) on any request carrying the bad stroke, and takes the others.
+    const failsOnBad = (call: Call): Response => {
+      const sent = (call.body as { strokes?: StrokeInput[] } | null)?.strokes;
+      if (sent?.some((x) => x.clientId === bad)) return Response.json({ error: "internal", message: "Something went wrong on the server. (req-42)" }, { status: 500 });
+      return Response.json(sent ? { accepted: sent.length, duplicates: 0 } : { ok: true }, { status: 201 });
+    };
+    for (let n = 0; n < 40; n++) net.script.push(failsOnBad);
+    await addAll(box, ops);
+    let now = Date.now();
+    const clock = vi.spyOn(Date, "now").mockImplementation(() => now);
+    try {
+      const first = await box.flush();
+      // The batch is split; the stroke before the bad one is saved, then the bad one waits.
+      expect(first).toMatchObject({ stoppedBy: "server", setAside: [] });
+      expect(sentStrokeIds(net.calls.filter((c) => c.url.endsWith("/strokes") && !JSON.stringify(c.body).includes(bad)))).toEqual([strokes[0]!.clientId]);
+      // Backing off: a flush before the wait is over sends nothing.
+      const calls = net.calls.length;
+      expect((await box.flush()).stoppedBy).toBe("server");
+      expect(net.calls.length).toBe(calls);
+      let report = first;
+      let tries = 1;
+      while (report.setAside.length === 0 && tries < 10) {
+        now += 60_000;
+        report = await box.flush();
+        tries++;
+      }
+      expect(tries).toBe(SERVER_FAILURE_TRIES);
+      expect(report.setAside).toEqual([{ op: expect.objectContaining({ stroke: strokes[1] }), message: "Something went wrong on the server. (req-42)" }]);
+      expect(report).toMatchObject({ stoppedBy: "done", pending: 0 });
+      // The strokes behind it went on; the bad one is kept on the phone, never dropped.
+      expect(new Set(sentStrokeIds(net.calls.filter((c) => !JSON.stringify(c.body).includes(bad))))).toEqual(new Set([0, 2, 3, 4].map((k) => strokes[k]!.clientId)));
+      expect((await box.setAsideOps(seat)).map((op) => (op as { stroke: StrokeInput }).stroke.clientId)).toEqual([bad]);
+      expect(await box.count()).toBe(1);
+      expect((await box.pendingStrokes(seat)).map((p) => p.stroke.clientId)).toEqual([bad]);
+      // Later flushes leave it alone until someone sends it again; then it goes.
+      const before = net.calls.length;
+      expect(await box.flush()).toMatchObject({ sent: 0, stoppedBy: "done" });
+      expect(net.calls.length).toBe(before);
+      net.script.length = 0;
+      await box.retrySetAside(seat);
+      expect(await box.flush()).toMatchObject({ sent: 1, pending: 0, stoppedBy: "done" });
+      expect(await box.count()).toBe(0);
+    } finally {
+      clock.mockRestore();
+    }
+    expect(sessionId).toBeTruthy();
+  });
+
+  it("waits out a server that is away (503, 502) without setting anything aside", async () => {
+    const net = scriptedNetwork();
+    const box = newOutbox(net);
+    const seat = randomUUID();
+    const { ops } = sessionOps(seat, [9, 8]);
+    await addAll(box, ops);
+    for (let n = 0; n < 12; n++) {
+      net.script.push(refusal(n % 2 ? 502 : 503, "Grindfade is restarting."));
+      const report = await box.flush();
+      expect(report).toMatchObject({ stoppedBy: "server", setAside: [] });
+    }
+    expect(await box.setAsideOps()).toEqual([]);
+    expect(await box.flush()).toMatchObject({ sent: 3, pending: 0, stoppedBy: "done" });
+  });
+
+  it("sets aside what was recorded in a session the server kept failing to start", async () => {
+    const net = scriptedNetwork();
+    const box = newOutbox(net);
+    const seat = randomUUID();
+    const { sessionId, ops } = sessionOps(seat, [9, 8]);
+    await addAll(box, [...ops, { kind: "end", seatId: seat, sessionId }]);
+    let now = Date.now();
+    const clock = vi.spyOn(Date, "now").mockImplementation(() => now);
+    const aside: unknown[] = [];
+    try {
+      for (let n = 0; n < SERVER_FAILURE_TRIES; n++) {
+        net.script.push(refusal(500, "The server failed."));
+        aside.push(...(await box.flush()).setAside);
+        now += 60_000;
+      }
+    } finally {
+      clock.mockRestore();
+    }
+    expect(aside).toHaveLength(4);
+    expect(net.calls.every((c) => c.url.endsWith("/sessions"))).toBe(true);
+    expect(await box.count()).toBe(4);
+    expect((await box.setAsideOps(seat)).every((op) => op.setAside === "The server failed.")).toBe(true);
   });
 });

@@ -58,8 +58,15 @@ function upload(body: Uint8Array | null, headers: Record<string, string>) {
 
 // A tenth of a second of a 1 kHz tone, 16-bit mono at 8 kHz.
 const wav = encodeWav([Float32Array.from({ length: 800 }, (_, i) => 0.3 * Math.sin((2 * Math.PI * 1000 * i) / 8000))], 8000);
-const storedFile = (ext: string) => path.join(dataDir, "blobs", "recordings", `${sessionId}.${ext}`);
 const sessionRow = async () => (await db().select().from(lappingSessions).where(eq(lappingSessions.id, sessionId)))[0]!;
+const recordingsDir = path.join(dataDir, "blobs", "recordings");
+/** The session's files in storage, whole or partial: every upload is kept under a key of its own. */
+const filesOf = (id = sessionId) => (fs.existsSync(recordingsDir) ? fs.readdirSync(recordingsDir).filter((f) => f.startsWith(id)) : []);
+/** The file the session's row points at. */
+const storedFile = async (id = sessionId) => {
+  const [row] = await db().select().from(lappingSessions).where(eq(lappingSessions.id, id));
+  return path.join(dataDir, "blobs", row!.recordingKey!);
+};
 
 describe("recording upload", () => {
   it("refuses anonymous callers with 401 and another technician with 403, storing nothing", async () => {
@@ -69,7 +76,7 @@ describe("recording upload", () => {
     expect((await upload(wav, { "content-type": "audio/wav" })).status).toBe(403);
     signInAs("admin@millrace.example");
     expect((await upload(wav, { "content-type": "audio/wav" })).status).toBe(403);
-    expect(fs.existsSync(storedFile("wav"))).toBe(false);
+    expect(filesOf()).toEqual([]);
     expect((await sessionRow()).recordingKey).toBeNull();
   });
 
@@ -86,7 +93,7 @@ describe("recording upload", () => {
     const res = await upload(wav, { "content-type": "audio/webm", "content-length": String(64 * 1024 * 1024 + 1) });
     expect(res.status).toBe(413);
     expect(await bodyOf(res)).toMatchObject({ error: "too_large", message: expect.stringMatching(/64 MB/) });
-    expect(fs.existsSync(storedFile("webm"))).toBe(false);
+    expect(filesOf()).toEqual([]);
   });
 
   it("refuses an undeclared body that grows past the limit with 413, keeping no part of it", async () => {
@@ -112,8 +119,7 @@ describe("recording upload", () => {
     } as ConstructorParameters<typeof NextRequest>[1]);
     const res = await recordingRoute.PUT(req, { params: Promise.resolve({ sessionId }) });
     expect(res.status).toBe(413);
-    expect(fs.existsSync(storedFile("ogg"))).toBe(false);
-    expect(fs.readdirSync(path.dirname(storedFile("ogg"))).filter((f) => f.includes(".part-"))).toEqual([]);
+    expect(filesOf()).toEqual([]);
   });
 
   it("refuses an empty recording with 400", async () => {
@@ -121,7 +127,7 @@ describe("recording upload", () => {
     const res = await upload(new Uint8Array(0), { "content-type": "audio/wav" });
     expect(res.status).toBe(400);
     expect((await sessionRow()).recordingKey).toBeNull();
-    expect(fs.existsSync(storedFile("wav"))).toBe(false);
+    expect(filesOf()).toEqual([]);
   });
 
   it("stores a WAV byte for byte and points the session at it", async () => {
@@ -129,17 +135,21 @@ describe("recording upload", () => {
     const res = await upload(wav, { "content-type": "audio/wav" });
     expect(res.status).toBe(201);
     expect(await bodyOf(res)).toEqual({ ok: true, bytes: wav.byteLength });
-    expect(new Uint8Array(fs.readFileSync(storedFile("wav")))).toEqual(wav);
-    expect(await sessionRow()).toMatchObject({ recordingKey: `recordings/${sessionId}.wav`, recordingType: "audio/wav", recordingBytes: wav.byteLength });
+    expect(new Uint8Array(fs.readFileSync(await storedFile()))).toEqual(wav);
+    expect(await sessionRow()).toMatchObject({ recordingKey: `recordings/${filesOf()[0]}`, recordingType: "audio/wav", recordingBytes: wav.byteLength });
+    expect(filesOf()).toEqual([expect.stringMatching(/\.wav$/)]);
     // A supervisor may upload for any job of the shop; the upload replaces the earlier one.
     signInAs("rhea@millrace.example");
     const again = await upload(wav.slice(0, 100), { "content-type": "audio/wav; codecs=1" });
     expect(again.status).toBe(201);
-    expect(fs.statSync(storedFile("wav")).size).toBe(100);
+    expect(fs.statSync(await storedFile()).size).toBe(100);
+    // The recording replaced is gone from storage.
+    expect(filesOf()).toHaveLength(1);
     expect((await sessionRow()).recordingBytes).toBe(100);
     // An empty resend is refused and leaves the kept recording as it was.
     expect((await upload(new Uint8Array(0), { "content-type": "audio/wav" })).status).toBe(400);
-    expect(new Uint8Array(fs.readFileSync(storedFile("wav")))).toEqual(wav.slice(0, 100));
+    expect(new Uint8Array(fs.readFileSync(await storedFile()))).toEqual(wav.slice(0, 100));
+    expect(filesOf()).toHaveLength(1);
   });
 
   it("never replaces the recording of a signed-off seat, but still takes a late first recording", async () => {
@@ -168,8 +178,8 @@ describe("recording upload", () => {
       expect(((await bodyOf(res)) as { message: string }).message).toMatch(/signed off .* reopen the seat/);
     }
     expect(await row(withRecording.sessionId)).toEqual(kept);
-    const keptFile = path.join(dataDir, "blobs", "recordings", `${withRecording.sessionId}.wav`);
-    expect(new Uint8Array(fs.readFileSync(keptFile))).toEqual(wav);
+    expect(new Uint8Array(fs.readFileSync(await storedFile(withRecording.sessionId)))).toEqual(wav);
+    expect(filesOf(withRecording.sessionId)).toHaveLength(1);
     // The other session, recorded before the sign-off, arrives late from the phone's queue.
     signInAs("ines@millrace.example");
     expect((await put(late.sessionId, wav)).status).toBe(201);

@@ -26,7 +26,7 @@ interface SeatApi {
   >;
 }
 
-async function openSeat(mic: FakeMicFile, jobNumber: string, seatCode: string): Promise<{ context: BrowserContext; page: Page; seatId: string }> {
+async function openSeat(mic: FakeMicFile, jobNumber: string, seatCode: string, who = "ines"): Promise<{ context: BrowserContext; page: Page; seatId: string }> {
   browser = await launchBrowser([
     "--use-fake-device-for-media-stream",
     "--use-fake-ui-for-media-stream",
@@ -34,7 +34,7 @@ async function openSeat(mic: FakeMicFile, jobNumber: string, seatCode: string): 
     "--autoplay-policy=no-user-gesture-required",
   ]);
   const context = await browser.newContext({ ...PHONE, permissions: ["microphone"] });
-  const tech = DEMO_USERS.find((u) => u.email.startsWith("ines"))!;
+  const tech = DEMO_USERS.find((u) => u.email.startsWith(who))!;
   const page = await signIn(context, baseURL, tech.email, tech.password);
   await page.waitForURL(/\/jobs$/);
   const { jobs } = (await (await page.request.get(`${baseURL}/api/jobs`)).json()) as { jobs: Array<{ id: string; number: string }> };
@@ -135,7 +135,7 @@ describe("bench screen with a fake microphone", () => {
 
   it("measures the room again when lapping began during it, and draws a rattled stroke hollow, left out with its reason", async () => {
     const mic = busyBaySession();
-    const { page, seatId } = await openSeat(mic, "MHW-0141", "2E2");
+    const { page, seatId } = await openSeat(mic, "MHW-0142", "2I1", "dov");
     await page.getByTestId("start-listening").tap();
     // The long stroke over "stay quiet" is heard: the screen says so and measures again.
     await page.getByText(/Something was heard — stay quiet, measuring the room again/).waitFor({ timeout: 15_000 });
@@ -165,7 +165,7 @@ describe("bench screen with a fake microphone", () => {
   it("explains a refused microphone instead of showing a blank screen", async () => {
     browser = await launchBrowser(["--use-fake-device-for-media-stream"]);
     const context = await browser.newContext({ ...PHONE });
-    const tech = DEMO_USERS.find((u) => u.email.startsWith("ines"))!;
+    const tech = DEMO_USERS.find((u) => u.email.startsWith(who))!;
     const page = await signIn(context, baseURL, tech.email, tech.password);
     await page.waitForURL(/\/jobs$/);
     const { jobs } = (await (await page.request.get(`${baseURL}/api/jobs`)).json()) as { jobs: Array<{ id: string; number: string }> };

@@ -14,7 +14,7 @@ export interface HttpSignIn {
   signedIn: boolean;
 }
 
-export async function signInOverHttp(baseURL: string, email: string, password: string): Promise<HttpSignIn> {
+export async function signInOverHttp(baseURL: string, email: string, password: string, extraHeaders: Record<string, string> = {}): Promise<HttpSignIn> {
   const jar = new Map<string, string>();
   const keep = (lines: string[]) => {
     for (const line of lines) {
@@ -31,7 +31,7 @@ export async function signInOverHttp(baseURL: string, email: string, password: s
   const res = await fetch(`${baseURL}/api/auth/callback/credentials`, {
     method: "POST",
     redirect: "manual",
-    headers: { "content-type": "application/x-www-form-urlencoded", origin: baseURL, cookie: cookie() },
+    headers: { ...extraHeaders, "content-type": "application/x-www-form-urlencoded", origin: baseURL, cookie: cookie() },
     body: new URLSearchParams({ csrfToken, email, password, callbackUrl: `${baseURL}/jobs`, json: "true" }),
   });
   const setCookies = res.headers.getSetCookie();

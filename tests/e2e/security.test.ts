@@ -174,10 +174,16 @@ describe("sign-in throttle per address", () => {
     for (let i = 0; i < 4; i++) {
       const who = others[i % others.length]!;
       const { location } = await httpSignIn(server.baseURL, who.email, `not-the-password-${i}`);
-      expect(decodeURIComponent(location)).toMatch(/Wrong e-mail or password/);
+      expect(decodeURIComponent(location)).toMatch(/error=invalid\b/);
     }
     const { location, setCookies } = await httpSignIn(server.baseURL, supervisor.email, supervisor.password);
-    expect(decodeURIComponent(location)).toMatch(/Too many wrong sign-ins from this device: wait 15 minutes/);
+    expect(decodeURIComponent(location)).toMatch(/error=throttled:15\b/);
     expect(setCookies.some((c) => /session-token=/.test(c))).toBe(false);
+    // Claiming another address in a header changes nothing: the connection's is the one counted.
+    for (const spoof of [{ "x-forwarded-for": "203.0.113.77" }, { "x-real-ip": "203.0.113.78" }, { "x-grindfade-client-address": "guess 203.0.113.79" }] as Array<Record<string, string>>) {
+      const again = await httpSignIn(server.baseURL, supervisor.email, supervisor.password, spoof);
+      expect(decodeURIComponent(again.location), JSON.stringify(spoof)).toMatch(/error=throttled:\d+\b/);
+      expect(again.signedIn).toBe(false);
+    }
   });
 });

@@ -489,6 +489,14 @@ const CASES: Record<string, Case> = {
     const id = await throwawayPerson(c.n);
     return () => action("lib/actions/users.ts#changeRole")(prev, form({ id, role: "supervisor" }));
   },
+  "lib/actions/users.ts#setActive": async (c) => {
+    const id = await throwawayPerson(c.n);
+    return () => action("lib/actions/users.ts#setActive")(prev, form({ id, active: "false" }));
+  },
+  "lib/actions/users.ts#endSessions": async (c) => {
+    const id = await throwawayPerson(c.n);
+    return () => action("lib/actions/users.ts#endSessions")(prev, form({ id }));
+  },
 };
 
 let calls = 0;

@@ -25,6 +25,7 @@ import * as userActions from "@/lib/actions/users";
 import { authOptions } from "@/lib/auth/options";
 import { heicHead, jpegHead, wavFile } from "../storage/fixtures";
 import { ADMIN, DOV, INES, QUILL, RHEA, type Fixtures } from "./bad-input-fixtures";
+import { signInErrorMessage } from "@/lib/auth/sign-in-errors";
 
 export const BASE_URL = "http://grindfade.test";
 const MB = 1024 * 1024;
@@ -273,6 +274,12 @@ export const routeCases: RouteCase[] = [
       ["501 strokes in one batch", { strokes: Array.from({ length: 501 }, (_, i) => stroke({ index: i + 1, startS: 2 * i + 2, endS: 2 * i + 3 })) }, 400, /at most 500/],
       ["a clientId that climbs paths", { strokes: [stroke({ clientId: "../../etc/passwd" })] }, 400, /^strokes\.0\.clientId: /],
       ["a 100 kB clientId", { strokes: [stroke({ clientId: HUGE(100_000) })] }, 400, /^strokes\.0\.clientId: /],
+      // Single precision (the real columns): times a nanosecond apart are one time as stored.
+      ["an end a nanosecond after its start", { strokes: [stroke({ startS: 1, endS: 1 + 1e-9 })] }, 400, /^strokes\.0\.endS: /],
+      ["an end one double after its start near a day", { strokes: [stroke({ startS: 86_399.99, endS: 86_399.995 })] }, 400, /^strokes\.0\.endS: /],
+      ["an end past a day as stored", { strokes: [stroke({ startS: 1, endS: 86_400.01 })] }, 400, /^strokes\.0\.endS: /],
+      ["a contrast past 60 dB by 1e-5", { strokes: [stroke({ contrastDb: 60.00001 })] }, 400, /^strokes\.0\.contrastDb: /],
+      ["a level past single precision's range", rawStroke("bodyDb", "1e39"), 400, /^strokes\.0\.bodyDb: /],
     ] as const
   ).map(
     ([name, body, status, message]): RouteCase => ({
@@ -413,6 +420,12 @@ export const routeCases: RouteCase[] = [
   },
 
   // POST /api/seats/[seatId]/photos
+  // Kept whole or refused: what arrived against what was declared.
+  { group: "photo upload", name: "a body shorter than its Content-Length", as: INES, status: 400, message: /bytes; nothing was kept/, send: (f) => postPhoto(f.own.seats.get("3I1")!, jpegHead, { "content-type": "image/jpeg", "content-length": String(jpegHead.length + 500) }) },
+  { group: "photo upload", name: "a Content-Digest that does not match", as: INES, status: 400, message: /SHA-256/, send: (f) => postPhoto(f.own.seats.get("3I1")!, jpegHead, { "content-type": "image/jpeg", "content-digest": `sha-256=:${"A".repeat(43)}=:` }) },
+  { group: "photo upload", name: "a Content-Digest of another algorithm", as: INES, status: 400, send: (f) => postPhoto(f.own.seats.get("3I1")!, jpegHead, { "content-type": "image/jpeg", "content-digest": "md5=:AAAA:" }) },
+  { group: "recording upload", name: "a recording shorter than its Content-Length", as: INES, status: 400, message: /bytes; nothing was kept/, send: (f) => putRecording(f.inesSession, wavFile, { "content-type": "audio/wav", "content-length": String(wavFile.length + 1000) }) },
+  { group: "recording upload", name: "a Content-Length that is no number", as: INES, status: 400, send: (f) => putRecording(f.inesSession, wavFile, { "content-type": "audio/wav", "content-length": "12abc" }) },
   { group: "photo upload", name: "text that is not an image", as: INES, status: 415, send: (f) => postPhoto(f.own.seats.get("3I1")!, new TextEncoder().encode("<svg onload=alert(1)>"), { "content-type": "image/jpeg" }) },
   {
     group: "photo upload",
@@ -471,6 +484,11 @@ export const routeCases: RouteCase[] = [
       ["a date that is no date", "from=yesterday"],
       ["a month that does not exist", "from=2026-13-45"],
       ["a start after the end", "from=2026-03-14&to=2026-03-01"],
+      // Timestamps: the day after 9999-12-31 has no text PostgreSQL reads; year 0 does not exist.
+      ["the last day of year 9999", "to=9999-12-31"],
+      ["a start in year 9999", "from=9999-06-01"],
+      ["year 0", "from=0000-01-01"],
+      ["year 1", "from=0001-01-01"],
     ] as const
   ).map(([name, query]): RouteCase => ({ group: "audit trail", name, as: RHEA, status: 400, send: () => getAudit(query) })),
   { group: "audit trail", name: "a technician", as: INES, status: 403, send: () => getAudit("page=1") },
@@ -538,7 +556,8 @@ async function signIn(credentials: unknown): Promise<ActionState> {
     const user = await provider.options.authorize(credentials, {});
     return { ok: Boolean(user), message: null, fieldErrors: {} };
   } catch (err) {
-    return { ok: false, message: (err as Error).message, fieldErrors: {} };
+    // The refusal is a code; the sign-in page shows its sentence (lib/auth/sign-in-errors.ts).
+    return { ok: false, message: signInErrorMessage((err as Error).message), fieldErrors: {} };
   }
 }
 

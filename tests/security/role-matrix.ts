@@ -567,6 +567,24 @@ export const ACTION_MATRIX: Record<string, CrossShopRow<ActionOutcome, CrossShop
     otherShop: "not-found",
     why: "People are managed by admins alone.",
   },
+  "lib/actions/users.ts#setActive": {
+    anonymous: "unauthorized",
+    technicianOwnJob: "forbidden",
+    technicianOtherJob: "forbidden",
+    supervisor: "forbidden",
+    admin: "ok",
+    otherShop: "not-found",
+    why: "People are managed by admins alone; deactivating ends the person's sessions.",
+  },
+  "lib/actions/users.ts#endSessions": {
+    anonymous: "unauthorized",
+    technicianOwnJob: "forbidden",
+    technicianOtherJob: "forbidden",
+    supervisor: "forbidden",
+    admin: "ok",
+    otherShop: "not-found",
+    why: "People are managed by admins alone.",
+  },
 };
 
 /** True for the statuses that mean the gate let the caller through. */

@@ -1,6 +1,6 @@
 // The sign-in throttle per network address, with a clock of the test's own.
 import { describe, expect, it } from "vitest";
-import { AddressThrottle, clientAddress, throttledMessage } from "@/lib/auth/throttle";
+import { ADDRESS_HEADER, AddressThrottle, clientAddress, requestAddress, stampAddress, throttledMessage } from "@/lib/auth/throttle";
 
 const MIN = 60_000;
 
@@ -35,12 +35,30 @@ describe("sign-in throttle per address", () => {
     expect(t.waitMinutes("addr-999", 1)).toBeGreaterThan(0);
   });
 
-  it("reads the address the nearest server wrote, not the client's own claim", () => {
-    expect(clientAddress({ "x-forwarded-for": "1.2.3.4, 10.0.0.9" })).toBe("10.0.0.9");
-    expect(clientAddress({ "x-forwarded-for": "10.0.0.9" })).toBe("10.0.0.9");
-    expect(clientAddress({ "x-real-ip": "10.0.0.7" })).toBe("10.0.0.7");
-    expect(clientAddress({})).toBe("unknown");
-    expect(clientAddress(undefined)).toBe("unknown");
+  it("takes the connection's address and ignores X-Forwarded-For when no proxy is trusted", () => {
+    for (const forged of ["1.2.3.4", "1.2.3.4, 10.0.0.9", undefined]) {
+      expect(clientAddress({ "x-forwarded-for": forged, "x-real-ip": "10.9.9.9" }, "192.0.2.10", 0), String(forged)).toBe("192.0.2.10");
+    }
+    expect(clientAddress({}, undefined, 0)).toBe("unknown");
+    expect(clientAddress(undefined, "", 0)).toBe("unknown");
+  });
+
+  it("behind trusted proxies, takes the entry the outermost one wrote, however many the client added", () => {
+    // One proxy (say nginx) appends the address it was reached from: the last entry.
+    expect(clientAddress({ "x-forwarded-for": "6.6.6.6, 5.5.5.5, 198.51.100.7" }, "10.0.0.2", 1)).toBe("198.51.100.7");
+    // Two proxies: the second from the right; the last is the first proxy's own address.
+    expect(clientAddress({ "x-forwarded-for": "6.6.6.6, 198.51.100.7, 10.0.0.3" }, "10.0.0.2", 2)).toBe("198.51.100.7");
+    // Fewer entries than proxies: the leftmost there is; none at all: the connection.
+    expect(clientAddress({ "x-forwarded-for": "198.51.100.7" }, "10.0.0.2", 2)).toBe("198.51.100.7");
+    expect(clientAddress({}, "10.0.0.2", 1)).toBe("10.0.0.2");
+  });
+
+  it("reads the production server's stamped address only under its token", () => {
+    const stamped = stampAddress("192.0.2.44", () => "token-made-at-start-up");
+    expect(requestAddress({ [ADDRESS_HEADER]: stamped, "x-forwarded-for": "6.6.6.6" }, 0)).toBe("192.0.2.44");
+    // A client's own header, without the token, is not read.
+    expect(requestAddress({ [ADDRESS_HEADER]: "guess 6.6.6.6" }, 0)).toBe("unknown");
+    expect(requestAddress({ [ADDRESS_HEADER]: "6.6.6.6", "x-forwarded-for": "7.7.7.7, 198.51.100.8" }, 1)).toBe("198.51.100.8");
   });
 
   it("says how long to wait", () => {

@@ -108,3 +108,15 @@ export function jobForm(overrides: Record<string, unknown> = {}): Record<string,
     ...overrides,
   };
 }
+
+/** A journal clearance read from the narrow strip (0.025–0.076 mm, retail guides; common practice), as the sheet sends it. */
+export const stripClearance = (journalId: string, clearanceMm: number) => ({
+  journalId,
+  clearanceMm,
+  method: "strip" as const,
+  stripId: "narrow" as const,
+  boreMm: null,
+  journalMm: null,
+  enteredUnit: "mm",
+  spec: null,
+});

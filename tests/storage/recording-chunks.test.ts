@@ -95,8 +95,8 @@ describe("chunked recording upload", () => {
     const last = await putChunk(recording, 2000, 2500, recording.subarray(2000));
     expect(last.status).toBe(201);
     expect(await bodyOf(last)).toEqual({ ok: true, bytes: 2500 });
-    expect(await sessionRow()).toMatchObject({ recordingKey: `recordings/${sessionId}.webm`, recordingType: "audio/webm", recordingBytes: 2500 });
-    expect(new Uint8Array(fs.readFileSync(path.join(dataDir, "blobs", "recordings", `${sessionId}.webm`)))).toEqual(recording);
+    expect(await sessionRow()).toMatchObject({ recordingKey: expect.stringMatching(new RegExp(`^recordings/${sessionId}-[0-9a-f-]{36}\\.webm$`)), recordingType: "audio/webm", recordingBytes: 2500 });
+    expect(new Uint8Array(fs.readFileSync(path.join(dataDir, "blobs", (await sessionRow()).recordingKey!)))).toEqual(recording);
     expect(leftovers()).toEqual([]);
     expect(await status()).toEqual({ received: 0, total: null });
   });
@@ -150,7 +150,7 @@ describe("uploadInChunks", () => {
       "GET",
       "PUT bytes 2000-2499/2500",
     ]);
-    expect(new Uint8Array(fs.readFileSync(path.join(dataDir, "blobs", "recordings", `${sessionId}.webm`)))).toEqual(recording);
+    expect(new Uint8Array(fs.readFileSync(path.join(dataDir, "blobs", (await sessionRow()).recordingKey!)))).toEqual(recording);
   });
 
   it("picks up an upload left unfinished by an earlier page", async () => {

@@ -74,17 +74,18 @@ describe("recording upload sniffing", () => {
     const webm = concat(ebmlHeader(), new Uint8Array(3000).fill(7));
     const res = await upload(webm, "application/octet-stream");
     expect(res.status).toBe(201);
-    expect(await sessionRow()).toMatchObject({ recordingKey: `recordings/${sessionId}.webm`, recordingType: "audio/webm", recordingBytes: webm.length });
-    expect(new Uint8Array(fs.readFileSync(path.join(recordings, `${sessionId}.webm`)))).toEqual(webm);
+    expect(await sessionRow()).toMatchObject({ recordingKey: expect.stringMatching(new RegExp(`^recordings/${sessionId}-[0-9a-f-]{36}\\.webm$`)), recordingType: "audio/webm", recordingBytes: webm.length });
+    expect(new Uint8Array(fs.readFileSync(path.join(dataDir, "blobs", (await sessionRow()).recordingKey!)))).toEqual(webm);
 
     const ogg = concat(oggOpusPage, new Uint8Array(500).fill(3));
     expect((await upload(ogg, "audio/wav")).status).toBe(201);
-    expect(await sessionRow()).toMatchObject({ recordingKey: `recordings/${sessionId}.ogg`, recordingType: "audio/ogg; codecs=opus" });
+    expect(await sessionRow()).toMatchObject({ recordingKey: expect.stringMatching(new RegExp(`^recordings/${sessionId}-[0-9a-f-]{36}\\.ogg$`)), recordingType: "audio/ogg; codecs=opus" });
     // The replaced WebM is not kept alongside.
-    expect(listed()).toEqual([`${sessionId}.ogg`]);
+    expect(listed()).toEqual([(await sessionRow()).recordingKey!.slice("recordings/".length)]);
 
     expect((await upload(wavFile, "audio/ogg")).status).toBe(201);
     expect(await sessionRow()).toMatchObject({ recordingType: "audio/wav", recordingBytes: wavFile.length });
-    expect(listed()).toEqual([`${sessionId}.wav`]);
+    expect(listed()).toEqual([(await sessionRow()).recordingKey!.slice("recordings/".length)]);
+    expect(listed()).toEqual([expect.stringMatching(/\.wav$/)]);
   });
 });

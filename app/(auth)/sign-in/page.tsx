@@ -2,6 +2,7 @@ import type { Metadata } from "next";
 import { redirect } from "next/navigation";
 import { currentActor } from "@/lib/auth/guard";
 import { SignInForm } from "@/components/auth/sign-in-form";
+import { signInErrorMessage } from "@/lib/auth/sign-in-errors";
 
 export const metadata: Metadata = { title: "Sign in" };
 
@@ -21,7 +22,8 @@ export default async function SignInPage({ searchParams }: PageProps<"/sign-in">
   const params = await searchParams;
   const callbackUrl = safeCallback(params.callbackUrl);
   if (await currentActor()) redirect(callbackUrl);
-  const initialError = typeof params.error === "string" && params.error !== "CredentialsSignin" ? params.error : null;
+  // Our own sentence for the code in the address, never the address's text.
+  const initialError = signInErrorMessage(Array.isArray(params.error) ? params.error[0] : params.error);
   return (
     <main className="flex min-h-dvh items-center justify-center bg-ink p-4">
       <div className="w-full max-w-sm rounded-2xl bg-paper p-6 shadow-xl sm:p-8">

@@ -4,6 +4,7 @@ import { NextResponse } from "next/server";
 import { getDb } from "@/db/client";
 import { guardedRoute } from "@/lib/auth/guard";
 import { parseId } from "@/lib/http";
+import { declaredBody } from "@/lib/storage/intact";
 import { addSeatPhoto, listSeatPhotos, MAX_PHOTO_BYTES, tooLargePhoto } from "@/lib/storage/photos";
 
 type Ctx = { params: Promise<{ seatId: string }> };
@@ -11,9 +12,10 @@ type Ctx = { params: Promise<{ seatId: string }> };
 /** Stores one photo (JPEG, PNG or WebP, read from its bytes) of the seat. */
 export const POST = guardedRoute("jobs:work", async (req, ctx: Ctx, actor) => {
   const id = parseId((await ctx.params).seatId, "seatId");
+  const declared = declaredBody(req.headers);
   // Refused before the body is read: a declared size over the limit will not fit.
-  if (Number(req.headers.get("content-length") ?? "0") > MAX_PHOTO_BYTES) throw tooLargePhoto();
-  const photo = await addSeatPhoto(await getDb(), actor, id, req.body);
+  if ((declared.bytes ?? 0) > MAX_PHOTO_BYTES) throw tooLargePhoto();
+  const photo = await addSeatPhoto(await getDb(), actor, id, req.body, declared);
   return NextResponse.json(photo, { status: 201 });
 });
 

@@ -7,6 +7,7 @@ import { SESSION_NOT_FOUND } from "@/lib/bench/rules";
 import { getSessionForUpload } from "@/lib/bench/service";
 import { NotFoundError } from "@/lib/errors";
 import { parseId } from "@/lib/http";
+import { declaredBody } from "@/lib/storage/intact";
 import { blobStore } from "@/lib/storage";
 import { MAX_RECORDING_BYTES, storeRecording, tooLargeRecording } from "@/lib/storage/recording-upload";
 
@@ -19,10 +20,10 @@ export const PUT = guardedRoute("jobs:work", async (req, ctx: RouteContext<"/api
   const id = parseId(sessionId, "sessionId");
   const db = await getDb();
   await getSessionForUpload(db, actor, id);
+  const declared = declaredBody(req.headers);
   // Refused before the body is read: a declared size over the limit will not fit.
-  const declared = Number(req.headers.get("content-length") ?? "0");
-  if (declared > MAX_RECORDING_BYTES) throw tooLargeRecording();
-  const stored = await storeRecording(db, actor, id, req.body);
+  if ((declared.bytes ?? 0) > MAX_RECORDING_BYTES) throw tooLargeRecording();
+  const stored = await storeRecording(db, actor, id, req.body, declared);
   return NextResponse.json({ ok: true, bytes: stored.bytes }, { status: 201 });
 });
 

@@ -5,11 +5,12 @@
 import { NextResponse } from "next/server";
 import { z } from "zod";
 import { getDb } from "@/db/client";
-import { guardedRoute } from "@/lib/auth/guard";
+import { guardedRoute, type Actor } from "@/lib/auth/guard";
 import { getSessionForUpload } from "@/lib/bench/service";
 import { BadRequestError, UnsupportedMediaTypeError } from "@/lib/errors";
 import { parseId } from "@/lib/http";
 import { blobStore, TooLargeError, type BlobStore } from "@/lib/storage";
+import { oneAtATime } from "@/lib/storage/one-at-a-time";
 import { MAX_RECORDING_BYTES, sniffRecording, storeRecording, tooLargeRecording } from "@/lib/storage/recording-upload";
 
 type Ctx = { params: Promise<{ sessionId: string }> };
@@ -93,6 +94,11 @@ const RANGE = /^bytes (\d{1,12})-(\d{1,12})\/(\d{1,12})$/;
  */
 export const PUT = guardedRoute("jobs:work", async (req, ctx: Ctx, actor) => {
   const id = parseId((await ctx.params).sessionId, "sessionId");
+  // One chunk of a session's upload at a time: each reads the manifest, adds to it and writes it back.
+  return oneAtATime(`recording-chunks/${id}`, () => putChunk(req, id, actor));
+});
+
+async function putChunk(req: Request, id: string, actor: Actor): Promise<Response> {
   const db = await getDb();
   await getSessionForUpload(db, actor, id);
   const m = RANGE.exec(req.headers.get("content-range")?.trim() ?? "");
@@ -144,7 +150,7 @@ export const PUT = guardedRoute("jobs:work", async (req, ctx: Ctx, actor) => {
   if (start + length < total) return NextResponse.json(status(manifest));
 
   try {
-    const stored = await storeRecording(db, actor, id, assembled(store, id, manifest));
+    const stored = await storeRecording(db, actor, id, assembled(store, id, manifest), { bytes: total, sha256: null });
     await discard(store, id, manifest);
     return NextResponse.json({ ok: true, bytes: stored.bytes }, { status: 201 });
   } catch (err) {
@@ -152,7 +158,7 @@ export const PUT = guardedRoute("jobs:work", async (req, ctx: Ctx, actor) => {
     if (err instanceof UnsupportedMediaTypeError) await discard(store, id, manifest);
     throw err;
   }
-});
+}
 
 function conflict(message: string, expectedOffset: number) {
   return NextResponse.json(
