@@ -165,7 +165,7 @@ describe("bench screen with a fake microphone", () => {
   it("explains a refused microphone instead of showing a blank screen", async () => {
     browser = await launchBrowser(["--use-fake-device-for-media-stream"]);
     const context = await browser.newContext({ ...PHONE });
-    const tech = DEMO_USERS.find((u) => u.email.startsWith(who))!;
+    const tech = DEMO_USERS.find((u) => u.email.startsWith("ines"))!;
     const page = await signIn(context, baseURL, tech.email, tech.password);
     await page.waitForURL(/\/jobs$/);
     const { jobs } = (await (await page.request.get(`${baseURL}/api/jobs`)).json()) as { jobs: Array<{ id: string; number: string }> };
