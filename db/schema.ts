@@ -328,6 +328,8 @@ export const strokes = pgTable(
     onsetDb: real("onset_db").notNull(),
     bodyDb: real("body_db").notNull(),
     contrastDb: real("contrast_db").notNull(),
+    // Grind-band body over the room's grind-band noise, dB; null for strokes from phones that did not send it.
+    bandSnrDb: real("band_snr_db"),
     flags: text("flags").array().notNull().default(sql`'{}'::text[]`),
     createdAt: timestamp("created_at", { withTimezone: true }).notNull().defaultNow(),
   },

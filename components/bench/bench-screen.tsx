@@ -186,6 +186,7 @@ export function BenchScreen({ initial, initialStage }: { initial: SeatReport; in
         onsetDb: s.onsetDb,
         bodyDb: s.bodyDb,
         contrastDb: s.contrastDb,
+        bandSnrDb: s.bandSnrDb,
         flags: s.flags,
       };
       setLocal((l) => [...l, { sessionId, stroke }]);

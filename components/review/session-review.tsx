@@ -20,6 +20,8 @@ export interface ReviewStroke {
   onsetDb: number;
   bodyDb: number;
   contrastDb: number;
+  /** Band SNR, dB; absent or null for strokes from phones that did not send it. */
+  bandSnrDb?: number | null;
   flags: string[];
 }
 
@@ -305,7 +307,8 @@ export function SessionReview({
                   <th className="py-2 pr-3">Onset</th>
                   <th className="py-2 pr-3">Body</th>
                   <th className="py-2 pr-3">Contrast</th>
-                  <th className="py-2">Flags</th>
+                  <th className="py-2 pr-3" title="Body over the room's noise in the 2–10 kHz band">SNR</th>
+                  <th className="py-2">Judged</th>
                 </tr>
               </thead>
               <tbody>
@@ -335,7 +338,8 @@ export function SessionReview({
                     <td className="py-2 pr-3">{s.onsetDb.toFixed(1)} dB</td>
                     <td className="py-2 pr-3">{s.bodyDb.toFixed(1)} dB</td>
                     <td className="py-2 pr-3 font-semibold">{s.contrastDb.toFixed(1)} dB</td>
-                    <td className="py-2">{s.flags.length ? `Left out: ${s.flags.map(flagText).join(", ")}` : "—"}</td>
+                    <td className="py-2 pr-3">{s.bandSnrDb == null ? "—" : `${s.bandSnrDb.toFixed(0)} dB`}</td>
+                    <td className="py-2">{s.flags.length ? `Left out: ${s.flags.map(flagText).join(", ")}` : "Yes"}</td>
                   </tr>
                 ))}
               </tbody>

@@ -81,6 +81,8 @@ export interface StageRecord {
     onsetDb: number;
     bodyDb: number;
     contrastDb: number;
+    /** Band SNR, dB; null for strokes from phones that did not send it. */
+    bandSnrDb: number | null;
     flags: string[];
   }>;
   verdict: SeatVerdict;
@@ -131,6 +133,7 @@ async function stageRecords(db: Reader, seatId: string): Promise<Record<LappingS
       onsetDb: strokes.onsetDb,
       bodyDb: strokes.bodyDb,
       contrastDb: strokes.contrastDb,
+      bandSnrDb: strokes.bandSnrDb,
       flags: strokes.flags,
     })
     .from(strokes)
@@ -149,6 +152,7 @@ async function stageRecords(db: Reader, seatId: string): Promise<Record<LappingS
         onsetDb: s.onsetDb,
         bodyDb: s.bodyDb,
         contrastDb: s.contrastDb,
+        bandSnrDb: s.bandSnrDb,
         flags: s.flags,
       }));
     return {

@@ -123,15 +123,26 @@ const CONTEXTS = new FixedStatement<"sessionIds">(
 // One insert for every stroke of the batch; a stroke already stored (or sent twice in this batch)
 // under its session and clientId is skipped, as on its own. The values go in as one array per
 // column (unnest): on PGlite that is about twice as fast as a VALUES row per stroke.
-const INSERT_COLUMNS = [strokes.sessionId, strokes.clientId, strokes.index, strokes.startS, strokes.endS, strokes.onsetDb, strokes.bodyDb, strokes.contrastDb, strokes.flags];
-const INSERT = new FixedStatement<"sessionIds" | "clientIds" | "indexes" | "starts" | "ends" | "onsets" | "bodies" | "contrasts" | "flags">(
+const INSERT_COLUMNS = [
+  strokes.sessionId,
+  strokes.clientId,
+  strokes.index,
+  strokes.startS,
+  strokes.endS,
+  strokes.onsetDb,
+  strokes.bodyDb,
+  strokes.contrastDb,
+  strokes.bandSnrDb,
+  strokes.flags,
+];
+const INSERT = new FixedStatement<"sessionIds" | "clientIds" | "indexes" | "starts" | "ends" | "onsets" | "bodies" | "contrasts" | "snrs" | "flags">(
   "stroke_insert",
   (v) => sql`
     insert into ${strokes} (${sql.join(INSERT_COLUMNS.map((c) => sql.identifier(c.name)), sql`, `)})
-    select s, c, i, st, en, o, b, k, coalesce(string_to_array(nullif(f, ''), '|'), '{}')
+    select s, c, i, st, en, o, b, k, n, coalesce(string_to_array(nullif(f, ''), '|'), '{}')
     from unnest(${v.sessionIds}::uuid[], ${v.clientIds}::uuid[], ${v.indexes}::int[],
       ${v.starts}::real[], ${v.ends}::real[], ${v.onsets}::real[], ${v.bodies}::real[],
-      ${v.contrasts}::real[], ${v.flags}::text[]) as u(s, c, i, st, en, o, b, k, f)
+      ${v.contrasts}::real[], ${v.snrs}::real[], ${v.flags}::text[]) as u(s, c, i, st, en, o, b, k, n, f)
     on conflict (${sql.identifier(strokes.sessionId.name)}, ${sql.identifier(strokes.clientId.name)}) do nothing
     returning ${sql.identifier(strokes.id.name)}, ${sql.identifier(strokes.sessionId.name)}, ${sql.identifier(strokes.clientId.name)}`,
 );
@@ -233,6 +244,7 @@ async function writeBatch(tx: Db, batch: StrokeSave[], statements: Statements): 
       onsets: rows.map((r) => r.onsetDb),
       bodies: rows.map((r) => r.bodyDb),
       contrasts: rows.map((r) => r.contrastDb),
+      snrs: rows.map((r) => r.bandSnrDb ?? null),
       flags: rows.map((r) => r.flags.join("|")),
     },
   };

@@ -34,6 +34,10 @@ export const strokeInputSchema = z
     onsetDb: level("onsetDb"),
     bodyDb: level("bodyDb"),
     contrastDb: single("contrastDb", " in dB", -60, 60, "contrastDb below -60 dB is not plausible.", "contrastDb above 60 dB is not plausible."),
+    // Older phone builds do not send it.
+    bandSnrDb: single("bandSnrDb", " in dB", -100, 200, "bandSnrDb below -100 dB is not plausible.", "bandSnrDb above 200 dB is not plausible.")
+      .nullable()
+      .optional(),
     flags: z
       .array(z.enum(STROKE_FLAGS, { error: `Each flag must be one of: ${STROKE_FLAGS.join(", ")}.` }))
       .max(STROKE_FLAGS.length)

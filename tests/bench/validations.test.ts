@@ -34,6 +34,9 @@ describe("strokeInputSchema", () => {
     expect(firstPath(stroke({ clientId: "1234" }))).toEqual(["clientId"]);
     expect(firstPath(stroke({ flags: ["clipping", "too-quiet", "clipping"] }))).toEqual(["flags"]);
     expect(firstPath(stroke({ flags: ["talking"] }))).toEqual(["flags.0"]);
+    expect(firstPath(stroke({ bandSnrDb: "clean" }))).toEqual(["bandSnrDb"]);
+    expect(firstPath(stroke({ bandSnrDb: 500 }))).toEqual(["bandSnrDb"]);
+    expect(strokeInputSchema.parse({ ...strokeInputs([3])[0], bandSnrDb: 12.345678 }).bandSnrDb).toBe(Math.fround(12.345678));
     // Every reason the engine gives is accepted, together.
     expect(strokeInputSchema.safeParse({ ...strokeInputs([3])[0], flags: ["clipping", "too-quiet", "speech", "impulsive", "start-not-heard", "end-not-heard"] }).success).toBe(true);
   });

@@ -229,7 +229,8 @@ describe("the server's verdict", () => {
     async (flag) => {
       const seat = await findSeat(db(), "MHW-0141", { speech: "4I1", impulsive: "4I2", "start-not-heard": "4E1", "end-not-heard": "4E2", clipping: "2E2" }[flag]);
       const session = await open(seat, "coarse");
-      const loud = strokeInputs([6, 5, 4.5, 4, 3.8, 3.6], 1);
+      // The judged ones carry their band SNR; the doubted ones come as an older phone sends them, without.
+      const loud = strokeInputs([6, 5, 4.5, 4, 3.8, 3.6], 1).map((s, i) => ({ ...s, bandSnrDb: 30 + i / 4 }));
       const doubted = strokeInputs([0.2, 0.2, 0.2, 0.2], 7).map((s) => ({ ...s, flags: [flag] }));
       const res = await send(session, [...loud, ...doubted]);
       expect(res.strokeCount).toBe(10);
@@ -239,8 +240,9 @@ describe("the server's verdict", () => {
       expect(res.verdict.state).toBe("fading");
       // The seat read gives the same verdict from the stored strokes.
       const read = await seatRoute.GET(jsonRequest(`/api/seats/${seat}`, undefined, "GET"), { params: Promise.resolve({ seatId: seat }) });
-      const report = (await read.json()) as { stages: { coarse: { verdict: SeatVerdict; strokes: Array<{ flags: string[] }> } } };
+      const report = (await read.json()) as { stages: { coarse: { verdict: SeatVerdict; strokes: Array<{ flags: string[]; bandSnrDb: number | null }> } } };
       expect(report.stages.coarse.verdict.leftOutStrokes).toBe(4);
+      expect(report.stages.coarse.strokes.map((st) => st.bandSnrDb)).toEqual([30, 30.25, 30.5, 30.75, 31, 31.25, null, null, null, null]);
       expect(report.stages.coarse.strokes.filter((st) => st.flags.includes(flag))).toHaveLength(4);
     },
   );

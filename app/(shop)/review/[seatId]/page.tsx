@@ -5,6 +5,7 @@ import { z } from "zod";
 import { getDb } from "@/db/client";
 import { SeatPhotos } from "@/components/review/seat-photos";
 import { SessionReview } from "@/components/review/session-review";
+import { leftOutSummary } from "@/lib/audio/verdict";
 import { requireActor } from "@/lib/auth/guard";
 import { getSeatReport, type StageRecord } from "@/lib/bench/service";
 import { NotFoundError } from "@/lib/errors";
@@ -97,13 +98,14 @@ export default async function ReviewPage({ params, searchParams }: PageProps<"/r
                 key={chosen.id}
                 sessionId={chosen.id}
                 hasRecording={chosen.hasRecording}
-                strokes={strokes.map(({ n, startS, endS, onsetDb, bodyDb, contrastDb, flags }) => ({
+                strokes={strokes.map(({ n, startS, endS, onsetDb, bodyDb, contrastDb, bandSnrDb, flags }) => ({
                   n,
                   startS,
                   endS,
                   onsetDb,
                   bodyDb,
                   contrastDb,
+                  bandSnrDb,
                   flags,
                 }))}
                 fit={stage.verdict.fit}
@@ -120,14 +122,18 @@ export default async function ReviewPage({ params, searchParams }: PageProps<"/r
 
 function verdictText(stage: StageRecord): string {
   const v = stage.verdict;
-  switch (v.state) {
-    case "settled":
-      return `settled at stroke ${v.settled?.atStroke ?? "?"}`;
-    case "not-settling":
-      return "not settling — check the compound and the seat";
-    case "fading":
-      return v.strokesRemaining !== null ? `fading, about ${v.strokesRemaining} strokes to go` : "fading";
-    default:
-      return "no strokes yet";
-  }
+  const leftOut = leftOutSummary(v);
+  const base = (() => {
+    switch (v.state) {
+      case "settled":
+        return `settled at stroke ${v.settled?.atStroke ?? "?"}`;
+      case "not-settling":
+        return "not settling — check the compound and the seat";
+      case "fading":
+        return v.strokesRemaining !== null ? `fading, about ${v.strokesRemaining} strokes to go` : "fading";
+      default:
+        return stage.strokes.length > 0 ? "nothing judged yet" : "no strokes yet";
+    }
+  })();
+  return leftOut ? `${base} (${leftOut})` : base;
 }

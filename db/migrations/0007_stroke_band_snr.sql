@@ -1,0 +1,1 @@
+ALTER TABLE "strokes" ADD COLUMN "band_snr_db" real;
