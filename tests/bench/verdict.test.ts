@@ -238,7 +238,7 @@ describe("the server's verdict", () => {
       expect(res.verdict.leftOutByFlag).toEqual({ [flag]: 4 });
       expect(res.verdict.state).toBe("fading");
       // The seat read gives the same verdict from the stored strokes.
-      const read = await seatRoute.GET(new Request(`http://localhost/api/seats/${seat}`), { params: Promise.resolve({ seatId: seat }) });
+      const read = await seatRoute.GET(jsonRequest(`/api/seats/${seat}`, undefined, "GET"), { params: Promise.resolve({ seatId: seat }) });
       const report = (await read.json()) as { stages: { coarse: { verdict: SeatVerdict; strokes: Array<{ flags: string[] }> } } };
       expect(report.stages.coarse.verdict.leftOutStrokes).toBe(4);
       expect(report.stages.coarse.strokes.filter((st) => st.flags.includes(flag))).toHaveLength(4);
