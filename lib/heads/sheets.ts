@@ -25,6 +25,10 @@ import { judgeRange, MEASUREMENT_KINDS, type MeasurementKind, type RangeVerdict 
 import {
   centreOutwardOrder,
   checkTick,
+  confirmationFigure,
+  deviationMessage,
+  deviationNeedsConfirmation,
+  lastTick,
   nextExpectedTick,
   stagesFor,
   validateOrder,
@@ -249,8 +253,17 @@ export interface TorqueSetupInput {
   order: "centre-out" | string[];
   finalNm: number | null;
   stageFractions: number[];
+  /** Whether the stages were typed as shares of the final or as torques; kept in the audit entry. */
+  stagesGivenAs?: "fractions" | "torques";
+  /** The final torque in N·m the technician confirmed against the specification in force. */
+  confirmedFinalNm?: number | null;
 }
 
+/**
+ * Sets up a camshaft's cap torque sheet, or replaces its set-up while no bolt is ticked. Refuses a
+ * cap count other than the camshaft's journals, and a final torque more than 10 % from the
+ * specification in force unless the technician confirmed that very figure.
+ */
 export async function setUpTorqueSheet(db: Db, actor: Actor, input: TorqueSetupInput): Promise<string> {
   const [row] = await db
     .select({ camshaft: camshafts, head: heads, job: jobs })
@@ -262,28 +275,52 @@ export async function setUpTorqueSheet(db: Db, actor: Actor, input: TorqueSetupI
   if (!row) throw new BadRequestError("That camshaft does not exist on this head.", { camshaftId: ["No such camshaft."] });
   assertOnJob(input.jobId, row.job, "That camshaft does not exist on this head.", { camshaftId: ["No such camshaft."] });
   assertEditable(actor, row.job);
+  // One cap per journal: a different count means the wrong camshaft or a miscount at the bench.
+  if (input.capCount !== row.camshaft.journalCount) {
+    const message = `${row.camshaft.label} has ${row.camshaft.journalCount} journals, so ${row.camshaft.journalCount} caps, not ${input.capCount}: count the caps again.`;
+    throw new BadRequestError(message, { capCount: [message] });
+  }
   const order = input.order === "centre-out" ? centreOutwardOrder(input.capCount, input.boltsPerCap) : input.order;
   const orderErrors = validateOrder(order, input.capCount, input.boltsPerCap);
   if (orderErrors.length) throw new BadRequestError(orderErrors[0]!, { order: orderErrors });
+  const torqueSpec = await effectiveSpec(db, row.job.id, "cap_bolt_torque");
   let finalNm = input.finalNm;
   let specSource: "entered" | "library" | "job_override" = "entered";
-  const torqueSpec = await effectiveSpec(db, row.job.id, "cap_bolt_torque");
   // A figure typed in that equals the specification's is the specification's.
   if (finalNm !== null && torqueSpec?.nominal != null && Math.abs(torqueSpec.nominal - finalNm) < 0.05) specSource = torqueSpec.source;
   if (finalNm === null) {
-    const spec = await effectiveSpec(db, row.job.id, "cap_bolt_torque");
-    if (!spec?.nominal) {
+    if (!torqueSpec?.nominal) {
       throw new BadRequestError("Enter the final torque: the engine's specification has none.", { finalTorque: ["Enter the engine maker's figure."] });
     }
-    finalNm = spec.nominal;
-    specSource = spec.source;
+    finalNm = torqueSpec.nominal;
+    specSource = torqueSpec.source;
+  }
+  const specNm = torqueSpec?.nominal ?? null;
+  if (deviationNeedsConfirmation(finalNm, specNm)) {
+    const confirmed = input.confirmedFinalNm;
+    if (confirmed == null || confirmationFigure(confirmed) !== confirmationFigure(finalNm)) {
+      const message = deviationMessage(finalNm, specNm!);
+      throw new BadRequestError(message, { confirmDeviation: [message] });
+    }
   }
   stagesFor(finalNm, input.stageFractions);
+  const setUp = {
+    capCount: input.capCount,
+    boltsPerCap: input.boltsPerCap,
+    order,
+    finalNm,
+    stageFractions: input.stageFractions,
+    stagesGivenAs: input.stagesGivenAs ?? "fractions",
+    specSource,
+    specNm,
+  };
   return db.transaction(async (tx) => {
     const [existing] = await tx.select().from(torqueSheets).where(eq(torqueSheets.camshaftId, input.camshaftId)).for("update");
     if (existing) {
       const ticked = await tx.select({ id: torqueTicks.id }).from(torqueTicks).where(eq(torqueTicks.sheetId, existing.id)).limit(1);
-      if (ticked.length) throw new ConflictError("Bolts are already ticked on this sheet; its order and torque can no longer change.");
+      if (ticked.length) {
+        throw new ConflictError("Bolts are already ticked on this sheet; its order and torque can no longer change. Undo the ticks first if the set-up was wrong.");
+      }
       await tx.delete(torqueSheets).where(eq(torqueSheets.id, existing.id));
     }
     const [sheet] = await tx
@@ -303,11 +340,26 @@ export async function setUpTorqueSheet(db: Db, actor: Actor, input: TorqueSetupI
       .returning({ id: torqueSheets.id });
     await recordAudit(tx, {
       actorId: actor.id,
-      action: "torque_sheet.set_up",
+      action: existing ? "torque_sheet.changed" : "torque_sheet.set_up",
       entityType: "torque_sheet",
       entityId: sheet!.id,
       jobId: row.job.id,
-      after: { camshaft: row.camshaft.label, order, finalNm, stageFractions: input.stageFractions, specSource },
+      before: existing
+        ? {
+            sheetId: existing.id,
+            capCount: existing.capCount,
+            boltsPerCap: existing.boltsPerCap,
+            order: existing.boltOrder,
+            finalNm: existing.finalNm,
+            stageFractions: existing.stageFractions,
+            specSource: existing.specSource,
+          }
+        : null,
+      after: {
+        camshaft: row.camshaft.label,
+        ...setUp,
+        confirmedAgainstSpec: deviationNeedsConfirmation(finalNm!, specNm) ? { finalNm, specNm } : null,
+      },
     });
     return sheet!.id;
   });
@@ -326,6 +378,8 @@ export interface TorqueSheetView {
   stages: TighteningStage[];
   ticks: Tick[];
   next: Tick | null;
+  /** The tick that may be undone: the latest in the sequence. */
+  last: Tick | null;
 }
 
 export async function getTorqueSheets(db: Db, shopId: string, jobId: string) {
@@ -351,6 +405,7 @@ export async function getTorqueSheets(db: Db, shopId: string, jobId: string) {
       stages,
       ticks: mine,
       next: nextExpectedTick(s.boltOrder, stages, mine),
+      last: lastTick(s.boltOrder, stages, mine),
     };
   });
   return {
@@ -391,6 +446,52 @@ export async function tickBolt(db: Db, actor: Actor, input: { jobId?: string; sh
       after: { bolt: input.boltId, stage: input.stage, nm: stage.nm },
     });
     return nextExpectedTick(row.sheet.boltOrder, stages, [...done, { stage: input.stage, boltId: input.boltId }]);
+  });
+}
+
+/**
+ * Undoes a tick made by mistake: only the latest tick of the sheet, named by its bolt and stage so
+ * a phone showing an older sheet cannot undo the wrong one, and only with a reason. The tick goes,
+ * the audit trail keeps who ticked it, when, who undid it and why.
+ */
+export async function undoTick(
+  db: Db,
+  actor: Actor,
+  input: { jobId?: string; sheetId: string; stage: number; boltId: string; reason: string },
+): Promise<Tick | null> {
+  const [row] = await db
+    .select({ sheet: torqueSheets, job: jobs })
+    .from(torqueSheets)
+    .innerJoin(heads, eq(heads.id, torqueSheets.headId))
+    .innerJoin(jobs, eq(jobs.id, heads.jobId))
+    .where(and(eq(torqueSheets.id, input.sheetId), eq(jobs.shopId, actor.shopId)))
+    .limit(1);
+  if (!row) throw new NotFoundError("That torque sheet does not exist in your shop.");
+  assertOnJob(input.jobId, row.job, "That torque sheet is not on this head.", { sheetId: ["No such torque sheet."] });
+  assertEditable(actor, row.job);
+  const stages = stagesFor(row.sheet.finalNm, row.sheet.stageFractions);
+  return db.transaction(async (tx) => {
+    await tx.select({ id: torqueSheets.id }).from(torqueSheets).where(eq(torqueSheets.id, input.sheetId)).for("update");
+    const rows = await tx.select().from(torqueTicks).where(eq(torqueTicks.sheetId, input.sheetId));
+    const latest = lastTick(row.sheet.boltOrder, stages, rows);
+    if (!latest) throw new ConflictError("No bolt is ticked on this sheet: there is nothing to undo.");
+    if (latest.stage !== input.stage || latest.boltId !== input.boltId) {
+      throw new ConflictError(
+        `Only the latest tick can be undone: ${latest.boltId} at stage ${latest.stage}. Undo ticks from the latest back.`,
+      );
+    }
+    const tick = rows.find((t) => t.stage === latest.stage && t.boltId === latest.boltId)!;
+    await tx.delete(torqueTicks).where(eq(torqueTicks.id, tick.id));
+    await recordAudit(tx, {
+      actorId: actor.id,
+      action: "torque.tick_undone",
+      entityType: "torque_sheet",
+      entityId: input.sheetId,
+      jobId: row.job.id,
+      before: { bolt: tick.boltId, stage: tick.stage, tickedById: tick.tickedById, tickedAt: tick.tickedAt.toISOString() },
+      after: { reason: input.reason },
+    });
+    return latest;
   });
 }
 

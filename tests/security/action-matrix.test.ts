@@ -36,7 +36,7 @@ const { resetServerEnvCache } = await import("@/lib/env");
 const { initialActionState } = await import("@/lib/actions/state");
 const { forbiddenMessage } = await import("@/lib/auth/guard");
 const { enqueueMail } = await import("@/lib/mail/outbox");
-const { getTorqueSheets, setUpTorqueSheet } = await import("@/lib/heads/sheets");
+const { getTorqueSheets, setUpTorqueSheet, tickBolt } = await import("@/lib/heads/sheets");
 const { startSession } = await import("@/lib/bench/service");
 const { addSeatPhoto } = await import("@/lib/storage/photos");
 const { storeRecording } = await import("@/lib/storage/recording-upload");
@@ -411,6 +411,16 @@ const CASES: Record<string, Case> = {
       action("lib/actions/sheets.ts#saveTick")(
         prev,
         form({ jobId: c.job.jobId, sheetId, stage: String(next.stage), boltId: next.boltId }),
+      );
+  },
+  "lib/actions/sheets.ts#undoLastTick": async (c) => {
+    // A tick made by the supervisor; each allowed call undoes it.
+    const { sheetId, next } = await torqueSheet(c);
+    await tickBolt(db(), await h.actorOf(db(), EMAIL.supervisor), { jobId: c.job.jobId, sheetId, ...next });
+    return () =>
+      action("lib/actions/sheets.ts#undoLastTick")(
+        prev,
+        form({ jobId: c.job.jobId, sheetId, stage: String(next.stage), boltId: next.boltId, reason: "Ticked the wrong bolt." }),
       );
   },
   "lib/actions/sheets.ts#saveValveIdentity": async (c) => {

@@ -495,6 +495,15 @@ export const ACTION_MATRIX: Record<string, CrossShopRow<ActionOutcome, CrossShop
     otherShop: "not-found",
     why: "Ticking a bolt is work on the job.",
   },
+  "lib/actions/sheets.ts#undoLastTick": {
+    anonymous: "unauthorized",
+    technicianOwnJob: "ok",
+    technicianOtherJob: "forbidden",
+    supervisor: "ok",
+    admin: "forbidden",
+    otherShop: "not-found",
+    why: "Undoing a mistaken tick is work on the job, like ticking.",
+  },
   "lib/actions/sheets.ts#saveValveIdentity": {
     anonymous: "unauthorized",
     technicianOwnJob: "ok",
