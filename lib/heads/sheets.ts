@@ -19,6 +19,7 @@ import type { Actor } from "@/lib/auth/guard";
 import { assertCanWorkOn } from "@/lib/auth/job-access";
 import { recordAudit } from "@/lib/audit";
 import { BadRequestError, ConflictError, NotFoundError } from "@/lib/errors";
+import { backToBenchForWork } from "@/lib/jobs/hand-in";
 import { isClosed } from "@/lib/jobs/lifecycle";
 import { judgeClearance, stripCheck, type ClearanceVerdict, type StripCheck, type StripId } from "@/lib/measure/clearance";
 import { judgeRange, MEASUREMENT_KINDS, type MeasurementKind, type RangeVerdict } from "@/lib/measure/results";
@@ -149,6 +150,7 @@ export async function recordJournalClearance(db: Db, actor: Actor, input: Cleara
       const [created] = await tx.insert(measurements).values(values).returning({ id: measurements.id });
       id = created!.id;
     }
+    await backToBenchForWork(tx, actor, row.job, "journal clearance");
     await recordAudit(tx, {
       actorId: actor.id,
       action: before ? "measurement.edited" : "measurement.recorded",
@@ -338,6 +340,7 @@ export async function setUpTorqueSheet(db: Db, actor: Actor, input: TorqueSetupI
         createdById: actor.id,
       })
       .returning({ id: torqueSheets.id });
+    await backToBenchForWork(tx, actor, row.job, "cap torque set-up");
     await recordAudit(tx, {
       actorId: actor.id,
       action: existing ? "torque_sheet.changed" : "torque_sheet.set_up",
@@ -417,18 +420,23 @@ export async function getTorqueSheets(db: Db, shopId: string, jobId: string) {
   };
 }
 
-export async function tickBolt(db: Db, actor: Actor, input: { jobId?: string; sheetId: string; stage: number; boltId: string }): Promise<Tick | null> {
+/** A torque sheet with its job and stages, refused unless it is in the caller's shop, on this job, and editable. */
+async function loadSheetForWork(db: Db, actor: Actor, sheetId: string, jobId: string | undefined) {
   const [row] = await db
     .select({ sheet: torqueSheets, job: jobs })
     .from(torqueSheets)
     .innerJoin(heads, eq(heads.id, torqueSheets.headId))
     .innerJoin(jobs, eq(jobs.id, heads.jobId))
-    .where(and(eq(torqueSheets.id, input.sheetId), eq(jobs.shopId, actor.shopId)))
+    .where(and(eq(torqueSheets.id, sheetId), eq(jobs.shopId, actor.shopId)))
     .limit(1);
   if (!row) throw new NotFoundError("That torque sheet does not exist in your shop.");
-  assertOnJob(input.jobId, row.job, "That torque sheet is not on this head.", { sheetId: ["No such torque sheet."] });
+  assertOnJob(jobId, row.job, "That torque sheet is not on this head.", { sheetId: ["No such torque sheet."] });
   assertEditable(actor, row.job);
-  const stages = stagesFor(row.sheet.finalNm, row.sheet.stageFractions);
+  return { ...row, stages: stagesFor(row.sheet.finalNm, row.sheet.stageFractions) };
+}
+
+export async function tickBolt(db: Db, actor: Actor, input: { jobId?: string; sheetId: string; stage: number; boltId: string }): Promise<Tick | null> {
+  const { stages, ...row } = await loadSheetForWork(db, actor, input.sheetId, input.jobId);
   return db.transaction(async (tx) => {
     // Lock the sheet so two phones ticking at once are checked one after the other.
     await tx.select({ id: torqueSheets.id }).from(torqueSheets).where(eq(torqueSheets.id, input.sheetId)).for("update");
@@ -436,6 +444,7 @@ export async function tickBolt(db: Db, actor: Actor, input: { jobId?: string; sh
     const check = checkTick(row.sheet.boltOrder, stages, done, { stage: input.stage, boltId: input.boltId });
     if (!check.ok) throw new ConflictError(check.message);
     await tx.insert(torqueTicks).values({ sheetId: input.sheetId, stage: input.stage, boltId: input.boltId, tickedById: actor.id });
+    await backToBenchForWork(tx, actor, row.job, "cap torque tick");
     const stage = stages.find((s) => s.stage === input.stage)!;
     await recordAudit(tx, {
       actorId: actor.id,
@@ -459,17 +468,7 @@ export async function undoTick(
   actor: Actor,
   input: { jobId?: string; sheetId: string; stage: number; boltId: string; reason: string },
 ): Promise<Tick | null> {
-  const [row] = await db
-    .select({ sheet: torqueSheets, job: jobs })
-    .from(torqueSheets)
-    .innerJoin(heads, eq(heads.id, torqueSheets.headId))
-    .innerJoin(jobs, eq(jobs.id, heads.jobId))
-    .where(and(eq(torqueSheets.id, input.sheetId), eq(jobs.shopId, actor.shopId)))
-    .limit(1);
-  if (!row) throw new NotFoundError("That torque sheet does not exist in your shop.");
-  assertOnJob(input.jobId, row.job, "That torque sheet is not on this head.", { sheetId: ["No such torque sheet."] });
-  assertEditable(actor, row.job);
-  const stages = stagesFor(row.sheet.finalNm, row.sheet.stageFractions);
+  const { stages, ...row } = await loadSheetForWork(db, actor, input.sheetId, input.jobId);
   return db.transaction(async (tx) => {
     await tx.select({ id: torqueSheets.id }).from(torqueSheets).where(eq(torqueSheets.id, input.sheetId)).for("update");
     const rows = await tx.select().from(torqueTicks).where(eq(torqueTicks.sheetId, input.sheetId));
@@ -482,6 +481,7 @@ export async function undoTick(
     }
     const tick = rows.find((t) => t.stage === latest.stage && t.boltId === latest.boltId)!;
     await tx.delete(torqueTicks).where(eq(torqueTicks.id, tick.id));
+    await backToBenchForWork(tx, actor, row.job, "cap torque tick undone");
     await recordAudit(tx, {
       actorId: actor.id,
       action: "torque.tick_undone",
@@ -561,6 +561,7 @@ export async function recordMeasurement(db: Db, actor: Actor, input: Measurement
         recordedById: actor.id,
       })
       .returning({ id: measurements.id });
+    await backToBenchForWork(tx, actor, job, MEASUREMENT_KINDS[input.kind].label.toLowerCase());
     await recordAudit(tx, {
       actorId: actor.id,
       action: "measurement.recorded",

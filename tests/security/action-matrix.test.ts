@@ -318,7 +318,12 @@ const CASES: Record<string, Case> = {
     // Technicians hand a job in for audit; supervisors and admins send it back to the queue.
     const to = isTechnician(c.caller) || c.caller === "anonymous" ? "awaiting_audit" : "queued";
     return () =>
-      action("lib/actions/jobs.ts#changeJobStatus")(prev, form({ jobId: c.job.jobId, to }));
+      action("lib/actions/jobs.ts#changeJobStatus")(prev, form({ jobId: c.job.jobId, to, confirmUnfinished: "yes" }));
+  },
+  "lib/actions/jobs.ts#takeHeadBack": async (c) => {
+    // Handed in, and no seat judged since: the audit has not started.
+    await setJob(c.job.jobId, "awaiting_audit");
+    return () => action("lib/actions/jobs.ts#takeHeadBack")(prev, form({ jobId: c.job.jobId }));
   },
   "lib/actions/mail.ts#retryMailAction": async (c) => {
     const id = await failedMail(c);

@@ -563,6 +563,11 @@ export const actionCases: ActionCase[] = [
   { group: "job actions", name: "editing another shop's job", as: RHEA, message: /your shop/, run: (f) => jobActions.updateJob(f.other.jobId, jobForm()) },
   { group: "job actions", name: "an unknown status", as: RHEA, field: "to", run: (f) => jobActions.changeJobStatus(initialActionState, form({ jobId: f.own.jobId, to: "exploded" })) },
   { group: "job actions", name: "moving another shop's job", as: RHEA, run: (f) => jobActions.changeJobStatus(initialActionState, form({ jobId: f.other.jobId, to: "awaiting_audit" })) },
+  { group: "job actions", name: "handing in unfinished work unconfirmed", as: INES, field: "confirmUnfinished", message: /^Unfinished — seats not settled in fine/, run: (f) => jobActions.changeJobStatus(initialActionState, form({ jobId: f.own.jobId, to: "awaiting_audit" })) },
+  { group: "job actions", name: "a hand-in confirmation that is not a tick", as: INES, field: "confirmUnfinished", run: (f) => jobActions.changeJobStatus(initialActionState, form({ jobId: f.own.jobId, to: "awaiting_audit", confirmUnfinished: "\u0000" })) },
+  { group: "job actions", name: "taking back a job that is not handed in", as: INES, message: /not awaiting audit/, run: (f) => jobActions.takeHeadBack(initialActionState, form({ jobId: f.own.jobId })) },
+  { group: "job actions", name: "taking back with a job id that is not one", as: INES, field: "jobId", run: () => jobActions.takeHeadBack(initialActionState, form({ jobId: "MHW-0141" })) },
+  { group: "job actions", name: "taking back another shop's job", as: RHEA, message: /your shop/, run: (f) => jobActions.takeHeadBack(initialActionState, form({ jobId: f.other.jobId })) },
   { group: "job actions", name: "a technician moving another's job", as: DOV, run: (f) => jobActions.changeJobStatus(initialActionState, form({ jobId: f.own.jobId, to: "awaiting_audit" })) },
 
   // createUser, resetPassword, changeRole
