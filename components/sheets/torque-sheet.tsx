@@ -44,6 +44,38 @@ function typedNm(text: string, unit: TorqueUnit): number | null {
   return v > 0 ? toNm(v, unit) : null;
 }
 
+/** A torque typed as text, kept in the form's state so that a change of unit can convert it. */
+function TypedTorque({
+  label,
+  name,
+  value,
+  onChange,
+  error,
+  wide = false,
+}: {
+  label: string;
+  name: string;
+  value: string;
+  onChange: (text: string) => void;
+  error: string | undefined;
+  wide?: boolean;
+}) {
+  return (
+    <label className={`flex flex-col text-sm font-semibold ${wide ? "col-span-2 sm:col-span-4" : ""}`}>
+      {label}
+      <input
+        name={name}
+        inputMode="decimal"
+        value={value}
+        onChange={(e) => onChange(e.target.value)}
+        className={`${field} figure`}
+        data-testid={name}
+      />
+      {error ? <span className={errorText}>{error}</span> : null}
+    </label>
+  );
+}
+
 export function TorqueSetupForm({
   jobId,
   camshaftId,
@@ -92,18 +124,7 @@ export function TorqueSetupForm({
           <option value="2">2 (one each side)</option>
         </select>
       </label>
-      <label className="flex flex-col text-sm font-semibold">
-        Final torque
-        <input
-          name="finalTorque"
-          inputMode="decimal"
-          value={finalText}
-          onChange={(e) => setFinalText(e.target.value)}
-          className={`${field} figure`}
-          data-testid="final-torque"
-        />
-        {fe("finalTorque.value") ? <span className={errorText}>{fe("finalTorque.value")}</span> : null}
-      </label>
+      <TypedTorque label="Final torque" name="finalTorque" value={finalText} onChange={setFinalText} error={fe("finalTorque.value")} />
       <label className="flex flex-col text-sm font-semibold">
         Unit
         <select
@@ -182,17 +203,14 @@ export function TorqueSetupForm({
           {fe("stageFractions") ? <span className={errorText}>{fe("stageFractions")}</span> : null}
         </label>
       ) : (
-        <label className="col-span-2 flex flex-col text-sm font-semibold sm:col-span-4">
-          Stages before the final, in {unit} (e.g. 4, 7 for a final of 10)
-          <input
-            name="stageTorques"
-            value={stageTorques}
-            onChange={(e) => setStageTorques(e.target.value)}
-            className={`${field} figure`}
-            data-testid="stage-torques"
-          />
-          {fe("stageTorques") ? <span className={errorText}>{fe("stageTorques")}</span> : null}
-        </label>
+        <TypedTorque
+          label={`Stages before the final, in ${unit} (e.g. 4, 7 for a final of 10)`}
+          name="stageTorques"
+          value={stageTorques}
+          onChange={setStageTorques}
+          error={fe("stageTorques")}
+          wide
+        />
       )}
       {mode === "maker" ? (
         <label className="col-span-2 flex flex-col text-sm font-semibold sm:col-span-4">
