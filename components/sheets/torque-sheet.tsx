@@ -2,7 +2,7 @@
 
 import { useActionState, useState } from "react";
 import { saveTick, saveTorqueSetup, undoLastTick } from "@/lib/actions/sheets";
-import { initialActionState } from "@/lib/actions/state";
+import { initialActionState, type ActionState } from "@/lib/actions/state";
 import type { TorqueSheetView } from "@/lib/heads/sheets";
 import { confirmationFigure, deviationMessage, deviationNeedsConfirmation, type Tick } from "@/lib/measure/torque";
 import {
@@ -42,6 +42,32 @@ function typedNm(text: string, unit: TorqueUnit): number | null {
   if (!/^[+]?(\d+([.,]\d*)?|[.,]\d+)$/.test(t)) return null;
   const v = Number(t.replace(",", "."));
   return v > 0 ? toNm(v, unit) : null;
+}
+
+/** A form's submit button with the answer beside it, in the colour of what it says. */
+function SubmitRow({
+  className = "",
+  buttonClass,
+  label,
+  pending,
+  state,
+}: {
+  className?: string;
+  buttonClass: string;
+  label: string;
+  pending: boolean;
+  state: ActionState;
+}) {
+  return (
+    <div className={`flex flex-wrap items-center gap-2 ${className}`}>
+      <button type="submit" disabled={pending} className={`min-h-12 rounded-lg font-semibold disabled:opacity-60 ${buttonClass}`}>
+        {label}
+      </button>
+      <p aria-live="polite" className={`text-sm ${state.ok ? "text-emerald-800" : "text-rose-700"}`}>
+        {state.message}
+      </p>
+    </div>
+  );
 }
 
 /** A torque typed as text, kept in the form's state so that a change of unit can convert it. */
@@ -219,14 +245,13 @@ export function TorqueSetupForm({
           {fe("order") ? <span className={errorText}>{fe("order")}</span> : null}
         </label>
       ) : null}
-      <div className="col-span-2 flex flex-wrap items-center gap-2 sm:col-span-4">
-        <button type="submit" disabled={pending} className="min-h-12 rounded-lg bg-ink px-5 font-semibold text-white disabled:opacity-60">
-          {pending ? "Setting up…" : start.finalNm === null ? "Set up the sheet" : "Change the set-up"}
-        </button>
-        <p aria-live="polite" className={`text-sm ${state.ok ? "text-emerald-800" : "text-rose-700"}`}>
-          {state.message}
-        </p>
-      </div>
+      <SubmitRow
+        className="col-span-2 sm:col-span-4"
+        buttonClass="bg-ink px-5 text-white"
+        label={pending ? "Setting up…" : start.finalNm === null ? "Set up the sheet" : "Change the set-up"}
+        pending={pending}
+        state={state}
+      />
     </form>
   );
 }
@@ -248,14 +273,7 @@ function UndoTickForm({ jobId, sheetId, tick }: { jobId: string; sheetId: string
           <input name="reason" className={field} maxLength={300} />
           {state.fieldErrors.reason?.[0] ? <span className={errorText}>{state.fieldErrors.reason[0]}</span> : null}
         </label>
-        <div className="flex flex-wrap items-center gap-2">
-          <button type="submit" disabled={pending} className="min-h-12 rounded-lg border-2 border-ink bg-white px-4 font-semibold disabled:opacity-60">
-            {pending ? "Undoing…" : "Undo the tick"}
-          </button>
-          <p aria-live="polite" className={`text-sm ${state.ok ? "text-emerald-800" : "text-rose-700"}`}>
-            {state.message}
-          </p>
-        </div>
+        <SubmitRow buttonClass="border-2 border-ink bg-white px-4" label={pending ? "Undoing…" : "Undo the tick"} pending={pending} state={state} />
       </form>
     </details>
   );

@@ -143,17 +143,28 @@ export async function takeBack(db: Db, actor: Actor, input: { jobId: string }): 
     if (await auditStartedAt(tx, job.id)) {
       throw new ConflictError(`The supervisor has started the audit of ${job.number}: ask them to send it back instead.`);
     }
-    await tx.update(jobs).set({ status: "at_bench", updatedAt: new Date() }).where(eq(jobs.id, job.id));
-    await recordAudit(tx, {
-      actorId: actor.id,
-      action: "job.taken_back",
-      entityType: "job",
-      entityId: job.id,
-      jobId: job.id,
-      before: { status: "awaiting_audit" },
-      after: { status: "at_bench" },
-    });
+    await toBench(tx, actor, job.id, "job.taken_back", {});
   });
+}
+
+/** Puts a head awaiting audit back at the bench with its audit entry; false when it was no longer awaiting audit. */
+async function toBench(tx: Writer, actor: Actor, jobId: string, action: string, after: Record<string, string>): Promise<boolean> {
+  const moved = await tx
+    .update(jobs)
+    .set({ status: "at_bench", updatedAt: new Date() })
+    .where(and(eq(jobs.id, jobId), eq(jobs.status, "awaiting_audit")))
+    .returning({ id: jobs.id });
+  if (!moved.length) return false;
+  await recordAudit(tx, {
+    actorId: actor.id,
+    action,
+    entityType: "job",
+    entityId: jobId,
+    jobId,
+    before: { status: "awaiting_audit" },
+    after: { status: "at_bench", ...after },
+  });
+  return true;
 }
 
 /**
@@ -163,19 +174,5 @@ export async function takeBack(db: Db, actor: Actor, input: { jobId: string }): 
  */
 export async function backToBenchForWork(tx: Writer, actor: Actor, job: Pick<Job, "id" | "status">, work: string): Promise<void> {
   if (job.status !== "awaiting_audit") return;
-  const moved = await tx
-    .update(jobs)
-    .set({ status: "at_bench", updatedAt: new Date() })
-    .where(and(eq(jobs.id, job.id), eq(jobs.status, "awaiting_audit")))
-    .returning({ id: jobs.id });
-  if (!moved.length) return;
-  await recordAudit(tx, {
-    actorId: actor.id,
-    action: "job.back_to_bench",
-    entityType: "job",
-    entityId: job.id,
-    jobId: job.id,
-    before: { status: "awaiting_audit" },
-    after: { status: "at_bench", work },
-  });
+  await toBench(tx, actor, job.id, "job.back_to_bench", { work });
 }

@@ -162,3 +162,23 @@ describe("new work on a head awaiting audit", () => {
     expect(await statusOf()).toBe("awaiting_audit");
   });
 });
+
+describe("the job page's hand-in controls", () => {
+  it("list what is unfinished beside the hand-in, with the box to confirm, and offer the take-back", async () => {
+    const { createElement } = await import("react");
+    const { renderToStaticMarkup } = await import("react-dom/server");
+    const { JobStatusActions } = await import("@/components/jobs/job-status-actions");
+    const moves = [{ to: "awaiting_audit" as const, label: "Hand in for audit" }];
+    const html = renderToStaticMarkup(
+      createElement(JobStatusActions, { jobId: head.jobId, moves, unfinished: { seats: ["2I1", "3E2"], sheets: ["Intake camshaft cap torque: not set up"] }, canTakeBack: false }),
+    );
+    expect(html).toContain("Seats not settled in fine: <span class=\"font-mono\">2I1, 3E2</span>");
+    expect(html).toContain("<li>Intake camshaft cap torque: not set up</li>");
+    expect(html).toContain('name="confirmUnfinished" value="yes"');
+    expect(html).not.toContain("Take it back to the bench");
+    const finished = renderToStaticMarkup(createElement(JobStatusActions, { jobId: head.jobId, moves, unfinished: { seats: [], sheets: [] }, canTakeBack: false }));
+    expect(finished).not.toContain("confirmUnfinished");
+    const handedIn = renderToStaticMarkup(createElement(JobStatusActions, { jobId: head.jobId, moves: [], unfinished: null, canTakeBack: true }));
+    expect(handedIn).toContain("Take it back to the bench");
+  });
+});

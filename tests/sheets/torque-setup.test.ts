@@ -192,4 +192,17 @@ describe("the tick list", () => {
     const closed = renderToStaticMarkup(createElement(TorqueTickList, { jobId: head.jobId, sheet, specNm: 10, closed: true }));
     expect(closed).toContain(`>1. ${sheet.order[0]}</span>`);
   });
+
+  it("offers to change the set-up before the first tick, and to undo the latest tick after", async () => {
+    const before = (await sheetOf(0))!;
+    const open = renderToStaticMarkup(createElement(TorqueTickList, { jobId: head.jobId, sheet: before, specNm: 10, closed: false }));
+    expect(open).toContain('data-testid="change-setup"');
+    expect(open).not.toContain('data-testid="undo-tick"');
+    expect(await tick(before.id, 1, before.next!.boltId)).toMatchObject({ ok: true });
+    const ticked = (await sheetOf(0))!;
+    const html = renderToStaticMarkup(createElement(TorqueTickList, { jobId: head.jobId, sheet: ticked, specNm: 10, closed: false }));
+    expect(html).not.toContain('data-testid="change-setup"');
+    expect(html).toContain(`Undo the last tick (${before.next!.boltId} at stage 1)`);
+    expect(html).toContain('name="reason"');
+  });
 });
