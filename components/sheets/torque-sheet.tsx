@@ -1,10 +1,19 @@
 "use client";
 
 import { useActionState, useState } from "react";
-import { saveTick, saveTorqueSetup } from "@/lib/actions/sheets";
-import { initialActionState } from "@/lib/actions/state";
+import { saveTick, saveTorqueSetup, undoLastTick } from "@/lib/actions/sheets";
+import { initialActionState, type ActionState } from "@/lib/actions/state";
 import type { TorqueSheetView } from "@/lib/heads/sheets";
-import { formatTorque, TORQUE_UNITS } from "@/lib/measure/units";
+import { confirmationFigure, deviationMessage, deviationNeedsConfirmation, type Tick } from "@/lib/measure/torque";
+import {
+  convertTorqueList,
+  convertTorqueText,
+  formatTorque,
+  roundTo,
+  toNm,
+  TORQUE_UNITS,
+  type TorqueUnit,
+} from "@/lib/measure/units";
 
 const field = "min-h-12 rounded-lg border border-stone-400 bg-white px-2 text-base";
 
@@ -17,47 +26,140 @@ function TorqueFigures({ nm }: { nm: number }) {
   );
 }
 
+/** A sheet's set-up as the form starts from: the camshaft's own caps, or the sheet being changed. */
+export interface TorqueSetupStart {
+  capCount: number;
+  boltsPerCap: number;
+  finalNm: number | null;
+  stageFractions: readonly number[];
+  order: readonly string[] | null;
+}
+
+const errorText = "text-xs font-normal text-rose-700";
+
+function typedNm(text: string, unit: TorqueUnit): number | null {
+  const t = text.trim();
+  if (!/^[+]?(\d+([.,]\d*)?|[.,]\d+)$/.test(t)) return null;
+  const v = Number(t.replace(",", "."));
+  return v > 0 ? toNm(v, unit) : null;
+}
+
+/** A form's submit button with the answer beside it, in the colour of what it says. */
+function SubmitRow({
+  className = "",
+  buttonClass,
+  label,
+  pending,
+  state,
+}: {
+  className?: string;
+  buttonClass: string;
+  label: string;
+  pending: boolean;
+  state: ActionState;
+}) {
+  return (
+    <div className={`flex flex-wrap items-center gap-2 ${className}`}>
+      <button type="submit" disabled={pending} className={`min-h-12 rounded-lg font-semibold disabled:opacity-60 ${buttonClass}`}>
+        {label}
+      </button>
+      <p aria-live="polite" className={`text-sm ${state.ok ? "text-emerald-800" : "text-rose-700"}`}>
+        {state.message}
+      </p>
+    </div>
+  );
+}
+
+/** A torque typed as text, kept in the form's state so that a change of unit can convert it. */
+function TypedTorque({
+  label,
+  name,
+  value,
+  onChange,
+  error,
+  wide = false,
+}: {
+  label: string;
+  name: string;
+  value: string;
+  onChange: (text: string) => void;
+  error: string | undefined;
+  wide?: boolean;
+}) {
+  return (
+    <label className={`flex flex-col text-sm font-semibold ${wide ? "col-span-2 sm:col-span-4" : ""}`}>
+      {label}
+      <input
+        name={name}
+        inputMode="decimal"
+        value={value}
+        onChange={(e) => onChange(e.target.value)}
+        className={`${field} figure`}
+        data-testid={name}
+      />
+      {error ? <span className={errorText}>{error}</span> : null}
+    </label>
+  );
+}
+
 export function TorqueSetupForm({
   jobId,
   camshaftId,
-  journalCount,
+  start,
   specNm,
   closed,
 }: {
   jobId: string;
   camshaftId: string;
-  journalCount: number;
+  start: TorqueSetupStart;
   specNm: number | null;
   closed: boolean;
 }) {
   const [state, action, pending] = useActionState(saveTorqueSetup, initialActionState);
-  const [mode, setMode] = useState<"centre-out" | "maker">("centre-out");
+  const [mode, setMode] = useState<"centre-out" | "maker">(start.order ? "maker" : "centre-out");
+  const [stageMode, setStageMode] = useState<"fractions" | "torques">("fractions");
+  const startNm = start.finalNm ?? specNm;
+  const [unit, setUnit] = useState<TorqueUnit>("N·m");
+  const [finalText, setFinalText] = useState(startNm === null ? "" : String(roundTo(startNm, 2)));
+  const [stageTorques, setStageTorques] = useState(
+    startNm === null ? "" : start.stageFractions.slice(0, -1).map((f) => String(roundTo(f * startNm, 2))).join(", "),
+  );
   const fe = (k: string) => state.fieldErrors[k]?.[0];
   if (closed) return <p className="text-sm text-stone-600">No torque sheet was set up before sign-off.</p>;
+  // The unit names the torque already typed: changing it converts the figure, never reinterprets it.
+  const changeUnit = (next: TorqueUnit) => {
+    setFinalText((t) => convertTorqueText(t, unit, next));
+    setStageTorques((t) => convertTorqueList(t, unit, next));
+    setUnit(next);
+  };
+  const finalNm = typedNm(finalText, unit);
+  const needsConfirmation = finalNm !== null && deviationNeedsConfirmation(finalNm, specNm);
   return (
     <form action={action} className="grid grid-cols-2 gap-2 sm:grid-cols-4" data-testid="torque-setup" noValidate>
       <input type="hidden" name="jobId" value={jobId} />
       <input type="hidden" name="camshaftId" value={camshaftId} />
       <label className="flex flex-col text-sm font-semibold">
         Caps
-        <input name="capCount" inputMode="numeric" defaultValue={journalCount} className={`${field} figure`} />
-        {fe("capCount") ? <span className="text-xs font-normal text-rose-700">{fe("capCount")}</span> : null}
+        <input name="capCount" inputMode="numeric" defaultValue={start.capCount} className={`${field} figure`} />
+        {fe("capCount") ? <span className={errorText}>{fe("capCount")}</span> : null}
       </label>
       <label className="flex flex-col text-sm font-semibold">
         Bolts per cap
-        <select name="boltsPerCap" defaultValue="2" className={field}>
+        <select name="boltsPerCap" defaultValue={String(start.boltsPerCap)} className={field}>
           <option value="1">1</option>
           <option value="2">2 (one each side)</option>
         </select>
       </label>
-      <label className="flex flex-col text-sm font-semibold">
-        Final torque
-        <input name="finalTorque" inputMode="decimal" defaultValue={specNm ?? ""} className={`${field} figure`} />
-        {fe("finalTorque.value") ? <span className="text-xs font-normal text-rose-700">{fe("finalTorque.value")}</span> : null}
-      </label>
+      <TypedTorque label="Final torque" name="finalTorque" value={finalText} onChange={setFinalText} error={fe("finalTorque.value")} />
       <label className="flex flex-col text-sm font-semibold">
         Unit
-        <select name="finalTorqueUnit" defaultValue="N·m" className={field}>
+        <select
+          name="finalTorqueUnit"
+          value={unit}
+          onChange={(e) => changeUnit(e.target.value as TorqueUnit)}
+          className={field}
+          data-testid="final-torque-unit"
+        >
           {TORQUE_UNITS.map((u) => (
             <option key={u} value={u}>
               {u}
@@ -65,6 +167,41 @@ export function TorqueSetupForm({
           ))}
         </select>
       </label>
+      <p className="col-span-2 text-sm text-stone-700 sm:col-span-4" data-testid="final-torque-nm">
+        {finalNm !== null ? (
+          <>
+            Final: <TorqueFigures nm={finalNm} />
+          </>
+        ) : (
+          "Enter the final torque."
+        )}
+        {specNm !== null ? (
+          <>
+            {" "}
+            · specification: <TorqueFigures nm={specNm} />
+          </>
+        ) : null}
+      </p>
+      {needsConfirmation || fe("confirmDeviation") ? (
+        <div className="col-span-2 rounded-lg border-2 border-rose-600 bg-rose-50 p-2 text-sm sm:col-span-4" role="alert">
+          {finalNm !== null && specNm !== null && needsConfirmation ? (
+            <label className="flex items-start gap-2 font-semibold">
+              <input
+                type="checkbox"
+                name="confirmDeviation"
+                value={confirmationFigure(finalNm)}
+                className="mt-1 size-6"
+                data-testid="confirm-deviation"
+              />
+              <span>
+                {deviationMessage(finalNm, specNm)} I confirm {confirmationFigure(finalNm)} N·m, not the specification&apos;s{" "}
+                {confirmationFigure(specNm)} N·m.
+              </span>
+            </label>
+          ) : null}
+          {fe("confirmDeviation") ? <p className="mt-1 text-rose-800">{fe("confirmDeviation")}</p> : null}
+        </div>
+      ) : null}
       <label className="col-span-2 flex flex-col text-sm font-semibold">
         Order
         <select name="orderMode" value={mode} onChange={(e) => setMode(e.target.value as "centre-out" | "maker")} className={field}>
@@ -73,30 +210,90 @@ export function TorqueSetupForm({
         </select>
       </label>
       <label className="col-span-2 flex flex-col text-sm font-semibold">
-        Stages (share of final)
-        <input name="stageFractions" defaultValue="0.3, 0.6, 1" className={`${field} figure`} />
-        {fe("stageFractions") ? <span className="text-xs font-normal text-rose-700">{fe("stageFractions")}</span> : null}
+        Stages given as
+        <select
+          name="stageMode"
+          value={stageMode}
+          onChange={(e) => setStageMode(e.target.value as "fractions" | "torques")}
+          className={field}
+          data-testid="stage-mode"
+        >
+          <option value="fractions">Shares of the final torque</option>
+          <option value="torques">Torques, as the maker prints them</option>
+        </select>
       </label>
+      {stageMode === "fractions" ? (
+        <label className="col-span-2 flex flex-col text-sm font-semibold sm:col-span-4">
+          Stages (share of final)
+          <input name="stageFractions" defaultValue={start.stageFractions.map((f) => roundTo(f, 3)).join(", ")} className={`${field} figure`} />
+          {fe("stageFractions") ? <span className={errorText}>{fe("stageFractions")}</span> : null}
+        </label>
+      ) : (
+        <TypedTorque
+          label={`Stages before the final, in ${unit} (e.g. 4, 7 for a final of 10)`}
+          name="stageTorques"
+          value={stageTorques}
+          onChange={setStageTorques}
+          error={fe("stageTorques")}
+          wide
+        />
+      )}
       {mode === "maker" ? (
         <label className="col-span-2 flex flex-col text-sm font-semibold sm:col-span-4">
           Bolts in the maker&apos;s order (e.g. C3-L, C3-R, C2-R, …)
-          <input name="order" className={`${field} figure`} />
-          {fe("order") ? <span className="text-xs font-normal text-rose-700">{fe("order")}</span> : null}
+          <input name="order" defaultValue={start.order?.join(", ") ?? ""} className={`${field} figure`} />
+          {fe("order") ? <span className={errorText}>{fe("order")}</span> : null}
         </label>
       ) : null}
-      <div className="col-span-2 flex flex-wrap items-center gap-2 sm:col-span-4">
-        <button type="submit" disabled={pending} className="min-h-12 rounded-lg bg-ink px-5 font-semibold text-white disabled:opacity-60">
-          {pending ? "Setting up…" : "Set up the sheet"}
-        </button>
-        <p aria-live="polite" className={`text-sm ${state.ok ? "text-emerald-800" : "text-rose-700"}`}>
-          {state.message}
-        </p>
-      </div>
+      <SubmitRow
+        className="col-span-2 sm:col-span-4"
+        buttonClass="bg-ink px-5 text-white"
+        label={pending ? "Setting up…" : start.finalNm === null ? "Set up the sheet" : "Change the set-up"}
+        pending={pending}
+        state={state}
+      />
     </form>
   );
 }
 
-function TickButton({ jobId, sheetId, stage, boltId, expected }: { jobId: string; sheetId: string; stage: number; boltId: string; expected: boolean }) {
+function UndoTickForm({ jobId, sheetId, tick }: { jobId: string; sheetId: string; tick: Tick }) {
+  const [state, action, pending] = useActionState(undoLastTick, initialActionState);
+  return (
+    <details className="rounded-lg border border-stone-300 p-2" data-testid="undo-tick">
+      <summary className="min-h-12 cursor-pointer content-center text-sm font-semibold">
+        Undo the last tick ({tick.boltId} at stage {tick.stage})
+      </summary>
+      <form action={action} className="mt-2 flex flex-col gap-2">
+        <input type="hidden" name="jobId" value={jobId} />
+        <input type="hidden" name="sheetId" value={sheetId} />
+        <input type="hidden" name="stage" value={tick.stage} />
+        <input type="hidden" name="boltId" value={tick.boltId} />
+        <label className="flex flex-col text-sm font-semibold">
+          Why (kept in the audit trail)
+          <input name="reason" className={field} maxLength={300} />
+          {state.fieldErrors.reason?.[0] ? <span className={errorText}>{state.fieldErrors.reason[0]}</span> : null}
+        </label>
+        <SubmitRow buttonClass="border-2 border-ink bg-white px-4" label={pending ? "Undoing…" : "Undo the tick"} pending={pending} state={state} />
+      </form>
+    </details>
+  );
+}
+
+function TickButton({
+  jobId,
+  sheetId,
+  stage,
+  boltId,
+  position,
+  expected,
+}: {
+  jobId: string;
+  sheetId: string;
+  stage: number;
+  boltId: string;
+  position: number;
+  expected: boolean;
+}) {
   const [state, action, pending] = useActionState(saveTick, initialActionState);
   return (
     <form action={action} className="contents">
@@ -111,7 +308,7 @@ function TickButton({ jobId, sheetId, stage, boltId, expected }: { jobId: string
         className={`figure min-h-12 min-w-16 rounded-lg border-2 px-2 font-bold ${expected ? "border-ink bg-amber-300" : "border-stone-300 bg-white"}`}
         data-testid={`tick-${stage}-${boltId}`}
       >
-        {boltId}
+        {position}. {boltId}
       </button>
       {state.message && !state.ok ? (
         <span role="alert" className="col-span-full rounded bg-rose-100 px-2 py-1 text-sm text-rose-900" data-testid="tick-refusal">
@@ -122,7 +319,17 @@ function TickButton({ jobId, sheetId, stage, boltId, expected }: { jobId: string
   );
 }
 
-export function TorqueTickList({ jobId, sheet, closed }: { jobId: string; sheet: TorqueSheetView; closed: boolean }) {
+export function TorqueTickList({
+  jobId,
+  sheet,
+  specNm,
+  closed,
+}: {
+  jobId: string;
+  sheet: TorqueSheetView;
+  specNm: number | null;
+  closed: boolean;
+}) {
   const done = new Set(sheet.ticks.map((t) => `${t.stage}|${t.boltId}`));
   return (
     <div className="flex flex-col gap-3" data-testid="torque-sheet">
@@ -145,7 +352,7 @@ export function TorqueTickList({ jobId, sheet, closed }: { jobId: string; sheet:
                 </span>
               ) : closed ? (
                 <span key={boltId} className="figure flex min-h-12 items-center justify-center rounded-lg bg-stone-100">
-                  {boltId}
+                  {k + 1}. {boltId}
                 </span>
               ) : (
                 <TickButton
@@ -154,6 +361,7 @@ export function TorqueTickList({ jobId, sheet, closed }: { jobId: string; sheet:
                   sheetId={sheet.id}
                   stage={st.stage}
                   boltId={boltId}
+                  position={k + 1}
                   expected={sheet.next?.stage === st.stage && sheet.next.boltId === boltId}
                 />
               ),
@@ -164,6 +372,26 @@ export function TorqueTickList({ jobId, sheet, closed }: { jobId: string; sheet:
       <p aria-live="polite" className="font-semibold" data-testid="torque-next">
         {sheet.next ? `Next: ${sheet.next.boltId} at stage ${sheet.next.stage}.` : "Complete: every bolt at every stage."}
       </p>
+      {!closed && sheet.last ? <UndoTickForm jobId={jobId} sheetId={sheet.id} tick={sheet.last} /> : null}
+      {!closed && !sheet.last ? (
+        // The set-up stays open until the first bolt is ticked.
+        <details className="rounded-lg border border-stone-300 p-2" data-testid="change-setup">
+          <summary className="min-h-12 cursor-pointer content-center text-sm font-semibold">Change the set-up (no bolt is ticked yet)</summary>
+          <TorqueSetupForm
+            jobId={jobId}
+            camshaftId={sheet.camshaftId}
+            start={{
+              capCount: sheet.capCount,
+              boltsPerCap: sheet.boltsPerCap,
+              finalNm: sheet.finalNm,
+              stageFractions: sheet.stages.map((st) => st.fraction),
+              order: sheet.orderSource === "maker" ? sheet.order : null,
+            }}
+            specNm={specNm}
+            closed={closed}
+          />
+        </details>
+      ) : null}
     </div>
   );
 }

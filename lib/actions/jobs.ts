@@ -11,7 +11,8 @@ import { BadRequestError, ConflictError, NotFoundError } from "@/lib/errors";
 import { createHeadWithSeats } from "@/lib/heads/create";
 import { parseId } from "@/lib/http";
 import { canMove, isClosed, isReviewDecision } from "@/lib/jobs/lifecycle";
-import { jobFormSchema, jobStatusChangeSchema, type JobFormValues } from "@/lib/validations/jobs";
+import { handIn, isFinished, takeBack } from "@/lib/jobs/hand-in";
+import { jobFormSchema, jobStatusChangeSchema, takeBackSchema, type JobFormValues } from "@/lib/validations/jobs";
 import { actionFailure, type ActionState } from "./state";
 
 
@@ -180,8 +181,19 @@ export async function updateJob(jobId: string, input: unknown): Promise<JobActio
 export async function changeJobStatus(_prev: ActionState, formData: FormData): Promise<ActionState> {
   try {
     const actor = await requireActor("jobs:read");
-    const { jobId, to } = jobStatusChangeSchema.parse({ jobId: formData.get("jobId"), to: formData.get("to") });
+    const { jobId, to, confirmUnfinished } = jobStatusChangeSchema.parse({
+      jobId: formData.get("jobId"),
+      to: formData.get("to"),
+      confirmUnfinished: formData.get("confirmUnfinished"),
+    });
     const db = await getDb();
+    if (to === "awaiting_audit") {
+      // Handing in has its own guard: what is unfinished is named and must be confirmed.
+      const unfinished = await handIn(db, actor, { jobId, confirmUnfinished });
+      revalidatePath(`/jobs/${jobId}`);
+      revalidatePath("/jobs");
+      return { ok: true, message: isFinished(unfinished) ? "Handed in for audit." : "Handed in for audit, unfinished work noted.", fieldErrors: {} };
+    }
     await db.transaction(async (tx) => {
       const [job] = await tx.select().from(jobs).where(and(eq(jobs.id, jobId), eq(jobs.shopId, actor.shopId))).for("update");
       if (!job) throw new NotFoundError("That job does not exist in your shop.");
@@ -209,6 +221,19 @@ export async function changeJobStatus(_prev: ActionState, formData: FormData): P
     revalidatePath(`/jobs/${jobId}`);
     revalidatePath("/jobs");
     return { ok: true, message: "Status changed.", fieldErrors: {} };
+  } catch (err) {
+    return actionFailure(err);
+  }
+}
+
+export async function takeHeadBack(_prev: ActionState, formData: FormData): Promise<ActionState> {
+  try {
+    const actor = await requireActor("jobs:work");
+    const { jobId } = takeBackSchema.parse({ jobId: formData.get("jobId") });
+    await takeBack(await getDb(), actor, { jobId });
+    revalidatePath(`/jobs/${jobId}`);
+    revalidatePath("/jobs");
+    return { ok: true, message: "Taken back to the bench.", fieldErrors: {} };
   } catch (err) {
     return actionFailure(err);
   }

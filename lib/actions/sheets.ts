@@ -6,7 +6,7 @@ import { revalidatePath } from "next/cache";
 import { z } from "zod";
 import { getDb } from "@/db/client";
 import { requireActor } from "@/lib/auth/guard";
-import { moveValve, recordJournalClearance, recordMeasurement, setUpTorqueSheet, tickBolt, updateValveIdentity } from "@/lib/heads/sheets";
+import { moveValve, recordJournalClearance, recordMeasurement, setUpTorqueSheet, tickBolt, undoTick, updateValveIdentity } from "@/lib/heads/sheets";
 import { CLEARANCE_VERDICT_LABELS } from "@/lib/measure/clearance";
 import { RANGE_VERDICT_LABELS } from "@/lib/measure/results";
 import { toMm } from "@/lib/measure/units";
@@ -18,7 +18,9 @@ import {
   journalClearanceReadingSchema,
   measurementSchema,
   measurementSi,
+  stageFractionsOf,
   tickSchema,
+  tickUndoSchema,
   torqueSheetSetupSchema,
 } from "@/lib/validations/measurements";
 import { storableText } from "@/lib/validations/text";
@@ -87,6 +89,9 @@ export async function saveTorqueSetup(_prev: ActionState, f: FormData): Promise<
       order: text(f, "orderMode") === "maker" ? (text(f, "order") ?? "") : "centre-out",
       finalTorque: { value: text(f, "finalTorque"), unit: text(f, "finalTorqueUnit") },
       stageFractions: text(f, "stageFractions"),
+      stageMode: text(f, "stageMode"),
+      stageTorques: text(f, "stageTorques"),
+      confirmDeviation: text(f, "confirmDeviation"),
     });
     await setUpTorqueSheet(await getDb(), actor, {
       jobId,
@@ -95,7 +100,9 @@ export async function saveTorqueSetup(_prev: ActionState, f: FormData): Promise<
       boltsPerCap: setup.boltsPerCap,
       order: setup.order,
       finalNm: finalTorqueNmOf(setup),
-      stageFractions: setup.stageFractions,
+      stageFractions: stageFractionsOf(setup),
+      stagesGivenAs: setup.stageMode,
+      confirmedFinalNm: setup.confirmDeviation ?? null,
     });
     return done(jobId, "torque", "Torque sheet ready: tick each bolt as you tighten it.");
   } catch (err) {
@@ -110,6 +117,23 @@ export async function saveTick(_prev: ActionState, f: FormData): Promise<ActionS
     const tick = tickSchema.parse({ sheetId: text(f, "sheetId"), stage: text(f, "stage"), boltId: text(f, "boltId") });
     const next = await tickBolt(await getDb(), actor, { jobId, ...tick });
     return done(jobId, "torque", next ? `${tick.boltId} done. Next: ${next.boltId} at stage ${next.stage}.` : "Every bolt is tightened at every stage.");
+  } catch (err) {
+    return actionFailure(err);
+  }
+}
+
+export async function undoLastTick(_prev: ActionState, f: FormData): Promise<ActionState> {
+  try {
+    const actor = await requireActor("jobs:work");
+    const jobId = jobIdSchema.parse(text(f, "jobId"));
+    const undo = tickUndoSchema.parse({
+      sheetId: text(f, "sheetId"),
+      stage: text(f, "stage"),
+      boltId: text(f, "boltId"),
+      reason: text(f, "reason") ?? "",
+    });
+    const undone = await undoTick(await getDb(), actor, { jobId, ...undo });
+    return done(jobId, "torque", `Tick undone: ${undone!.boltId} at stage ${undone!.stage} is to be tightened again.`);
   } catch (err) {
     return actionFailure(err);
   }

@@ -22,6 +22,7 @@ import { recordAudit } from "@/lib/audit";
 import { ConflictError, ForbiddenError, NotFoundError } from "@/lib/errors";
 import { seatCode, seatLabel } from "@/lib/heads/layout";
 import { holdJob } from "@/lib/jobs/hold";
+import { backToBenchForWork } from "@/lib/jobs/hand-in";
 import { isClosed } from "@/lib/jobs/lifecycle";
 import type { StartSessionInput } from "@/lib/validations/bench";
 import {
@@ -317,6 +318,7 @@ export async function startSession(db: Db, actor: Actor, seatId: string, input: 
         after: { state: "lapping" },
       });
     }
+    await backToBenchForWork(tx, actor, ctx.job, `lapping ${seatCode(ctx.seat)} (${input.stage})`);
     if (ctx.job.status === "queued") {
       await tx.update(jobs).set({ status: "at_bench", updatedAt: new Date() }).where(eq(jobs.id, ctx.job.id));
       await recordAudit(tx, {

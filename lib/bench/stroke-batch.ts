@@ -14,6 +14,8 @@ import type { SeatVerdict } from "@/lib/audio";
 import { actorColumns, actorFromRow, authorize, type Actor } from "@/lib/auth/authorize";
 import { recordAudit } from "@/lib/audit";
 import { NotFoundError } from "@/lib/errors";
+import { seatCode } from "@/lib/heads/layout";
+import { backToBenchForWork } from "@/lib/jobs/hand-in";
 import type { StrokeInput } from "@/lib/validations/bench";
 import { assertOpenForWork, assertOwnSession, judgeStage, SEAT_HOLD_REFRESH_SECONDS, SESSION_NOT_FOUND, seatStateFor, STROKE_ORDER_COLUMNS } from "./rules";
 import { assertCanWorkOn } from "@/lib/auth/job-access";
@@ -336,6 +338,14 @@ async function writeBatch(tx: Db, batch: StrokeSave[], statements: Statements): 
       before: { state: c.before },
       after: { state: c.after, stage: c.stage, verdict: c.verdict.state, strokes: c.count },
     });
+  }
+  // New strokes on a head awaiting audit put it back at the bench (rare: no prepared statement).
+  const backToBench = new Map<string, { actor: Actor; ctx: Context }>();
+  accepted.forEach(({ actor, ctx }, k) => {
+    if (acceptedCount[k]! > 0 && ctx.job.status === "awaiting_audit" && !backToBench.has(ctx.job.id)) backToBench.set(ctx.job.id, { actor, ctx });
+  });
+  for (const { actor, ctx } of backToBench.values()) {
+    await backToBenchForWork(tx, actor, ctx.job, `strokes on ${seatCode(ctx.seat)} (${ctx.session.stage})`);
   }
   return outcomes as StrokeSaveOutcome[];
 }

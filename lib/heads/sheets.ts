@@ -20,12 +20,17 @@ import { assertCanWorkOn } from "@/lib/auth/job-access";
 import { recordAudit } from "@/lib/audit";
 import { BadRequestError, ConflictError, NotFoundError } from "@/lib/errors";
 import { assertSeatOpen, holdOpenJob, openSeatsNow, signedOffSheets } from "@/lib/jobs/hold";
+import { backToBenchForWork } from "@/lib/jobs/hand-in";
 import { isClosed } from "@/lib/jobs/lifecycle";
 import { judgeClearance, stripCheck, type ClearanceVerdict, type StripCheck, type StripId } from "@/lib/measure/clearance";
 import { judgeRange, MEASUREMENT_KINDS, type MeasurementKind, type RangeVerdict } from "@/lib/measure/results";
 import {
   centreOutwardOrder,
   checkTick,
+  confirmationFigure,
+  deviationMessage,
+  deviationNeedsConfirmation,
+  lastTick,
   nextExpectedTick,
   stagesFor,
   validateOrder,
@@ -144,6 +149,7 @@ export async function recordJournalClearance(db: Db, actor: Actor, input: Cleara
       const [created] = await tx.insert(measurements).values(values).returning({ id: measurements.id });
       id = created!.id;
     }
+    await backToBenchForWork(tx, actor, row.job, "journal clearance");
     await recordAudit(tx, {
       actorId: actor.id,
       action: before ? "measurement.edited" : "measurement.recorded",
@@ -248,8 +254,17 @@ export interface TorqueSetupInput {
   order: "centre-out" | string[];
   finalNm: number | null;
   stageFractions: number[];
+  /** Whether the stages were typed as shares of the final or as torques; kept in the audit entry. */
+  stagesGivenAs?: "fractions" | "torques";
+  /** The final torque in N·m the technician confirmed against the specification in force. */
+  confirmedFinalNm?: number | null;
 }
 
+/**
+ * Sets up a camshaft's cap torque sheet, or replaces its set-up while no bolt is ticked. Refuses a
+ * cap count other than the camshaft's journals, and a final torque more than 10 % from the
+ * specification in force unless the technician confirmed that very figure.
+ */
 export async function setUpTorqueSheet(db: Db, actor: Actor, input: TorqueSetupInput): Promise<string> {
   const [row] = await db
     .select({ camshaft: camshafts, head: heads, job: jobs })
@@ -261,23 +276,45 @@ export async function setUpTorqueSheet(db: Db, actor: Actor, input: TorqueSetupI
   if (!row) throw new BadRequestError("That camshaft does not exist on this head.", { camshaftId: ["No such camshaft."] });
   assertOnJob(input.jobId, row.job, "That camshaft does not exist on this head.", { camshaftId: ["No such camshaft."] });
   assertEditable(actor, row.job);
+  // One cap per journal: a different count means the wrong camshaft or a miscount at the bench.
+  if (input.capCount !== row.camshaft.journalCount) {
+    const message = `${row.camshaft.label} has ${row.camshaft.journalCount} journals, so ${row.camshaft.journalCount} caps, not ${input.capCount}: count the caps again.`;
+    throw new BadRequestError(message, { capCount: [message] });
+  }
   const order = input.order === "centre-out" ? centreOutwardOrder(input.capCount, input.boltsPerCap) : input.order;
   const orderErrors = validateOrder(order, input.capCount, input.boltsPerCap);
   if (orderErrors.length) throw new BadRequestError(orderErrors[0]!, { order: orderErrors });
+  const torqueSpec = await effectiveSpec(db, row.job.id, "cap_bolt_torque");
   let finalNm = input.finalNm;
   let specSource: "entered" | "library" | "job_override" = "entered";
-  const torqueSpec = await effectiveSpec(db, row.job.id, "cap_bolt_torque");
   // A figure typed in that equals the specification's is the specification's.
   if (finalNm !== null && torqueSpec?.nominal != null && Math.abs(torqueSpec.nominal - finalNm) < 0.05) specSource = torqueSpec.source;
   if (finalNm === null) {
-    const spec = await effectiveSpec(db, row.job.id, "cap_bolt_torque");
-    if (!spec?.nominal) {
+    if (!torqueSpec?.nominal) {
       throw new BadRequestError("Enter the final torque: the engine's specification has none.", { finalTorque: ["Enter the engine maker's figure."] });
     }
-    finalNm = spec.nominal;
-    specSource = spec.source;
+    finalNm = torqueSpec.nominal;
+    specSource = torqueSpec.source;
+  }
+  const specNm = torqueSpec?.nominal ?? null;
+  if (deviationNeedsConfirmation(finalNm, specNm)) {
+    const confirmed = input.confirmedFinalNm;
+    if (confirmed == null || confirmationFigure(confirmed) !== confirmationFigure(finalNm)) {
+      const message = deviationMessage(finalNm, specNm!);
+      throw new BadRequestError(message, { confirmDeviation: [message] });
+    }
   }
   stagesFor(finalNm, input.stageFractions);
+  const setUp = {
+    capCount: input.capCount,
+    boltsPerCap: input.boltsPerCap,
+    order,
+    finalNm,
+    stageFractions: input.stageFractions,
+    stagesGivenAs: input.stagesGivenAs ?? "fractions",
+    specSource,
+    specNm,
+  };
   return db.transaction(async (tx) => {
     await holdOpenJob(tx, row.job.id, signedOffSheets);
     // The camshaft is locked so that two set-ups at once run one after the other (one sheet per camshaft).
@@ -285,7 +322,9 @@ export async function setUpTorqueSheet(db: Db, actor: Actor, input: TorqueSetupI
     const [existing] = await tx.select().from(torqueSheets).where(eq(torqueSheets.camshaftId, input.camshaftId)).for("update");
     if (existing) {
       const ticked = await tx.select({ id: torqueTicks.id }).from(torqueTicks).where(eq(torqueTicks.sheetId, existing.id)).limit(1);
-      if (ticked.length) throw new ConflictError("Bolts are already ticked on this sheet; its order and torque can no longer change.");
+      if (ticked.length) {
+        throw new ConflictError("Bolts are already ticked on this sheet; its order and torque can no longer change. Undo the ticks first if the set-up was wrong.");
+      }
       await tx.delete(torqueSheets).where(eq(torqueSheets.id, existing.id));
     }
     const [sheet] = await tx
@@ -303,13 +342,29 @@ export async function setUpTorqueSheet(db: Db, actor: Actor, input: TorqueSetupI
         createdById: actor.id,
       })
       .returning({ id: torqueSheets.id });
+    await backToBenchForWork(tx, actor, row.job, "cap torque set-up");
     await recordAudit(tx, {
       actorId: actor.id,
-      action: "torque_sheet.set_up",
+      action: existing ? "torque_sheet.changed" : "torque_sheet.set_up",
       entityType: "torque_sheet",
       entityId: sheet!.id,
       jobId: row.job.id,
-      after: { camshaft: row.camshaft.label, order, finalNm, stageFractions: input.stageFractions, specSource },
+      before: existing
+        ? {
+            sheetId: existing.id,
+            capCount: existing.capCount,
+            boltsPerCap: existing.boltsPerCap,
+            order: existing.boltOrder,
+            finalNm: existing.finalNm,
+            stageFractions: existing.stageFractions,
+            specSource: existing.specSource,
+          }
+        : null,
+      after: {
+        camshaft: row.camshaft.label,
+        ...setUp,
+        confirmedAgainstSpec: deviationNeedsConfirmation(finalNm!, specNm) ? { finalNm, specNm } : null,
+      },
     });
     return sheet!.id;
   });
@@ -328,6 +383,8 @@ export interface TorqueSheetView {
   stages: TighteningStage[];
   ticks: Tick[];
   next: Tick | null;
+  /** The tick that may be undone: the latest in the sequence. */
+  last: Tick | null;
 }
 
 export async function getTorqueSheets(db: Db, shopId: string, jobId: string) {
@@ -353,6 +410,7 @@ export async function getTorqueSheets(db: Db, shopId: string, jobId: string) {
       stages,
       ticks: mine,
       next: nextExpectedTick(s.boltOrder, stages, mine),
+      last: lastTick(s.boltOrder, stages, mine),
     };
   });
   return {
@@ -364,18 +422,23 @@ export async function getTorqueSheets(db: Db, shopId: string, jobId: string) {
   };
 }
 
-export async function tickBolt(db: Db, actor: Actor, input: { jobId?: string; sheetId: string; stage: number; boltId: string }): Promise<Tick | null> {
+/** A torque sheet with its job and stages, refused unless it is in the caller's shop, on this job, and editable. */
+async function loadSheetForWork(db: Db, actor: Actor, sheetId: string, jobId: string | undefined) {
   const [row] = await db
     .select({ sheet: torqueSheets, job: jobs })
     .from(torqueSheets)
     .innerJoin(heads, eq(heads.id, torqueSheets.headId))
     .innerJoin(jobs, eq(jobs.id, heads.jobId))
-    .where(and(eq(torqueSheets.id, input.sheetId), eq(jobs.shopId, actor.shopId)))
+    .where(and(eq(torqueSheets.id, sheetId), eq(jobs.shopId, actor.shopId)))
     .limit(1);
   if (!row) throw new NotFoundError("That torque sheet does not exist in your shop.");
-  assertOnJob(input.jobId, row.job, "That torque sheet is not on this head.", { sheetId: ["No such torque sheet."] });
+  assertOnJob(jobId, row.job, "That torque sheet is not on this head.", { sheetId: ["No such torque sheet."] });
   assertEditable(actor, row.job);
-  const stages = stagesFor(row.sheet.finalNm, row.sheet.stageFractions);
+  return { ...row, stages: stagesFor(row.sheet.finalNm, row.sheet.stageFractions) };
+}
+
+export async function tickBolt(db: Db, actor: Actor, input: { jobId?: string; sheetId: string; stage: number; boltId: string }): Promise<Tick | null> {
+  const { stages, ...row } = await loadSheetForWork(db, actor, input.sheetId, input.jobId);
   return db.transaction(async (tx) => {
     await holdOpenJob(tx, row.job.id, signedOffSheets);
     // Lock the sheet so two phones ticking at once are checked one after the other.
@@ -384,6 +447,7 @@ export async function tickBolt(db: Db, actor: Actor, input: { jobId?: string; sh
     const check = checkTick(row.sheet.boltOrder, stages, done, { stage: input.stage, boltId: input.boltId });
     if (!check.ok) throw new ConflictError(check.message);
     await tx.insert(torqueTicks).values({ sheetId: input.sheetId, stage: input.stage, boltId: input.boltId, tickedById: actor.id });
+    await backToBenchForWork(tx, actor, row.job, "cap torque tick");
     const stage = stages.find((s) => s.stage === input.stage)!;
     await recordAudit(tx, {
       actorId: actor.id,
@@ -394,6 +458,44 @@ export async function tickBolt(db: Db, actor: Actor, input: { jobId?: string; sh
       after: { bolt: input.boltId, stage: input.stage, nm: stage.nm },
     });
     return nextExpectedTick(row.sheet.boltOrder, stages, [...done, { stage: input.stage, boltId: input.boltId }]);
+  });
+}
+
+/**
+ * Undoes a tick made by mistake: only the latest tick of the sheet, named by its bolt and stage so
+ * a phone showing an older sheet cannot undo the wrong one, and only with a reason. The tick goes,
+ * the audit trail keeps who ticked it, when, who undid it and why.
+ */
+export async function undoTick(
+  db: Db,
+  actor: Actor,
+  input: { jobId?: string; sheetId: string; stage: number; boltId: string; reason: string },
+): Promise<Tick | null> {
+  const { stages, ...row } = await loadSheetForWork(db, actor, input.sheetId, input.jobId);
+  return db.transaction(async (tx) => {
+    await holdOpenJob(tx, row.job.id, signedOffSheets);
+    await tx.select({ id: torqueSheets.id }).from(torqueSheets).where(eq(torqueSheets.id, input.sheetId)).for("update");
+    const rows = await tx.select().from(torqueTicks).where(eq(torqueTicks.sheetId, input.sheetId));
+    const latest = lastTick(row.sheet.boltOrder, stages, rows);
+    if (!latest) throw new ConflictError("No bolt is ticked on this sheet: there is nothing to undo.");
+    if (latest.stage !== input.stage || latest.boltId !== input.boltId) {
+      throw new ConflictError(
+        `Only the latest tick can be undone: ${latest.boltId} at stage ${latest.stage}. Undo ticks from the latest back.`,
+      );
+    }
+    const tick = rows.find((t) => t.stage === latest.stage && t.boltId === latest.boltId)!;
+    await tx.delete(torqueTicks).where(eq(torqueTicks.id, tick.id));
+    await backToBenchForWork(tx, actor, row.job, "cap torque tick undone");
+    await recordAudit(tx, {
+      actorId: actor.id,
+      action: "torque.tick_undone",
+      entityType: "torque_sheet",
+      entityId: input.sheetId,
+      jobId: row.job.id,
+      before: { bolt: tick.boltId, stage: tick.stage, tickedById: tick.tickedById, tickedAt: tick.tickedAt.toISOString() },
+      after: { reason: input.reason },
+    });
+    return latest;
   });
 }
 
@@ -465,6 +567,7 @@ export async function recordMeasurement(db: Db, actor: Actor, input: Measurement
         recordedById: actor.id,
       })
       .returning({ id: measurements.id });
+    await backToBenchForWork(tx, actor, job, MEASUREMENT_KINDS[input.kind].label.toLowerCase());
     await recordAudit(tx, {
       actorId: actor.id,
       action: "measurement.recorded",

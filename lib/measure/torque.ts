@@ -169,6 +169,35 @@ export function explicitStages(torquesNm: readonly number[]): TighteningStage[] 
   ).map((s, i) => ({ ...s, nm: torquesNm[i]! }));
 }
 
+/**
+ * Stage fractions from explicit stage torques (as some makers print them, e.g. 4 then 10 N·m), so a
+ * sheet keeps one stored form whichever way its stages were given. The last torque is the final.
+ */
+export function fractionsOfStageTorques(torquesNm: readonly number[]): number[] {
+  return explicitStages(torquesNm).map((s) => s.fraction);
+}
+
+/** A final torque further than this share from the specification in force must be confirmed. */
+export const TORQUE_DEVIATION_TO_CONFIRM = 0.1;
+
+/** How far a final torque strays from the specification, as a share of it (0.1 is 10 %). */
+export function torqueDeviation(finalNm: number, specNm: number): number {
+  return Math.abs(finalNm - specNm) / specNm;
+}
+
+export function deviationNeedsConfirmation(finalNm: number, specNm: number | null | undefined): boolean {
+  return specNm != null && specNm > 0 && torqueDeviation(finalNm, specNm) > TORQUE_DEVIATION_TO_CONFIRM;
+}
+
+/** The figure a confirmation names, in N·m to a tenth, as the sheet prints it. */
+export const confirmationFigure = (finalNm: number): string => formatTorque(finalNm).nm.toFixed(1);
+
+/** The sentence that asks for the confirmation: both figures in N·m and how far apart they are. */
+export function deviationMessage(finalNm: number, specNm: number): string {
+  const pct = Math.round(torqueDeviation(finalNm, specNm) * 100);
+  return `A final torque of ${confirmationFigure(finalNm)} N·m is ${pct} % ${finalNm < specNm ? "below" : "above"} the specification's ${confirmationFigure(specNm)} N·m: check the figure and its unit, or confirm ${confirmationFigure(finalNm)} N·m against ${confirmationFigure(specNm)} N·m.`;
+}
+
 export interface Tick {
   stage: number;
   boltId: string;
@@ -180,6 +209,12 @@ export function tickSequence(order: readonly string[], stages: readonly Tighteni
 }
 
 const tickKey = (t: Tick) => `${t.stage}|${t.boltId}`;
+
+/** The tick recorded last in the sheet's sequence (the only one that may be undone), or null. */
+export function lastTick(order: readonly string[], stages: readonly TighteningStage[], ticks: readonly Tick[]): Tick | null {
+  const done = new Set(ticks.map(tickKey));
+  return tickSequence(order, stages).findLast((t) => done.has(tickKey(t))) ?? null;
+}
 
 /**
  * The first tick of the sequence not yet recorded, or null when the sheet is complete. Ticks are

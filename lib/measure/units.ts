@@ -99,6 +99,31 @@ export function formatTorque(nm: number): TorqueFigures {
   };
 }
 
+/**
+ * A torque figure as typed, re-expressed in another unit when the unit beside it changes: the
+ * torque stays the same, only its figure changes (typing 10 in N·m and then choosing lbf·in gives
+ * 88.51, not a torque of 10 lbf·in). Four significant figures are finer than any torque wrench reads
+ * and keep a round trip through another unit within 0.05 %. Text that is not a plain decimal is
+ * left as typed, for the form's own check to refuse.
+ */
+export function convertTorqueText(text: string, from: TorqueUnit, to: TorqueUnit): string {
+  const t = text.trim();
+  if (from === to || !/^[+]?(\d+([.,]\d*)?|[.,]\d+)$/.test(t)) return text;
+  const value = Number(t.replace(",", "."));
+  if (value === 0) return text;
+  return String(Number(fromNm(toNm(value, from), to).toPrecision(4)));
+}
+
+/** A list of torque figures ("4, 7.5": a comma separates figures, decimals take a point) in another unit. */
+export function convertTorqueList(text: string, from: TorqueUnit, to: TorqueUnit): string {
+  if (from === to || text.trim() === "") return text;
+  return text
+    .split(/[\s,;]+/)
+    .filter(Boolean)
+    .map((figure) => convertTorqueText(figure, from, to))
+    .join(", ");
+}
+
 /** A clearance or diameter in mm to the micrometre, the resolution of the tools that measure it. */
 export function formatMm(mm: number, decimals = 3): string {
   return `${roundTo(mm, decimals).toFixed(decimals)} mm`;

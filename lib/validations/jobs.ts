@@ -67,4 +67,13 @@ export type JobFormValues = z.output<typeof jobFormSchema>;
 export const jobStatusChangeSchema = z.object({
   jobId: z.string().uuid(),
   to: z.enum(["queued", "at_bench", "awaiting_audit", "signed_off", "collected"]),
+  /** A hand-in with unfinished work goes through only with this set ("yes", as a checkbox sends it). */
+  confirmUnfinished: z.preprocess(
+    (v) => (v === null || v === undefined || v === "" ? false : v),
+    z.union([z.literal(false), z.literal("yes").transform(() => true)], {
+      error: "Tick the box to hand the head in with unfinished work.",
+    }),
+  ),
 });
+
+export const takeBackSchema = z.object({ jobId: z.string().uuid("Unknown job.") });

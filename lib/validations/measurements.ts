@@ -16,6 +16,7 @@ import {
 } from "@/lib/measure/results";
 import {
   DEFAULT_STAGE_FRACTIONS,
+  fractionsOfStageTorques,
   MAX_CAPS,
   MAX_STAGES,
   PLAUSIBLE_CAP_TORQUE_NM,
@@ -38,6 +39,7 @@ import {
   type ForceUnit,
   type LengthUnit,
 } from "@/lib/measure/units";
+import { storableText } from "./text";
 
 // Plain decimals only, with a point or a comma (workshops type both). No exponents, hex or
 // thousands separators: on a measurement sheet those are slips, not numbers.
@@ -406,6 +408,31 @@ export const torqueSheetSetupSchema = z
         )
         .default([...DEFAULT_STAGE_FRACTIONS]),
     ),
+    /** "torques": the stages before the final are given as torques, in the final torque's unit. */
+    stageMode: z.preprocess(
+      blankToUndefined,
+      z
+        .enum(["fractions", "torques"], {
+          error: "Choose how the stages are given: as shares of the final or as torques.",
+        })
+        .default("fractions"),
+    ),
+    stageTorques: z.preprocess(
+      fractionsFromInput,
+      z
+        .array(
+          z.preprocess(
+            numberFromInput,
+            z.number({ error: "Each stage is a torque, like 4 (decimals take a point)." }),
+          ),
+        )
+        .optional(),
+    ),
+    /** The final torque in N·m the technician confirmed against the specification, when it strays from it. */
+    confirmDeviation: z.preprocess(
+      numberFromInput,
+      z.number({ error: "Confirm the final torque by its figure in N·m." }).optional(),
+    ),
   })
   .superRefine(
     (s, ctx) => {
@@ -417,21 +444,62 @@ export const torqueSheetSetupSchema = z
           path: ["finalTorque", "value"],
           message: `${fmt(s.finalTorque.value)} ${UNIT_LABELS[s.finalTorque.unit]} is not a plausible cap bolt torque (${min}–${max} N·m): check the value and its unit.`,
         });
-      const problem = stageFractionsProblem(s.stageFractions);
-      if (problem) ctx.addIssue({ code: "custom", path: ["stageFractions"], message: problem });
+      if (s.stageMode === "torques") {
+        const problem = stageTorquesProblem(s.stageTorques ?? [], s.finalTorque.value);
+        if (problem) ctx.addIssue({ code: "custom", path: ["stageTorques"], message: problem });
+      } else {
+        const problem = stageFractionsProblem(s.stageFractions);
+        if (problem) ctx.addIssue({ code: "custom", path: ["stageFractions"], message: problem });
+      }
       if (s.order !== "centre-out") {
         for (const message of validateOrder(s.order, s.capCount, s.boltsPerCap))
           ctx.addIssue({ code: "custom", path: ["order"], message });
       }
     },
-    { when: whenValid("capCount", "boltsPerCap", "order", "finalTorque", "stageFractions") },
+    {
+      when: whenValid(
+        "capCount",
+        "boltsPerCap",
+        "order",
+        "finalTorque",
+        "stageFractions",
+        "stageMode",
+        "stageTorques",
+      ),
+    },
   );
+
+/** The stages before the final as typed; a last figure equal to the final is the final itself. */
+function earlierStages(torques: readonly number[], final: number): number[] {
+  return torques.length && torques[torques.length - 1] === final ? torques.slice(0, -1) : [...torques];
+}
+
+function stageTorquesProblem(torques: readonly number[], final: number): string | null {
+  const earlier = earlierStages(torques, final);
+  if (earlier.length < 1)
+    return "List the torques of the stages before the final one, like 4 (or 4, 7) for a final of 10.";
+  if (earlier.length > MAX_STAGES - 1) return `Use between 1 and ${MAX_STAGES} stages in all.`;
+  if (earlier.some((t) => !Number.isFinite(t) || t <= 0))
+    return "Every stage needs a torque above zero.";
+  const all = [...earlier, final];
+  for (let i = 1; i < all.length; i++)
+    if (!(all[i]! > all[i - 1]!))
+      return "Each stage must be tighter than the one before, and every one below the final torque.";
+  return null;
+}
 
 export type TorqueSheetSetup = z.infer<typeof torqueSheetSetupSchema>;
 export type TorqueSheetSetupForm = z.input<typeof torqueSheetSetupSchema>;
 
 export function finalTorqueNmOf(setup: TorqueSheetSetup): number {
   return toNm(setup.finalTorque.value, setup.finalTorque.unit);
+}
+
+/** The sheet's stages as shares of the final, however they were given. */
+export function stageFractionsOf(setup: TorqueSheetSetup): number[] {
+  if (setup.stageMode !== "torques") return setup.stageFractions;
+  const final = setup.finalTorque.value;
+  return fractionsOfStageTorques([...earlierStages(setup.stageTorques ?? [], final), final]);
 }
 
 export const tickSchema = z.object({
@@ -450,5 +518,16 @@ export const tickSchema = z.object({
 });
 
 export type TickInput = z.infer<typeof tickSchema>;
+
+/** Undoing a mistaken tick names the tick and says why; the reason goes into the audit trail. */
+export const tickUndoSchema = tickSchema.extend({
+  reason: storableText(
+    z
+      .string({ error: "Say why the tick is undone." })
+      .trim()
+      .min(3, "Say why the tick is undone, in at least 3 characters (e.g. ticked the wrong bolt).")
+      .max(300, "Keep the reason under 300 characters."),
+  ),
+});
 
 export type { BoltsPerCap };

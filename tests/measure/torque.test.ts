@@ -4,6 +4,10 @@ import {
   boltLayout,
   checkTick,
   centreOutwardOrder,
+  deviationMessage,
+  deviationNeedsConfirmation,
+  fractionsOfStageTorques,
+  lastTick,
   explicitStages,
   nextExpectedTick,
   stagesFor,
@@ -224,5 +228,44 @@ describe("ticks", () => {
       .map((boltId) => ({ stage: 1, boltId }))
       .reverse();
     expect(nextExpectedTick(order, stages, ticks)).toEqual({ stage: 1, boltId: order[4] });
+  });
+});
+
+describe("a final torque against the specification", () => {
+  it("needs a confirmation only beyond 10 % either way", () => {
+    expect(deviationNeedsConfirmation(11, 10)).toBe(false);
+    expect(deviationNeedsConfirmation(9, 10)).toBe(false);
+    expect(deviationNeedsConfirmation(11.01, 10)).toBe(true);
+    expect(deviationNeedsConfirmation(8.99, 10)).toBe(true);
+    expect(deviationNeedsConfirmation(1.13, null)).toBe(false);
+  });
+
+  it("names both figures in N·m", () => {
+    // 10 lbf·in = 1.129848 N·m (NIST SP 811 Appendix B.8).
+    expect(deviationMessage(1.129848, 10)).toBe(
+      "A final torque of 1.1 N·m is 89 % below the specification's 10.0 N·m: check the figure and its unit, or confirm 1.1 N·m against 10.0 N·m.",
+    );
+  });
+});
+
+describe("stages given as torques", () => {
+  it("are kept as shares of the final", () => {
+    expect(fractionsOfStageTorques([4, 10])).toEqual([0.4, 1]);
+    expect(() => fractionsOfStageTorques([10, 4])).toThrow("Each stage must be tighter than the one before.");
+  });
+});
+
+describe("lastTick", () => {
+  it("is the latest tick of the sequence, whatever order the rows come in", () => {
+    const order = centreOutwardOrder(3, 1);
+    const stages = stagesFor(10, [0.5, 1]);
+    expect(lastTick(order, stages, [])).toBeNull();
+    const ticks: Tick[] = [
+      { stage: 2, boltId: order[0]! },
+      { stage: 1, boltId: order[2]! },
+      { stage: 1, boltId: order[0]! },
+      { stage: 1, boltId: order[1]! },
+    ];
+    expect(lastTick(order, stages, ticks)).toEqual({ stage: 2, boltId: order[0] });
   });
 });

@@ -1,6 +1,8 @@
 // Unit conversions against NIST SP 811 Appendix B, round trips, and the torque sheet's rounding.
 import { describe, expect, it } from "vitest";
 import {
+  convertTorqueList,
+  convertTorqueText,
   formatTorque,
   fromMm,
   fromN,
@@ -89,5 +91,33 @@ describe("guards", () => {
     expect(roundTo(1.005, 2)).toBe(1.01);
     expect(roundTo(-0.05, 1)).toBe(-0.1);
     expect(roundTo(0.0762, 3)).toBe(0.076);
+  });
+});
+
+describe("changing the unit of a typed torque", () => {
+  it("converts the figure, keeping the torque (NIST SP 811 Appendix B.8)", () => {
+    // 10 N·m = 88.51 lbf·in (÷ 0.1129848) = 7.376 lbf·ft (÷ 1.355818) = 1.020 kgf·m (÷ 9.80665).
+    expect(convertTorqueText("10", "N·m", "lbf·in")).toBe("88.51");
+    expect(convertTorqueText("10", "N·m", "lbf·ft")).toBe("7.376");
+    expect(convertTorqueText("10", "N·m", "kgf·m")).toBe("1.02");
+    expect(convertTorqueText("7,4", "lbf·ft", "N·m")).toBe("10.03");
+  });
+
+  it("comes back to the figure typed after a round trip through every unit", () => {
+    let t = "10";
+    for (const [from, to] of [["N·m", "lbf·in"], ["lbf·in", "kgf·m"], ["kgf·m", "lbf·ft"], ["lbf·ft", "N·m"]] as const)
+      t = convertTorqueText(t, from, to);
+    expect(Number(t)).toBeCloseTo(10, 2);
+  });
+
+  it("leaves text that is not a torque as typed, for the form's check to refuse", () => {
+    expect(convertTorqueText("", "N·m", "lbf·in")).toBe("");
+    expect(convertTorqueText("ten", "N·m", "lbf·in")).toBe("ten");
+    expect(convertTorqueText("10", "N·m", "N·m")).toBe("10");
+  });
+
+  it("converts a list of stage torques figure by figure", () => {
+    expect(convertTorqueList("4, 7", "N·m", "lbf·ft")).toBe("2.95, 5.163");
+    expect(convertTorqueList("", "N·m", "lbf·ft")).toBe("");
   });
 });

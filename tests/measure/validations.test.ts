@@ -355,6 +355,7 @@ describe("torqueSheetSetupSchema", () => {
       order: "centre-out",
       finalTorque: { value: 10, unit: "N·m" },
       stageFractions: [0.3, 0.6, 1],
+      stageMode: "fractions",
     });
   });
 

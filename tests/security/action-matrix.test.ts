@@ -36,7 +36,7 @@ const { resetServerEnvCache } = await import("@/lib/env");
 const { initialActionState } = await import("@/lib/actions/state");
 const { forbiddenMessage } = await import("@/lib/auth/guard");
 const { enqueueMail } = await import("@/lib/mail/outbox");
-const { getTorqueSheets, setUpTorqueSheet } = await import("@/lib/heads/sheets");
+const { getTorqueSheets, setUpTorqueSheet, tickBolt } = await import("@/lib/heads/sheets");
 const { startSession } = await import("@/lib/bench/service");
 const { addSeatPhoto } = await import("@/lib/storage/photos");
 const { storeRecording } = await import("@/lib/storage/recording-upload");
@@ -318,7 +318,12 @@ const CASES: Record<string, Case> = {
     // Technicians hand a job in for audit; supervisors and admins send it back to the queue.
     const to = isTechnician(c.caller) || c.caller === "anonymous" ? "awaiting_audit" : "queued";
     return () =>
-      action("lib/actions/jobs.ts#changeJobStatus")(prev, form({ jobId: c.job.jobId, to }));
+      action("lib/actions/jobs.ts#changeJobStatus")(prev, form({ jobId: c.job.jobId, to, confirmUnfinished: "yes" }));
+  },
+  "lib/actions/jobs.ts#takeHeadBack": async (c) => {
+    // Handed in, and no seat judged since: the audit has not started.
+    await setJob(c.job.jobId, "awaiting_audit");
+    return () => action("lib/actions/jobs.ts#takeHeadBack")(prev, form({ jobId: c.job.jobId }));
   },
   "lib/actions/mail.ts#retryMailAction": async (c) => {
     const id = await failedMail(c);
@@ -411,6 +416,16 @@ const CASES: Record<string, Case> = {
       action("lib/actions/sheets.ts#saveTick")(
         prev,
         form({ jobId: c.job.jobId, sheetId, stage: String(next.stage), boltId: next.boltId }),
+      );
+  },
+  "lib/actions/sheets.ts#undoLastTick": async (c) => {
+    // A tick made by the supervisor; each allowed call undoes it.
+    const { sheetId, next } = await torqueSheet(c);
+    await tickBolt(db(), await h.actorOf(db(), EMAIL.supervisor), { jobId: c.job.jobId, sheetId, ...next });
+    return () =>
+      action("lib/actions/sheets.ts#undoLastTick")(
+        prev,
+        form({ jobId: c.job.jobId, sheetId, stage: String(next.stage), boltId: next.boltId, reason: "Ticked the wrong bolt." }),
       );
   },
   "lib/actions/sheets.ts#saveValveIdentity": async (c) => {

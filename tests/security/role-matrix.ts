@@ -414,6 +414,15 @@ export const ACTION_MATRIX: Record<string, CrossShopRow<ActionOutcome, CrossShop
     otherShop: "not-found",
     why: "A technician moves only jobs they may work on; the life cycle says which role makes which move.",
   },
+  "lib/actions/jobs.ts#takeHeadBack": {
+    anonymous: "unauthorized",
+    technicianOwnJob: "ok",
+    technicianOtherJob: "forbidden",
+    supervisor: "ok",
+    admin: "forbidden",
+    otherShop: "not-found",
+    why: "Taking a handed-in head back to the bench, before its audit starts, is work on the job.",
+  },
   "lib/actions/mail.ts#retryMailAction": {
     anonymous: "unauthorized",
     technicianOwnJob: "forbidden",
@@ -494,6 +503,15 @@ export const ACTION_MATRIX: Record<string, CrossShopRow<ActionOutcome, CrossShop
     admin: "forbidden",
     otherShop: "not-found",
     why: "Ticking a bolt is work on the job.",
+  },
+  "lib/actions/sheets.ts#undoLastTick": {
+    anonymous: "unauthorized",
+    technicianOwnJob: "ok",
+    technicianOtherJob: "forbidden",
+    supervisor: "ok",
+    admin: "forbidden",
+    otherShop: "not-found",
+    why: "Undoing a mistaken tick is work on the job, like ticking.",
   },
   "lib/actions/sheets.ts#saveValveIdentity": {
     anonymous: "unauthorized",

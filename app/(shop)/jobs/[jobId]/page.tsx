@@ -18,6 +18,7 @@ import { requireActor } from "@/lib/auth/guard";
 import { can } from "@/lib/auth/roles";
 import { seatCode } from "@/lib/heads/layout";
 import { JOB_STATUS_LABELS, JOB_STATUS_TONES } from "@/lib/labels";
+import { auditStartedAt, unfinishedWork } from "@/lib/jobs/hand-in";
 import { allowedMoves, isClosed } from "@/lib/jobs/lifecycle";
 import { Fact } from "@/components/ui/fact";
 
@@ -35,6 +36,11 @@ export default async function JobPage({ params }: PageProps<"/jobs/[jobId]">) {
   const reviews = await getReviews(db, actor.shopId, job.id);
   const unapproved = await getUnapprovedSeatCodes(db, actor.shopId, job.id);
   const canReview = actor.role === "supervisor";
+  const moves = allowedMoves(job.status, actor.role).map((m) => ({ to: m.to, label: m.label }));
+  const unfinished = moves.some((m) => m.to === "awaiting_audit") ? await unfinishedWork(db, job.id) : null;
+  // The technician (or a supervisor) may take a head back until the supervisor starts its audit.
+  const mayWork = can(actor.role, "jobs:work") && (actor.role !== "technician" || !job.technician || job.technician.id === actor.id);
+  const canTakeBack = job.status === "awaiting_audit" && mayWork && !(await auditStartedAt(db, job.id));
   const range = (v: { min: number | null; max: number | null; limit: number | null; nominal: number | null }) =>
     [v.nominal !== null ? `${v.nominal}` : null, v.min !== null || v.max !== null ? `${v.min ?? "…"}–${v.max ?? "…"}` : null, v.limit !== null ? `limit ${v.limit}` : null]
       .filter(Boolean)
@@ -69,7 +75,7 @@ export default async function JobPage({ params }: PageProps<"/jobs/[jobId]">) {
           <Fact label="Contact">{job.customer.phone ?? job.customer.email ?? "—"}</Fact>
         </dl>
         {job.notes ? <p className="mt-2 rounded-lg bg-amber-50 p-3 text-sm">{job.notes}</p> : null}
-        <JobStatusActions jobId={job.id} moves={allowedMoves(job.status, actor.role).map((m) => ({ to: m.to, label: m.label }))} />
+        <JobStatusActions jobId={job.id} moves={moves} unfinished={unfinished} canTakeBack={canTakeBack} />
       </header>
 
       {job.heads.length === 0 ? (

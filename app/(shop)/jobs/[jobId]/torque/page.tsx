@@ -8,6 +8,7 @@ import { TorqueSetupForm, TorqueTickList } from "@/components/sheets/torque-shee
 import { requireActor } from "@/lib/auth/guard";
 import { NotFoundError } from "@/lib/errors";
 import { getTorqueSheets } from "@/lib/heads/sheets";
+import { DEFAULT_STAGE_FRACTIONS } from "@/lib/measure/torque";
 
 export const metadata: Metadata = { title: "Cap torque" };
 
@@ -38,9 +39,15 @@ export default async function TorquePage({ params }: PageProps<"/jobs/[jobId]/to
               <section key={c.id} className="rounded-xl border border-stone-300 bg-white p-4" aria-label={c.label}>
                 <h2 className="mb-2 text-lg font-semibold">{c.label}</h2>
                 {c.sheet ? (
-                  <TorqueTickList jobId={jobId} sheet={c.sheet} closed={data.closed} />
+                  <TorqueTickList jobId={jobId} sheet={c.sheet} specNm={data.torqueSpec?.nominal ?? null} closed={data.closed} />
                 ) : (
-                  <TorqueSetupForm jobId={jobId} camshaftId={c.id} journalCount={c.journalCount} specNm={data.torqueSpec?.nominal ?? null} closed={data.closed} />
+                  <TorqueSetupForm
+                    jobId={jobId}
+                    camshaftId={c.id}
+                    start={{ capCount: c.journalCount, boltsPerCap: 2, finalNm: null, stageFractions: DEFAULT_STAGE_FRACTIONS, order: null }}
+                    specNm={data.torqueSpec?.nominal ?? null}
+                    closed={data.closed}
+                  />
                 )}
               </section>
             ))
