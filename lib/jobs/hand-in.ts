@@ -173,6 +173,7 @@ async function toBench(tx: Writer, actor: Actor, jobId: string, action: string, 
  * Called inside the transaction of that work, so the move and the work land together.
  */
 export async function backToBenchForWork(tx: Writer, actor: Actor, job: Pick<Job, "id" | "status">, work: string): Promise<void> {
-  if (job.status !== "awaiting_audit") return;
+  // A supervisor checking a figure during the audit is auditing, not taking the head back.
+  if (job.status !== "awaiting_audit" || actor.role !== "technician") return;
   await toBench(tx, actor, job.id, "job.back_to_bench", { work });
 }

@@ -116,6 +116,14 @@ describe("new work on a head awaiting audit", () => {
     expect((await lastAudit("job.back_to_bench"))!.after).toEqual({ status: "at_bench", work });
   };
 
+  it("a supervisor checking a figure during the audit leaves it awaiting audit", async () => {
+    await signInAs("rhea@millrace.example");
+    expect(await statusOf()).toBe("awaiting_audit");
+    const res = await sheetActions.saveMeasurement(initialActionState, h.form({ jobId: head.jobId, kind: "deck_flatness", value: "0.02", unit: "mm" }));
+    expect(res).toMatchObject({ ok: true });
+    expect(await statusOf()).toBe("awaiting_audit");
+  });
+
   it("a measurement puts it back at the bench, with an audit entry", async () => {
     await signInAs("ines@millrace.example");
     expect(await statusOf()).toBe("awaiting_audit");
