@@ -198,6 +198,9 @@ export class Outbox {
     for (const o of stored) if (o.kind === "session" && o.setAside !== undefined) setAsideSessions.set(o.body.sessionId, o.setAside);
     // After a batch is refused as malformed, its strokes go one by one so only the bad one is kept back.
     let singlyUntil = -1;
+    // Sessions with a stroke backing off after a server failure; and whether anything backs off.
+    const waitingSessions = new Set<string>();
+    let backingOff = false;
     let i = 0;
     while (i < ops.length) {
       const op = ops[i]!;
@@ -217,10 +220,21 @@ export class Outbox {
         i++;
         continue;
       }
-      // Backing off after a server failure on this op: wait for the next run after retryAt.
+      // Backing off after a server failure on this op. A stroke waits alone: the strokes behind
+      // it go on (each is saved by its own clientId, so order does not matter to the server),
+      // while its session's end and recording wait for it. Anything else waits with the queue.
       if (op.retryAt !== undefined && op.retryAt > Date.now()) {
-        report.stoppedBy = "server";
+        backingOff = true;
+        if (op.kind === "stroke") {
+          waitingSessions.add(op.sessionId);
+          i++;
+          continue;
+        }
         break;
+      }
+      if (op.kind !== "session" && op.kind !== "stroke" && waitingSessions.has(op.sessionId)) {
+        i++;
+        continue;
       }
       if (op.kind === "session") {
         result = await send(this.fetchFn, `/api/seats/${op.seatId}/sessions`, { method: "POST", headers: json, body: JSON.stringify(op.body) });
@@ -231,6 +245,7 @@ export class Outbox {
         for (let j = i; j < ops.length && batch.length < limit; j++) {
           const o = ops[j]!;
           if (o.kind !== "stroke" || o.sessionId !== op.sessionId) break;
+          if (j > i && o.serverFailures) break;
           batch.push(o);
         }
         const strokes = batch.map((o) => (o as Extract<StoredOp, { kind: "stroke" }>).stroke);
@@ -270,7 +285,12 @@ export class Outbox {
           continue;
         }
         await db.put("ops", { ...op, serverFailures: failures, retryAt: Date.now() + serverRetryDelayMs(failures) });
-        report.stoppedBy = "server";
+        backingOff = true;
+        if (op.kind === "stroke") {
+          waitingSessions.add(op.sessionId);
+          i += 1;
+          continue;
+        }
         break;
       } else {
         report.stoppedBy = result.kind === "signed-out" ? "signed-out" : result.reason.startsWith("HTTP") ? "server" : "offline";
@@ -278,6 +298,7 @@ export class Outbox {
       }
       i += batch.length;
     }
+    if (backingOff && report.stoppedBy === "done") report.stoppedBy = "server";
     report.pending = (await db.getAll("ops")).filter((o) => !o.failed && o.setAside === undefined).length;
     return report;
   }

@@ -353,14 +353,19 @@ describe("Outbox", () => {
       return Response.json(sent ? { accepted: sent.length, duplicates: 0 } : { ok: true }, { status: 201 });
     };
     for (let n = 0; n < 40; n++) net.script.push(failsOnBad);
-    await addAll(box, ops);
+    await addAll(box, [...ops, { kind: "end", seatId: seat, sessionId }]);
     let now = Date.now();
     const clock = vi.spyOn(Date, "now").mockImplementation(() => now);
     try {
       const first = await box.flush();
-      // The batch is split; the stroke before the bad one is saved, then the bad one waits.
-      expect(first).toMatchObject({ stoppedBy: "server", setAside: [] });
-      expect(sentStrokeIds(net.calls.filter((c) => c.url.endsWith("/strokes") && !JSON.stringify(c.body).includes(bad)))).toEqual([strokes[0]!.clientId]);
+      // The batch is split; the bad one waits, backing off, and every stroke behind it is saved
+      // in the same flush: one bad stroke does not hold the queue.
+      expect(first).toMatchObject({ stoppedBy: "server", setAside: [], pending: 2 });
+      expect(sentStrokeIds(net.calls.filter((c) => c.url.endsWith("/strokes") && !JSON.stringify(c.body).includes(bad)))).toEqual(
+        [0, 2, 3, 4].map((k) => strokes[k]!.clientId),
+      );
+      // The session's end waits for the stroke backing off (its recording would too).
+      expect(net.calls.some((c) => c.url.endsWith("/end"))).toBe(false);
       // Backing off: a flush before the wait is over sends nothing.
       const calls = net.calls.length;
       expect((await box.flush()).stoppedBy).toBe("server");
