@@ -3,8 +3,8 @@
 // which is answered directly (lib/server/stroke-save.ts) by the same code as its route handler,
 // without Next.js's per-request routing and rendering pipeline. It gets the same gate as every
 // other request: the origin check and headers of proxy.ts and next.config.ts, and the signed-in
-// check from the session cookie. `npm run dev` runs plain `next dev`, where the route handler
-// answers the same request.
+// check from the session cookie. `npm run dev` runs this same file with `--dev` (through tsx),
+// so development gets the same gate, request ids and log lines.
 //
 // Built into .next/grindfade-server.cjs by `npm run build` (scripts/server-bundles.mjs).
 import http from "node:http";
@@ -12,7 +12,7 @@ import path from "node:path";
 import { parseArgs } from "node:util";
 
 const { values: args } = parseArgs({
-  options: { port: { type: "string", short: "p" }, hostname: { type: "string", short: "H" } },
+  options: { port: { type: "string", short: "p" }, hostname: { type: "string", short: "H" }, dev: { type: "boolean" } },
   strict: false,
 });
 const port = Number(args.port ?? process.env.PORT ?? 3000);
@@ -20,12 +20,21 @@ const hostname = String(args.hostname ?? process.env.HOSTNAME ?? "0.0.0.0");
 
 async function main(): Promise<void> {
   const env = process.env as Record<string, string | undefined>;
-  env.NODE_ENV ??= "production";
+  const dev = args.dev === true;
+  env.NODE_ENV ??= dev ? "development" : "production";
   // PGlite on a thread of its own, built beside this file: the database's work then runs on the
-  // second core instead of taking turns with HTTP on this one. GRINDFADE_DB_THREAD=off keeps it here.
-  env.GRINDFADE_DB_THREAD ??= path.join(__dirname, "grindfade-db-thread.cjs");
+  // second core instead of taking turns with HTTP on this one. GRINDFADE_DB_THREAD=off keeps it
+  // here, as development does (there is no built thread to start).
+  env.GRINDFADE_DB_THREAD ??= dev ? "off" : path.join(__dirname, "grindfade-db-thread.cjs");
+  // Everything written to the console from here on (Next.js's own errors and notices among it)
+  // becomes a log line, with the request's id while a request is answered.
+  // Next.js's process set-up first (its AsyncLocalStorage, which lib/log's imports expect), as
+  // its own command line does before anything else.
+  await import("next/dist/server/node-environment.js");
   const { default: next } = await import("next");
-  const app = next({ dev: false, hostname, port, dir: process.cwd() });
+  const { log, newRequestId, REQUEST_ID_HEADER, requestContext, routeConsoleToLog } = await import("@/lib/log");
+  routeConsoleToLog(log);
+  const app = dev ? next({ dev: true, turbopack: true, hostname, port, dir: process.cwd() }) : next({ dev: false, hostname, port, dir: process.cwd() });
   const handle = app.getRequestHandler();
   // Runs instrumentation.ts: the database is opened (or the start refused) before we listen.
   await app.prepare();
@@ -37,7 +46,6 @@ async function main(): Promise<void> {
   const { ADDRESS_HEADER, clientAddress, stampAddress } = await import("@/lib/auth/throttle");
   const { serverEnv } = await import("@/lib/env");
   const { randomBytes } = await import("node:crypto");
-  const { log, newRequestId, REQUEST_ID_HEADER, requestContext } = await import("@/lib/log");
   const trustedProxies = serverEnv().GRINDFADE_TRUSTED_PROXIES;
 
   const server = http.createServer((req, res) => {
@@ -87,11 +95,12 @@ async function main(): Promise<void> {
   }
 
   server.listen(port, hostname, () => {
-    console.log(`Grindfade listening on http://${hostname}:${port}`);
+    log.info({ port, hostname, dev }, `Grindfade listening on http://${hostname}:${port}`);
   });
 }
 
 void main().catch((err: unknown) => {
-  console.error(`Grindfade cannot start: ${err instanceof Error ? err.message : String(err)}`);
+  // Plainly on stderr, not as a log line: this is what the person starting the server reads.
+  process.stderr.write(`Grindfade cannot start: ${err instanceof Error ? err.message : String(err)}\n`);
   process.exit(1);
 });

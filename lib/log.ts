@@ -4,6 +4,7 @@
 // the id without being handed it; a 500's answer carries the same id, to find its stack here.
 import { AsyncLocalStorage } from "node:async_hooks";
 import { randomUUID } from "node:crypto";
+import { format } from "node:util";
 import pino from "pino";
 
 export const REQUEST_ID_HEADER = "x-request-id";
@@ -42,3 +43,28 @@ export function requestIdFrom(value: string | string[] | null | undefined): stri
 
 /** The id of the request being answered, when there is one. */
 export { currentRequestId } from "@/lib/errors";
+
+const CONSOLE_LEVELS = { error: "error", warn: "warn", info: "info", log: "info", debug: "debug", trace: "trace" } as const;
+
+/**
+ * Sends what anything in the process writes to the console (Next.js's own errors and notices
+ * among it) through `logger`: one JSON line per call, with the request id when called while a
+ * request is answered, an Error's stack under `err` once, and the rest of the arguments as the
+ * message. Returns a function that puts the console back.
+ */
+export function routeConsoleToLog(logger: pino.Logger): () => void {
+  const saved = new Map<keyof typeof CONSOLE_LEVELS, (...args: unknown[]) => void>();
+  for (const [method, level] of Object.entries(CONSOLE_LEVELS) as Array<[keyof typeof CONSOLE_LEVELS, pino.Level]>) {
+    saved.set(method, console[method]);
+    console[method] = (...args: unknown[]) => {
+      const err = args.find((a): a is Error => a instanceof Error);
+      const rest = args.filter((a) => a !== err);
+      const msg = rest.length ? format(...rest).trim() : err ? err.message : "";
+      if (err) logger[level]({ err }, msg);
+      else if (msg) logger[level](msg);
+    };
+  }
+  return () => {
+    for (const [method, fn] of saved) console[method] = fn;
+  };
+}

@@ -4,13 +4,13 @@
 // database.
 import { getDatabase, getDb } from "@/db/client";
 import { startMailWorker } from "@/lib/mail/worker";
-// The structured logger registers itself for lib/errors.ts on load.
-import "@/lib/log";
+// The structured logger (it registers itself for lib/errors.ts on load).
+import { log } from "@/lib/log";
 
 export async function startServer(): Promise<void> {
   try {
     const { kind, onThread } = await getDatabase();
-    console.log(`Grindfade database ready (${kind}${onThread ? ", on its own thread" : ""}).`);
+    log.info({ database: kind, onThread }, `Grindfade database ready (${kind}${onThread ? ", on its own thread" : ""}).`);
     // Tests shorten the worker's pause between passes; 30 s is plenty for a shop.
     const intervalMs = Number(process.env.GRINDFADE_MAIL_INTERVAL_MS) || 30_000;
     const worker = startMailWorker(getDb, Math.max(250, intervalMs));
@@ -18,7 +18,8 @@ export async function startServer(): Promise<void> {
     process.once("SIGTERM", () => worker.stop());
     process.once("SIGINT", () => worker.stop());
   } catch (err) {
-    console.error(`Grindfade cannot start: ${err instanceof Error ? err.message : String(err)}`);
+    // Plainly on stderr (the server sends the console to the log): the person starting it reads this.
+    process.stderr.write(`Grindfade cannot start: ${err instanceof Error ? err.message : String(err)}\n`);
     process.exit(1);
   }
 }

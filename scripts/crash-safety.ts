@@ -302,7 +302,15 @@ export async function crashRun(
     const exit = await stopped!;
     server = null;
     const output = running.output();
-    const stopLogLine = output.split("\n").find((l) => l.startsWith("Grindfade stopped")) ?? null;
+    // The server's log is JSON lines (pino); the stop line is the one whose message says so.
+    const logMessages = output.split("\n").map((l) => {
+      try {
+        return String((JSON.parse(l) as { msg?: unknown }).msg ?? "");
+      } catch {
+        return l;
+      }
+    });
+    const stopLogLine = logMessages.find((m) => m.startsWith("Grindfade stopped")) ?? null;
     const controlStateAfterStop = clusterState(dataDir);
     const all = phones.flatMap((p) => p.outcome.map((o, i) => ({ o, sentAt: p.sentAt[i]! })));
     const acknowledged = all.filter((x) => x.o === "acked").length;

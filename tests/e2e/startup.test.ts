@@ -1,11 +1,12 @@
-// The production server refuses to start on a database it cannot use, with one clear line.
+// The production server refuses to start on a database it cannot use, with one clear line; once
+// running, everything it prints is a JSON log line, each line of a request with its request id.
 import { spawn } from "node:child_process";
 import { randomBytes } from "node:crypto";
 import fs from "node:fs";
 import os from "node:os";
 import path from "node:path";
 import { describe, expect, it } from "vitest";
-import { serverCommand } from "./server";
+import { randomSecret, serverCommand, startServer as startRunning } from "./server";
 
 function startServer(env: Record<string, string>, cwd = process.cwd()): Promise<{ code: number | null; stderr: string; stdout: string }> {
   return new Promise((resolve) => {
@@ -52,5 +53,30 @@ describe("server start-up", () => {
     expect(r.code).toBe(1);
     expect(r.stderr.trim()).toBe("Grindfade cannot start: there is no production build here. Run `npm run build` first.");
     fs.rmSync(empty, { recursive: true, force: true });
+  });
+
+  it("prints only JSON log lines, and a refused request's one line carries the id its answer carries", { timeout: 120_000 }, async () => {
+    const server = await startRunning(randomSecret(), { GRINDFADE_LOG_LEVEL: "info" });
+    try {
+      const res = await fetch(`${server.baseURL}/api/seats/00000000-0000-4000-8000-000000000000`, { headers: { "x-request-id": "forged" } });
+      expect(res.status).toBeGreaterThanOrEqual(400);
+      expect(res.status).toBeLessThan(500);
+      const id = res.headers.get("x-request-id")!;
+      await fetch(`${server.baseURL}/sign-in`);
+      await new Promise((r) => setTimeout(r, 300));
+      const lines = server.output().split("\n").filter((l) => l.trim() !== "");
+      expect(lines.length).toBeGreaterThan(1);
+      for (const line of lines) {
+        const parsed = JSON.parse(line) as { level: number; time: string };
+        expect(parsed.level, line).toBeGreaterThanOrEqual(10);
+        expect(parsed.time, line).toMatch(/^\d{4}-\d{2}-\d{2}T/);
+      }
+      // At most one line for the refused request, and no stack on it.
+      const ofRequest = lines.filter((l) => l.includes(id));
+      expect(ofRequest.length).toBeLessThanOrEqual(1);
+      for (const l of ofRequest) expect(l).not.toMatch(/"stack"/);
+    } finally {
+      await server.stop();
+    }
   });
 });

@@ -3,7 +3,7 @@
 // that its 500 answer also carries.
 import { describe, expect, it, vi } from "vitest";
 import { ConflictError, errorAnswer } from "@/lib/errors";
-import { log, makeLogger, requestContext, requestIdFrom } from "@/lib/log";
+import { log, makeLogger, requestContext, requestIdFrom, routeConsoleToLog } from "@/lib/log";
 
 describe("request log", () => {
   it("puts the request's id on every line logged while it is answered", () => {
@@ -46,6 +46,32 @@ describe("request log", () => {
       error.mockRestore();
       info.mockRestore();
     }
+  });
+
+  it("turns what the framework writes to the console into log lines with the request's id, an error's stack once", () => {
+    const lines: string[] = [];
+    const logger = makeLogger("debug", { write: (line: string) => void lines.push(line) });
+    const restore = routeConsoleToLog(logger);
+    const boom = new Error("render failed");
+    try {
+      requestContext.run({ requestId: "99999999-2222-3333-4444-555555555555" }, () => {
+        console.error(" ⨯", boom);
+        console.warn("slow %s", "page", 12);
+      });
+      console.log("ready on", 3000);
+    } finally {
+      restore();
+    }
+    // The console is the console again.
+    console.log("not captured");
+    const parsed = lines.map((l) => JSON.parse(l) as { level: number; msg: string; requestId?: string; err?: { message: string; stack: string } });
+    expect(parsed.map((p) => [p.level, p.msg, p.requestId])).toEqual([
+      [50, "⨯", "99999999-2222-3333-4444-555555555555"],
+      [40, "slow page 12", "99999999-2222-3333-4444-555555555555"],
+      [30, "ready on 3000", undefined],
+    ]);
+    expect(parsed[0]!.err).toMatchObject({ message: "render failed", stack: expect.stringContaining("request-log.test.ts") });
+    expect(lines.filter((l) => l.includes("at ")).length).toBe(1);
   });
 
   it("takes only ids of its own making from a header", () => {
