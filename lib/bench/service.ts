@@ -386,11 +386,18 @@ export async function endSession(db: Db, actor: Actor, sessionId: string): Promi
  * recording yet may still receive its first one — a phone's queue can deliver it late — which adds
  * to the record without changing anything already reviewed.
  */
+/**
+ * A recording is part of the seat's record: once the seat or the job is signed off, none is added
+ * or replaced (nothing on a signed-off head is newer than its sign-off). A first recording that
+ * arrives late stays on the phone that made it, refused with this reason, until a supervisor
+ * reopens the seat.
+ */
 function assertRecordingReplaceable(ctx: Awaited<ReturnType<typeof loadSession>>): void {
-  if (!ctx.session.recordingKey) return;
   if (ctx.seat.state === "approved" || isClosed(ctx.job.status)) {
     throw new ConflictError(
-      `Seat ${seatCode(ctx.seat)} is signed off and this session's recording is part of its record. A supervisor must reopen the seat before it is replaced.`,
+      ctx.session.recordingKey
+        ? `Seat ${seatCode(ctx.seat)} is signed off and this session's recording is part of its record. A supervisor must reopen the seat before it is replaced.`
+        : `Seat ${seatCode(ctx.seat)} was signed off before this recording arrived, so it is not added to the record. It stays on the phone that made it; a supervisor can reopen the seat to take it.`,
     );
   }
 }

@@ -152,7 +152,7 @@ describe("recording upload", () => {
     expect(filesOf()).toHaveLength(1);
   });
 
-  it("never replaces the recording of a signed-off seat, but still takes a late first recording", async () => {
+  it("never replaces or adds a recording once the seat is signed off, late first recordings included", async () => {
     signInAs("ines@millrace.example");
     const seat = await findSeat(db(), "MHW-0141", "4E1");
     const withRecording = sessionBody("coarse", "phone-ines-1");
@@ -180,8 +180,16 @@ describe("recording upload", () => {
     expect(await row(withRecording.sessionId)).toEqual(kept);
     expect(new Uint8Array(fs.readFileSync(await storedFile(withRecording.sessionId)))).toEqual(wav);
     expect(filesOf(withRecording.sessionId)).toHaveLength(1);
-    // The other session, recorded before the sign-off, arrives late from the phone's queue.
+    // The other session, recorded before the sign-off, arrives late from the phone's queue: the
+    // record as signed off is not changed; the phone keeps it, refused with the reason.
     signInAs("ines@millrace.example");
+    const lateAnswer = await put(late.sessionId, wav);
+    expect(lateAnswer.status).toBe(409);
+    expect(((await bodyOf(lateAnswer)) as { message: string }).message).toMatch(/signed off before this recording arrived.*stays on the phone/);
+    expect((await row(late.sessionId)).recordingKey).toBeNull();
+    expect(filesOf(late.sessionId)).toHaveLength(0);
+    // Reopened by a supervisor, the seat takes it.
+    await db().update(seats).set({ state: "settled" }).where(eq(seats.id, seat));
     expect((await put(late.sessionId, wav)).status).toBe(201);
     expect((await row(late.sessionId)).recordingBytes).toBe(wav.byteLength);
   });
