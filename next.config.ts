@@ -12,6 +12,8 @@ const nextConfig: NextConfig = {
     // first part, with a warning in the log. Above the largest upload taken (a 64 MB recording),
     // so an upload over its limit still reaches the route whole enough to be refused with 413.
     proxyClientMaxBodySize: "65mb",
+    // forbidden() from next/navigation: a page refused to a role answers 403 (app/forbidden.tsx).
+    authInterrupts: true,
   },
   // `npm test` type-checks the whole project once (next typegen && tsc); the build need not repeat it.
   typescript: { ignoreBuildErrors: true },

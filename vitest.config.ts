@@ -14,6 +14,9 @@ export default defineConfig({
           include: ["tests/**/*.test.ts"],
           exclude: ["tests/e2e/**", "node_modules/**"],
           environment: "node",
+          // As next.config.ts's experimental.authInterrupts sets it for the app: pages rendered
+          // in tests may call forbidden().
+          env: { __NEXT_EXPERIMENTAL_AUTH_INTERRUPTS: "true" },
           testTimeout: 60_000,
           hookTimeout: 60_000,
         },

@@ -289,13 +289,14 @@ export function BenchScreen({ initial, initialStage }: { initial: SeatReport; in
     await sync();
   }
 
-  async function startListening() {
-    window.history.replaceState(null, "", `?stage=${stage}`);
+  async function startListening(at: Stage = stage) {
+    if (at !== stage) setStage(at);
+    window.history.replaceState(null, "", `?stage=${at}`);
     setCue(null);
     setRefusals([]);
     setSpeechHeard(0);
     setPicked(null);
-    cueShown.current = { settled: serverStage.verdict.state === "settled", notSettling: false };
+    cueShown.current = { settled: report.stages[at].verdict.state === "settled", notSettling: false };
     const sessionId = crypto.randomUUID();
     sessionRef.current = sessionId;
     strokeCounter.current = 0;
@@ -307,7 +308,7 @@ export function BenchScreen({ initial, initialStage }: { initial: SeatReport; in
     await outbox().add({
       kind: "session",
       seatId,
-      body: { sessionId, stage, deviceId: deviceId(), sampleRateHz: undefined },
+      body: { sessionId, stage: at, deviceId: deviceId(), sampleRateHz: undefined },
     });
     await sync();
   }
@@ -331,7 +332,7 @@ export function BenchScreen({ initial, initialStage }: { initial: SeatReport; in
     >
       <header className="flex items-start justify-between gap-3">
         <div>
-          <Link prefetch={false} href={`/jobs/${report.job.id}`} className="text-sm font-semibold text-brass-dark underline-offset-2 hover:underline">
+          <Link prefetch={false} href={`/jobs/${report.job.id}`} className="inline-flex min-h-11 items-center self-start text-sm font-semibold text-brass-dark underline-offset-2 hover:underline">
             ← {report.job.number} · {report.head.label}
           </Link>
           <h1 className="mt-1 leading-none" data-testid="seat-heading">
@@ -408,6 +409,87 @@ export function BenchScreen({ initial, initialStage }: { initial: SeatReport; in
         </div>
       </section>
 
+      {!report.canWork ? (
+        <p className="rounded-xl border border-stone-300 bg-stone-100 p-3 text-sm">
+          This seat is read-only for you
+          {report.seat.state === "approved" ? ": it is signed off." : ": the job is assigned to someone else or your role only reads."}
+        </p>
+      ) : (
+        <div className="flex flex-col gap-2" data-testid="bench-actions">
+          {listener.phase === "calibrating" ? (
+            <p className="rounded-xl bg-amber-400 p-3 text-center text-xl font-bold text-ink" data-testid="calibrating">
+              {listener.calibrationNote === "measuring-again"
+                ? "Something was heard — stay quiet, measuring the room again…"
+                : listener.calibrationNote === "quieter"
+                  ? "The room is quieter than it was measured — stay quiet, measuring it again…"
+                  : "Stay quiet — measuring the room…"}
+            </p>
+          ) : null}
+          {listener.phase === "listening" && listener.calibrationNote === "quiet-part" ? (
+            <p className="rounded-xl bg-amber-100 p-2 text-center text-sm text-amber-900" data-testid="calibration-note">
+              The room was not quiet while it was measured; its quiet moments were used. Tap Re-measure room when the bay is quiet.
+            </p>
+          ) : null}
+          {listening ? (
+            <div className="grid grid-cols-3 gap-2">
+              <button
+                type="button"
+                onClick={listener.recalibrate}
+                disabled={listener.phase !== "listening"}
+                className="min-h-16 rounded-2xl border-2 border-ink bg-white text-base font-bold disabled:opacity-50"
+              >
+                Re-measure room
+              </button>
+              <button
+                type="button"
+                onClick={() => void stop()}
+                className="col-span-2 min-h-16 rounded-2xl bg-rose-700 text-xl font-bold text-white"
+              >
+                Stop listening
+              </button>
+            </div>
+          ) : seatDone ? (
+            <>
+              {/* Fine compound has settled: the seat is lapped; the next step is the next seat, not more lapping. */}
+              <Link
+                prefetch={false}
+                href={report.nextSeatId ? `/bench/${report.nextSeatId}` : `/jobs/${report.job.id}`}
+                className="flex min-h-16 items-center justify-center rounded-2xl bg-emerald-700 text-xl font-bold text-white"
+                data-testid="next-step"
+              >
+                {report.nextSeatId ? "Seat lapped — next seat →" : "Seat lapped — back to the seat map"}
+              </Link>
+              <button type="button" onClick={() => void startListening()} className="min-h-11 text-sm font-semibold text-stone-600 underline underline-offset-2">
+                Listen to this seat again
+              </button>
+            </>
+          ) : (
+            <>
+              <label className="flex min-h-12 items-center gap-3 rounded-xl bg-white px-3 text-base">
+                <input type="checkbox" checked={record} onChange={(e) => setRecord(e.target.checked)} className="h-6 w-6" />
+                Record the session for the supervisor
+              </label>
+              <button
+                type="button"
+                onClick={() => void startListening(fineOffered ? "fine" : stage)}
+                className="min-h-16 rounded-2xl bg-emerald-700 text-xl font-bold text-white"
+                data-testid="start-listening"
+              >
+                {listener.error ? "Try again" : `Listen — ${STAGE_LABELS[fineOffered ? "fine" : stage].toLowerCase()}`}
+              </button>
+              {fineOffered ? <p className="text-center text-sm text-stone-600">Coarse compound has settled: clean it off, then lap with fine.</p> : null}
+            </>
+          )}
+        </div>
+      )}
+
+      {report.sentBack ? (
+        <div role="note" className="rounded-xl border-2 border-rose-400 bg-rose-50 p-3 text-rose-950" data-testid="sent-back-reason">
+          <p className="font-bold">Sent back by {report.sentBack.by}</p>
+          <p className="mt-1">{report.sentBack.comment}</p>
+        </div>
+      ) : null}
+
       <div className="rounded-2xl border border-stone-300 bg-white p-2">
         <FadeChart strokes={combined.all} fit={verdict.fit} thresholdDb={verdict.rule.maxContrastDb} onPick={setPicked} />
         <p className="px-2 text-xs text-stone-500">
@@ -462,7 +544,7 @@ export function BenchScreen({ initial, initialStage }: { initial: SeatReport; in
             </p>
             <button
               type="button"
-              className="min-h-10 rounded-lg border border-rose-400 bg-white px-3 font-semibold"
+              className="min-h-11 rounded-lg border border-rose-400 bg-white px-3 font-semibold"
               onClick={() => void outbox().retrySetAside(seatId).then(sync)}
             >
               Send again
@@ -521,82 +603,10 @@ export function BenchScreen({ initial, initialStage }: { initial: SeatReport; in
         ) : null}
       </div>
 
-      {!report.canWork ? (
-        <p className="rounded-xl border border-stone-300 bg-stone-100 p-3 text-sm">
-          This seat is read-only for you
-          {report.seat.state === "approved" ? ": it is signed off." : ": the job is assigned to someone else or your role only reads."}
-        </p>
-      ) : (
-        <div className="sticky bottom-2 flex flex-col gap-2">
-          {listener.phase === "calibrating" ? (
-            <p className="rounded-xl bg-amber-400 p-3 text-center text-xl font-bold text-ink" data-testid="calibrating">
-              {listener.calibrationNote === "measuring-again"
-                ? "Something was heard — stay quiet, measuring the room again…"
-                : listener.calibrationNote === "quieter"
-                  ? "The room is quieter than it was measured — stay quiet, measuring it again…"
-                  : "Stay quiet — measuring the room…"}
-            </p>
-          ) : null}
-          {listener.phase === "listening" && listener.calibrationNote === "quiet-part" ? (
-            <p className="rounded-xl bg-amber-100 p-2 text-center text-sm text-amber-900" data-testid="calibration-note">
-              The room was not quiet while it was measured; its quiet moments were used. Tap Re-measure room when the bay is quiet.
-            </p>
-          ) : null}
-          {listening ? (
-            <div className="grid grid-cols-3 gap-2">
-              <button
-                type="button"
-                onClick={listener.recalibrate}
-                disabled={listener.phase !== "listening"}
-                className="min-h-16 rounded-2xl border-2 border-ink bg-white text-base font-bold disabled:opacity-50"
-              >
-                Re-measure room
-              </button>
-              <button
-                type="button"
-                onClick={() => void stop()}
-                className="col-span-2 min-h-16 rounded-2xl bg-rose-700 text-xl font-bold text-white"
-              >
-                Stop listening
-              </button>
-            </div>
-          ) : (
-            <>
-              <label className="flex min-h-12 items-center gap-3 rounded-xl bg-white px-3 text-base">
-                <input type="checkbox" checked={record} onChange={(e) => setRecord(e.target.checked)} className="h-6 w-6" />
-                Record the session for the supervisor
-              </label>
-              <button
-                type="button"
-                onClick={() => void startListening()}
-                className="min-h-16 rounded-2xl bg-emerald-700 text-xl font-bold text-white"
-                data-testid="start-listening"
-              >
-                {listener.error ? "Try again" : `Listen — ${STAGE_LABELS[stage].toLowerCase()}`}
-              </button>
-            </>
-          )}
-          {!listening && fineOffered ? (
-            <button type="button" onClick={() => setStage("fine")} className="min-h-14 rounded-2xl border-2 border-ink bg-white text-lg font-bold">
-              Coarse settled — switch to fine compound
-            </button>
-          ) : null}
-          {!listening && seatDone && report.nextSeatId ? (
-            <Link
-              prefetch={false}
-              href={`/bench/${report.nextSeatId}`}
-              className="flex min-h-14 items-center justify-center rounded-2xl border-2 border-ink bg-white text-lg font-bold"
-            >
-              Seat lapped — next seat →
-            </Link>
-          ) : null}
-        </div>
-      )}
-
       {!listening ? <SeatPhotos seatId={seatId} canAdd={report.canWork} /> : null}
 
       <details className="rounded-xl border border-stone-300 bg-white p-3 text-sm">
-        <summary className="min-h-10 cursor-pointer font-semibold">Cautions</summary>
+        <summary className="min-h-11 py-2.5 cursor-pointer font-semibold">Cautions</summary>
         <ul className="mt-2 list-disc pl-5 text-stone-700">
           <li>Wear eye protection; lapping compound and grit can fly.</li>
           <li>Keep compound off the stem and guide; clean every trace afterwards with solvent, with ventilation and nitrile gloves, away from flames.</li>

@@ -15,6 +15,8 @@ export interface SeatMapSeat {
   state: SeatMapState;
   contrastsDb: number[]; // the latest stage's onset contrasts stroke by stroke (empty when none)
   valveTag: string | null;
+  /** The supervisor's reason, while the seat stands sent back. */
+  sentBack?: { comment: string; by: string } | null;
 }
 
 export interface SeatMapProps {
@@ -173,6 +175,17 @@ function SeatLink({
     >
       {showSpark ? (
         <>
+          {/* One tap area over the disc, the sparkline and the gap between them: a finger on
+              any of it opens the seat, never the head drawn underneath. */}
+          <rect
+            x={Math.min(slot.cx - slot.r, slot.spark.x)}
+            y={Math.min(slot.cy - slot.r, slot.spark.y)}
+            width={Math.max(slot.cx + slot.r, slot.spark.x + slot.spark.width) - Math.min(slot.cx - slot.r, slot.spark.x)}
+            height={Math.max(slot.cy + slot.r, slot.spark.y + slot.spark.height) - Math.min(slot.cy - slot.r, slot.spark.y)}
+            fill="transparent"
+            pointerEvents="all"
+            aria-hidden="true"
+          />
           <Sparkline contrastsDb={strokes} thresholdDb={thresholdDb} box={slot.spark} />
           <text
             x={slot.sparkCaptionX}
@@ -394,6 +407,24 @@ export function SeatMap(props: SeatMapProps) {
           })}
         </svg>
       </div>
+      {props.seats.some((s) => s.state === "sent_back" && s.sentBack) ? (
+        <ul className="flex flex-col gap-2" aria-label="Seats sent back, with the supervisor's reasons" data-testid="sent-back-list">
+          {layout.seats.flatMap((slot) => {
+            const seat = slot.seatId ? seatsById.get(slot.seatId) : undefined;
+            if (!seat || seat.state !== "sent_back" || !seat.sentBack) return [];
+            return [
+              <li key={seat.id}>
+                <a href={hrefFor(seat.id)} className="flex min-h-11 flex-col justify-center rounded-lg border-2 border-rose-300 bg-rose-50 px-3 py-2 text-rose-950">
+                  <span>
+                    <span className="figure font-bold">{slot.code}</span> sent back by {seat.sentBack.by}
+                  </span>
+                  <span className="text-sm">{seat.sentBack.comment}</span>
+                </a>
+              </li>,
+            ];
+          })}
+        </ul>
+      ) : null}
       <SeatMapLegend thresholdDb={thresholdDb} />
     </div>
   );

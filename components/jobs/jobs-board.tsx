@@ -101,6 +101,8 @@ export function JobsBoard({ actorId, canBookIn = false }: { actorId: string; can
   const mine = params.get("mine") === "1";
   const technicianFilter = mine ? actorId : (params.get("technician") ?? "");
   const [search, setSearch] = useState("");
+  // On a phone the filters fold away behind one button; from md up they are always shown.
+  const [filtersOpen, setFiltersOpen] = useState(false);
   const [sorting, setSorting] = useState<SortingState>([{ id: "promisedOn", desc: false }]);
 
   const query = useQuery({ queryKey: ["jobs"], queryFn: fetchJobs });
@@ -131,6 +133,8 @@ export function JobsBoard({ actorId, canBookIn = false }: { actorId: string; can
     getFilteredRowModel: getFilteredRowModel(),
   });
 
+  const filtersActive = Boolean(search || statusFilter || technicianFilter);
+
   function setParam(key: string, value: string) {
     const next = new URLSearchParams(params.toString());
     if (key === "technician") next.delete("mine");
@@ -141,7 +145,6 @@ export function JobsBoard({ actorId, canBookIn = false }: { actorId: string; can
   }
 
   const rows = table.getRowModel().rows;
-  const filtersActive = Boolean(search || statusFilter || technicianFilter);
 
   return (
     <section aria-labelledby="board-heading" className="flex flex-col gap-4">
@@ -150,7 +153,7 @@ export function JobsBoard({ actorId, canBookIn = false }: { actorId: string; can
           <h1 id="board-heading" className="text-2xl font-bold tracking-tight">
             {mine ? "My work" : statusFilter ? JOB_STATUS_LABELS[statusFilter as JobStatus] ?? "Jobs board" : "Jobs board"}
           </h1>
-          <p className="text-stone-600">Every head in the shop, soonest promised first.</p>
+          <p className="text-stone-600">{mine ? "Heads assigned to you, soonest promised first." : "Every head in the shop, soonest promised first."}</p>
         </div>
         {canBookIn ? (
           <Link href="/jobs/new" className="inline-flex min-h-12 items-center rounded-lg bg-ink px-5 font-semibold text-white">
@@ -159,7 +162,24 @@ export function JobsBoard({ actorId, canBookIn = false }: { actorId: string; can
         ) : null}
       </div>
 
-      <div className="grid grid-cols-1 gap-3 rounded-xl border border-stone-300 bg-white p-3 sm:grid-cols-3">
+      <button
+        type="button"
+        aria-expanded={filtersOpen}
+        aria-controls="board-filters"
+        onClick={() => setFiltersOpen((o) => !o)}
+        className="flex min-h-12 items-center justify-between rounded-xl border border-stone-300 bg-white px-4 font-semibold md:hidden"
+        data-testid="filters-toggle"
+      >
+        <span>
+          Search and filters
+          {filtersActive ? <span className="ml-2 rounded-full bg-amber-200 px-2 py-0.5 text-xs">{[search, statusFilter, technicianFilter].filter(Boolean).length} on</span> : null}
+        </span>
+        <span aria-hidden>{filtersOpen ? "▲" : "▼"}</span>
+      </button>
+      <div
+        id="board-filters"
+        className={`${filtersOpen ? "grid" : "hidden"} grid-cols-1 gap-3 rounded-xl border border-stone-300 bg-white p-3 sm:grid-cols-3 md:grid`}
+      >
         <label className="flex flex-col gap-1 text-sm font-semibold">
           Search
           <input
@@ -225,6 +245,14 @@ export function JobsBoard({ actorId, canBookIn = false }: { actorId: string; can
           <p className="text-lg font-semibold">No jobs yet</p>
           <p className="text-stone-600">When a head comes in for work, its job appears here.</p>
         </div>
+      ) : rows.length === 0 && mine && !search && !statusFilter ? (
+        <div className="rounded-xl border border-dashed border-stone-400 p-8 text-center" data-testid="jobs-none-mine">
+          <p className="text-lg font-semibold">Nothing assigned to you</p>
+          <p className="text-stone-600">A supervisor assigns heads to technicians when they are booked in.</p>
+          <Link href="/jobs" className="mt-3 inline-flex min-h-12 items-center rounded-lg border border-stone-400 px-4 font-semibold">
+            See every job in the shop
+          </Link>
+        </div>
       ) : rows.length === 0 ? (
         <div className="rounded-xl border border-dashed border-stone-400 p-8 text-center" data-testid="jobs-none-match">
           <p className="text-lg font-semibold">No jobs match these filters</p>
@@ -260,7 +288,7 @@ export function JobsBoard({ actorId, canBookIn = false }: { actorId: string; can
                           <button
                             type="button"
                             onClick={h.column.getToggleSortingHandler()}
-                            className="flex min-h-10 items-center gap-1 font-semibold"
+                            className="flex min-h-11 items-center gap-1 font-semibold"
                           >
                             {flexRender(h.column.columnDef.header, h.getContext())}
                             <span aria-hidden className="text-stone-400">

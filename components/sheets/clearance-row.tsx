@@ -90,7 +90,7 @@ export function ClearanceRow({ jobId, camshaftLabel, journal, closed }: { jobId:
             </select>
           </label>
           <details className="col-span-2 text-sm sm:col-span-6">
-            <summary className="min-h-10 cursor-pointer">Specification for this journal (leave blank to use the job&apos;s)</summary>
+            <summary className="min-h-11 py-2.5 cursor-pointer">Specification for this journal (leave blank to use the job&apos;s)</summary>
             <div className="mt-1 grid grid-cols-3 gap-2">
               {(["specMin", "specMax", "specLimit"] as const).map((k) => (
                 <label key={k} className="flex flex-col font-semibold">

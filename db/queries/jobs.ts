@@ -191,3 +191,15 @@ export async function seatCurves(db: Db, headId: string): Promise<Map<string, nu
   }
   return new Map([...bySeat].map(([id, c]) => [id, c.fine.length ? c.fine : c.coarse]));
 }
+
+/** Whether a seat of this id is on a job of the caller's shop: the cheap check a seat's pages make before anything streams. */
+export async function seatInShop(db: Db, shopId: string, seatId: string): Promise<boolean> {
+  const rows = await db
+    .select({ id: seats.id })
+    .from(seats)
+    .innerJoin(heads, eq(heads.id, seats.headId))
+    .innerJoin(jobs, eq(jobs.id, heads.jobId))
+    .where(and(eq(seats.id, seatId), eq(jobs.shopId, shopId)))
+    .limit(1);
+  return rows.length > 0;
+}

@@ -1,7 +1,7 @@
 // The server side of the bench screen: lapping sessions, stroke saves and the verdict. The
 // phone's own verdict is only a preview; the one that counts is recomputed here from the stored
 // strokes with the same lib/audio functions.
-import { and, asc, eq, gt, isNull, ne, sql } from "drizzle-orm";
+import { and, asc, desc, eq, gt, isNull, ne, sql } from "drizzle-orm";
 import type { Db } from "@/db/client";
 import {
   heads,
@@ -14,6 +14,7 @@ import {
   type JobStatus,
   type LappingStage,
   type SeatState,
+  reviews,
 } from "@/db/schema";
 import { judgeSeat, type SeatVerdict } from "@/lib/audio";
 import type { Actor } from "@/lib/auth/guard";
@@ -105,6 +106,20 @@ export interface SeatReport {
   stages: Record<LappingStage, StageRecord>;
   nextSeatId: string | null;
   canWork: boolean;
+  /** Why a supervisor sent this seat back, while it stands sent back; null otherwise. */
+  sentBack: { comment: string; by: string; at: string } | null;
+}
+
+/** The supervisor's reason for sending a seat back: its latest decision, when that is the one in force. */
+export async function sentBackReason(db: Db, seatId: string): Promise<SeatReport["sentBack"]> {
+  const [latest] = await db
+    .select({ decision: reviews.decision, comment: reviews.comment, by: users.name, at: reviews.createdAt })
+    .from(reviews)
+    .innerJoin(users, eq(users.id, reviews.reviewerId))
+    .where(eq(reviews.seatId, seatId))
+    .orderBy(desc(reviews.createdAt))
+    .limit(1);
+  return latest?.decision === "sent_back" ? { comment: latest.comment, by: latest.by, at: latest.at.toISOString() } : null;
 }
 
 
@@ -246,6 +261,7 @@ export async function getSeatReport(db: Db, actor: Actor, seatId: string): Promi
     stages: await stageRecords(db, seatId),
     nextSeatId: await nextSeatInHead(db, ctx),
     canWork,
+    sentBack: ctx.seat.state === "sent_back" ? await sentBackReason(db, seatId) : null,
   };
 }
 

@@ -32,7 +32,7 @@ describe("sign-in per role", () => {
       const context = await browser.newContext(DESKTOP);
       const user = demo(role);
       const page = await signIn(context, baseURL, user.email, user.password);
-      await page.waitForURL(/\/jobs$/);
+      await page.waitForURL(/\/jobs(\?mine=1)?$/);
       const nav = page.getByRole("navigation", { name: "Main" });
       for (const label of EXPECTED_NAV[role]!.has) {
         await expect(nav.getByRole("link", { name: label, exact: true }).count()).resolves.toBe(1);
@@ -45,14 +45,19 @@ describe("sign-in per role", () => {
     });
   }
 
-  it("the demo technician sees the jobs board on a phone-sized screen", async () => {
+  it("the demo technician lands on their own work, then sees the whole jobs board, on a phone-sized screen", async () => {
     const context = await browser.newContext(PHONE);
     const user = demo("technician");
     const page = await signIn(context, baseURL, user.email, user.password);
-    await page.waitForURL(/\/jobs$/);
+    await page.waitForURL(/\/jobs\?mine=1$/);
     const cards = page.getByTestId("jobs-cards");
     await cards.waitFor();
-    expect(await cards.getByRole("listitem").count()).toBeGreaterThanOrEqual(3);
+    const own = await cards.getByRole("listitem").count();
+    expect(own).toBeGreaterThanOrEqual(1);
+    await page.goto(`${baseURL}/jobs`);
+    await page.getByRole("heading", { name: "Jobs board" }).waitFor();
+    await expect.poll(() => cards.getByRole("listitem").count()).toBeGreaterThanOrEqual(3);
+    expect(await cards.getByRole("listitem").count()).toBeGreaterThan(own);
     // The desktop table is hidden on a phone; the page must not scroll sideways.
     expect(await page.getByTestId("jobs-table").isVisible()).toBe(false);
     const overflow = await page.evaluate(() => document.documentElement.scrollWidth - window.innerWidth);
@@ -67,7 +72,7 @@ describe("sign-in per role", () => {
     const context = await browser.newContext(DESKTOP);
     const user = demo("supervisor");
     const page = await signIn(context, baseURL, user.email, user.password);
-    await page.waitForURL(/\/jobs$/);
+    await page.waitForURL(/\/jobs(\?mine=1)?$/);
     await page.getByRole("button", { name: "Sign out" }).click();
     await page.waitForURL(/\/sign-in/);
     await page.goto(`${baseURL}/jobs`);
@@ -143,7 +148,7 @@ describe("API and pages answer for themselves", () => {
     const context = await browser.newContext(DESKTOP);
     const user = demo("technician");
     const page = await signIn(context, baseURL, user.email, user.password);
-    await page.waitForURL(/\/jobs$/);
+    await page.waitForURL(/\/jobs(\?mine=1)?$/);
     const res = await page.request.get(`${baseURL}/api/jobs`);
     expect(res.status()).toBe(200);
     const body = (await res.json()) as { jobs: Array<{ number: string; customerName: string; seatCount: number }> };
@@ -157,7 +162,7 @@ describe("API and pages answer for themselves", () => {
     const context = await browser.newContext(DESKTOP);
     const user = demo("technician");
     const page = await signIn(context, baseURL, user.email, user.password);
-    await page.waitForURL(/\/jobs$/);
+    await page.waitForURL(/\/jobs(\?mine=1)?$/);
     await page.goto(`${baseURL}/admin/people`);
     await page.getByTestId("forbidden").waitFor();
     await context.close();
@@ -167,7 +172,7 @@ describe("API and pages answer for themselves", () => {
     const context = await browser.newContext(DESKTOP);
     const user = demo("technician");
     const page = await signIn(context, baseURL, user.email, user.password);
-    await page.waitForURL(/\/jobs$/);
+    await page.waitForURL(/\/jobs(\?mine=1)?$/);
     const res = await page.goto(`${baseURL}/no/such/place`);
     expect(res?.status()).toBe(404);
     await page.getByText("Nothing on this bench").waitFor();
@@ -178,7 +183,7 @@ describe("API and pages answer for themselves", () => {
     const context = await browser.newContext(PHONE);
     const user = demo("technician");
     const page = await signIn(context, baseURL, user.email, user.password);
-    await page.waitForURL(/\/jobs$/);
+    await page.waitForURL(/\/jobs(\?mine=1)?$/);
     const res = await page.request.get(`${baseURL}/api/jobs`);
     const { jobs } = (await res.json()) as { jobs: Array<{ id: string; seatCount: number }> };
     const v6 = jobs.find((j) => j.seatCount === 24)!;

@@ -62,7 +62,7 @@ describe("bench screen: one bad stroke never stalls the phone", () => {
     await context.route("**/api/sessions/*/strokes", strokeSave);
 
     const page = await signIn(context, baseURL, dov.email, dov.password);
-    await page.waitForURL(/\/jobs$/);
+    await page.waitForURL(/\/jobs(\?mine=1)?$/);
     const { jobs } = (await (await page.request.get(`${baseURL}/api/jobs`)).json()) as { jobs: Array<{ id: string; number: string }> };
     await page.goto(`${baseURL}/jobs/${jobs.find((j) => j.number === JOB)!.id}`);
     await page.locator('a[href^="/bench/"]', { hasText: SEAT }).first().click();

@@ -210,7 +210,7 @@ async function openBench(micFile: string | null): Promise<{ context: BrowserCont
   const context = await browser.newContext({ ...PHONE, permissions: micFile ? ["microphone"] : [] });
   await context.addInitScript(NOTE_STROKES);
   const page = await signIn(context, line.url, tech.email, tech.password);
-  await page.waitForURL(/\/jobs$/);
+  await page.waitForURL(/\/jobs(\?mine=1)?$/);
   const { jobs } = (await (await context.request.get(`${baseURL}/api/jobs`)).json()) as { jobs: Array<{ id: string; number: string }> };
   await page.goto(`${line.url}/jobs/${jobs.find((j) => j.number === "MHW-0141")!.id}`);
   // E2E_DEBUG=1 prints the page's console and its requests, to follow a failing run.
@@ -372,7 +372,7 @@ describe("bench screen offline", () => {
     await page.getByLabel("E-mail").fill(tech.email);
     await page.getByLabel("Password").fill(tech.password);
     await page.getByRole("button", { name: "Sign in" }).click();
-    await page.waitForURL(/\/jobs$/);
+    await page.waitForURL(/\/jobs(\?mine=1)?$/);
     await page.goto(benchURL);
     await page.getByTestId("start-listening").waitFor();
     expect(await offlineReload()).toEqual({ ok: true, fromServiceWorker: true });

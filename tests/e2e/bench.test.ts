@@ -36,7 +36,7 @@ async function openSeat(mic: FakeMicFile, jobNumber: string, seatCode: string, w
   const context = await browser.newContext({ ...PHONE, permissions: ["microphone"] });
   const tech = DEMO_USERS.find((u) => u.email.startsWith(who))!;
   const page = await signIn(context, baseURL, tech.email, tech.password);
-  await page.waitForURL(/\/jobs$/);
+  await page.waitForURL(/\/jobs(\?mine=1)?$/);
   const { jobs } = (await (await page.request.get(`${baseURL}/api/jobs`)).json()) as { jobs: Array<{ id: string; number: string }> };
   const job = jobs.find((j) => j.number === jobNumber)!;
   await page.goto(`${baseURL}/jobs/${job.id}`);
@@ -89,8 +89,8 @@ describe("bench screen with a fake microphone", () => {
     await page.getByTestId("stroke-count").waitFor();
     expect(await strokeCount(page)).toBe(seen);
     expect(await page.getByTestId("verdict").innerText()).toBe("Settled");
-    // Coarse settled: the screen offers fine compound next.
-    await page.getByRole("button", { name: /switch to fine compound/i }).waitFor();
+    // Coarse settled: the big button now listens with fine compound.
+    expect(await page.getByTestId("start-listening").innerText()).toBe("Listen — fine compound");
     await page.screenshot({ path: path.join(ARTIFACTS, "bench-after-reload.png") });
   });
 
@@ -167,7 +167,7 @@ describe("bench screen with a fake microphone", () => {
     const context = await browser.newContext({ ...PHONE });
     const tech = DEMO_USERS.find((u) => u.email.startsWith("ines"))!;
     const page = await signIn(context, baseURL, tech.email, tech.password);
-    await page.waitForURL(/\/jobs$/);
+    await page.waitForURL(/\/jobs(\?mine=1)?$/);
     const { jobs } = (await (await page.request.get(`${baseURL}/api/jobs`)).json()) as { jobs: Array<{ id: string; number: string }> };
     await page.goto(`${baseURL}/jobs/${jobs.find((j) => j.number === "MHW-0141")!.id}`);
     await page.locator('a[href^="/bench/"]', { hasText: "4E2" }).first().click();

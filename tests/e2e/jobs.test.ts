@@ -19,7 +19,7 @@ describe("jobs", () => {
     const context = await browser.newContext(PHONE);
     const sup = DEMO_USERS.find((u) => u.role === "supervisor")!;
     const page = await signIn(context, baseURL, sup.email, sup.password);
-    await page.waitForURL(/\/jobs$/);
+    await page.waitForURL(/\/jobs(\?mine=1)?$/);
     await page.getByRole("link", { name: "Book in a job" }).tap();
     await page.waitForURL(/\/jobs\/new$/);
     // Nothing filled in and an odd V: messages on the fields, no job.
@@ -50,7 +50,7 @@ describe("jobs", () => {
     const context = await browser.newContext(DESKTOP);
     const tech = DEMO_USERS.find((u) => u.role === "technician")!;
     const page = await signIn(context, baseURL, tech.email, tech.password);
-    await page.waitForURL(/\/jobs$/);
+    await page.waitForURL(/\/jobs(\?mine=1)?$/);
     expect(await page.getByRole("link", { name: "Book in a job" }).count()).toBe(0);
     await page.goto(`${baseURL}/jobs/new`);
     await page.getByTestId("forbidden").waitFor();

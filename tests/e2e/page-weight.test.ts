@@ -80,7 +80,7 @@ describe("page weight", () => {
       const boundaryOnly = w.files.filter((f) => !needed.has(f));
       for (const f of boundaryOnly.filter((f) => !loaded.includes(f))) {
         const owners = Object.entries(w.segments).filter(([, files]) => files.includes(f)).map(([segment]) => segment);
-        expect(owners.every((s) => /\/(not-found|error|global-error)$/.test(s)), `${route}: ${f} from ${owners.join(", ")}`).toBe(true);
+        expect(owners.every((s) => /\/(not-found|forbidden|error|global-error)$/.test(s)), `${route}: ${f} from ${owners.join(", ")}`).toBe(true);
       }
     }
   });

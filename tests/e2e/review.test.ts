@@ -29,7 +29,7 @@ beforeAll(async () => {
   const context = await browser.newContext(PHONE);
   const supervisor = DEMO_USERS.find((u) => u.email === "rhea@millrace.example")!;
   page = await signIn(context, baseURL, supervisor.email, supervisor.password);
-  await page.waitForURL(/\/jobs$/);
+  await page.waitForURL(/\/jobs(\?mine=1)?$/);
   const { jobs } = (await (await page.request.get(`${baseURL}/api/jobs`)).json()) as { jobs: Array<{ id: string; number: string }> };
   jobId = jobs.find((j) => j.number === "MHW-0141")!.id;
   // The seat's id, as the job page's seat map links it.

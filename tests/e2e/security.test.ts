@@ -131,7 +131,7 @@ describe("pages run within their policy", () => {
       p.evaluate(() => (window as unknown as { __violations: string[] }).__violations);
 
     const page = await signIn(context, baseURL, supervisor.email, supervisor.password);
-    await page.waitForURL(/\/jobs$/);
+    await page.waitForURL(/\/jobs(\?mine=1)?$/);
     expect(await violations(page)).toEqual([]);
     const { jobs } = (await (await page.request.get(`${baseURL}/api/jobs`)).json()) as { jobs: { id: string; number: string }[] };
     const audited = jobs.find((j) => j.number === "MHW-0143")!;

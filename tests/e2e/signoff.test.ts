@@ -32,7 +32,7 @@ describe("sign-off in the browser", () => {
     const context = await browser.newContext(DESKTOP);
     const sup = DEMO_USERS.find((u) => u.role === "supervisor")!;
     const page = await signIn(context, baseURL, sup.email, sup.password);
-    await page.waitForURL(/\/jobs$/);
+    await page.waitForURL(/\/jobs(\?mine=1)?$/);
     const { jobs } = (await (await page.request.get(`${baseURL}/api/jobs`)).json()) as { jobs: Array<{ id: string; number: string }> };
     const job = jobs.find((j) => j.number === "MHW-0143")!; // awaiting audit, every seat settled (db/seed.ts)
     await page.goto(`${baseURL}/jobs/${job.id}`);
@@ -81,7 +81,7 @@ describe("sign-off in the browser", () => {
     const context = await browser.newContext(DESKTOP);
     const sup = DEMO_USERS.find((u) => u.role === "supervisor")!;
     const page = await signIn(context, baseURL, sup.email, sup.password);
-    await page.waitForURL(/\/jobs$/);
+    await page.waitForURL(/\/jobs(\?mine=1)?$/);
     // The jobs segment streams behind its loading skeleton, so Next has already sent 200 when the
     // page finds no job; what the supervisor gets is the not-found page, marked not to be indexed.
     await page.goto(`${baseURL}/jobs/00000000-0000-4000-8000-000000000000/report`);

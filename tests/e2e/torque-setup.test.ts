@@ -17,7 +17,7 @@ beforeAll(async () => {
   const context = await browser.newContext(PHONE);
   const tech = DEMO_USERS.find((u) => u.email.startsWith("ines"))!;
   page = await signIn(context, baseURL, tech.email, tech.password);
-  await page.waitForURL(/\/jobs$/);
+  await page.waitForURL(/\/jobs(\?mine=1)?$/);
   const { jobs } = (await (await page.request.get(`${baseURL}/api/jobs`)).json()) as { jobs: Array<{ id: string; number: string }> };
   jobUrl = `${baseURL}/jobs/${jobs.find((j) => j.number === "MHW-0141")!.id}`;
 });

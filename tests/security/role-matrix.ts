@@ -52,7 +52,7 @@ export const TARGET_JOB: Record<Persona, "MHW-0141" | "MHW-0142"> = {
  * - "redirect:/jobs": 307 to the jobs board.
  */
 export type PageOutcome =
-  "page" | "page:read-only" | "forbidden" | "redirect:/sign-in" | "redirect:/jobs";
+  "page" | "page:read-only" | "forbidden" | "redirect:/sign-in" | "redirect:/jobs" | "redirect:/";
 
 /**
  * What a route handler answers: the HTTP status. 401 and 403 are JSON `{ error, message }`
@@ -85,15 +85,15 @@ export const PAGE_MATRIX: Record<string, Row<PageOutcome>> = {
     technicianOtherJob: "redirect:/jobs",
     supervisor: "redirect:/jobs",
     admin: "redirect:/jobs",
-    why: "The home address is the jobs board.",
+    why: "The home address sends a technician to their own work and everyone else to the jobs board.",
   },
   "/sign-in": {
     anonymous: "page",
-    technicianOwnJob: "redirect:/jobs",
-    technicianOtherJob: "redirect:/jobs",
-    supervisor: "redirect:/jobs",
-    admin: "redirect:/jobs",
-    why: "Someone already signed in is sent on to the board.",
+    technicianOwnJob: "redirect:/",
+    technicianOtherJob: "redirect:/",
+    supervisor: "redirect:/",
+    admin: "redirect:/",
+    why: "Someone already signed in is sent on to the home address, which sends each role to its start.",
   },
   "/jobs": {
     anonymous: "redirect:/sign-in",

@@ -13,9 +13,10 @@ const HERE = "http://grindfade.invalid";
 
 function safeCallback(value: string | string[] | undefined): string {
   const v = Array.isArray(value) ? value[0] : value;
-  if (!v || !v.startsWith("/")) return "/jobs";
+  // By default the home page, which sends each role to its own start (a technician to their work).
+  if (!v || !v.startsWith("/")) return "/";
   const url = URL.canParse(v, HERE) ? new URL(v, HERE) : null;
-  return url && url.origin === HERE ? `${url.pathname}${url.search}${url.hash}` : "/jobs";
+  return url && url.origin === HERE ? `${url.pathname}${url.search}${url.hash}` : "/";
 }
 
 export default async function SignInPage({ searchParams }: PageProps<"/sign-in">) {

@@ -1,8 +1,8 @@
+import { forbidden } from "next/navigation";
 import type { Metadata } from "next";
 import Link from "next/link";
 import { getDb } from "@/db/client";
-import { Forbidden } from "@/components/ui/forbidden";
-import { currentActor, forbiddenMessage } from "@/lib/auth/guard";
+import { currentActor } from "@/lib/auth/guard";
 import { can } from "@/lib/auth/roles";
 import { fieldErrorsOf } from "@/lib/errors";
 import { auditFilterOptions, listAuditEntries, type AuditRow } from "@/lib/review/audit-log";
@@ -34,7 +34,7 @@ const fmt = new Intl.DateTimeFormat("en-GB", { dateStyle: "medium", timeStyle: "
 
 export default async function AuditPage({ searchParams }: PageProps<"/audit">) {
   const actor = await currentActor();
-  if (!actor || !can(actor.role, "jobs:audit")) return <Forbidden message={forbiddenMessage("jobs:audit")} />;
+  if (!actor || !can(actor.role, "jobs:audit")) forbidden();
   const raw = await searchParams;
   const parsed = auditFilterSchema.safeParse({
     job: first(raw.job),

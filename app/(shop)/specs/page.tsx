@@ -64,7 +64,7 @@ export default async function SpecsPage() {
           </div>
           {manage ? (
             <details className="mt-2">
-              <summary className="min-h-10 cursor-pointer font-semibold">Add or change a figure</summary>
+              <summary className="min-h-11 py-2.5 cursor-pointer font-semibold">Add or change a figure</summary>
               <SpecFigureForm target={{ kind: "library", engineSpecId: s.id }} />
             </details>
           ) : null}

@@ -1,8 +1,8 @@
+import { forbidden } from "next/navigation";
 import type { Metadata } from "next";
 import { getDb } from "@/db/client";
 import type { MailOutboxRow } from "@/db/schema";
-import { Forbidden } from "@/components/ui/forbidden";
-import { currentActor, forbiddenMessage } from "@/lib/auth/guard";
+import { currentActor } from "@/lib/auth/guard";
 import { can } from "@/lib/auth/roles";
 import { listShopMail } from "@/lib/mail/outbox";
 import { SendAgainButton } from "./send-again-button";
@@ -20,7 +20,7 @@ const when = new Intl.DateTimeFormat("en-GB", { dateStyle: "medium", timeStyle: 
 
 export default async function OutboxPage() {
   const actor = await currentActor();
-  if (!actor || !can(actor.role, "users:manage")) return <Forbidden message={forbiddenMessage("users:manage")} />;
+  if (!actor || !can(actor.role, "users:manage")) forbidden();
   const mail = await listShopMail(await getDb(), actor.shopId);
   return (
     <div className="flex flex-col gap-6">

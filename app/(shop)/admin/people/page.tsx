@@ -1,17 +1,17 @@
+import { forbidden } from "next/navigation";
 import type { Metadata } from "next";
 import { getDb } from "@/db/client";
 import { listPeople } from "@/db/queries/users";
 import { CreatePersonForm } from "@/components/admin/create-person-form";
 import { PersonRowActions } from "@/components/admin/person-row-actions";
-import { Forbidden } from "@/components/ui/forbidden";
-import { currentActor, forbiddenMessage } from "@/lib/auth/guard";
+import { currentActor } from "@/lib/auth/guard";
 import { can, ROLE_LABELS } from "@/lib/auth/roles";
 
 export const metadata: Metadata = { title: "People" };
 
 export default async function PeoplePage() {
   const actor = await currentActor();
-  if (!actor || !can(actor.role, "users:manage")) return <Forbidden message={forbiddenMessage("users:manage")} />;
+  if (!actor || !can(actor.role, "users:manage")) forbidden();
   const people = await listPeople(await getDb(), actor.shopId);
   return (
     <div className="flex flex-col gap-6">

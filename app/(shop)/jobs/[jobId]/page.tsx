@@ -51,7 +51,7 @@ export default async function JobPage({ params }: PageProps<"/jobs/[jobId]">) {
   return (
     <article className="flex flex-col gap-6">
       <nav aria-label="Breadcrumb" className="text-sm">
-        <Link href="/jobs" className="font-semibold text-brass-dark underline-offset-2 hover:underline">
+        <Link href="/jobs" className="inline-flex min-h-11 items-center font-semibold text-brass-dark underline-offset-2 hover:underline">
           ← Jobs board
         </Link>
       </nav>
@@ -67,6 +67,15 @@ export default async function JobPage({ params }: PageProps<"/jobs/[jobId]">) {
             </Link>
           ) : null}
         </div>
+        {job.heads[0] ? (
+          <a
+            href={`#seat-map-${job.heads[0].id}`}
+            className="inline-flex min-h-12 items-center justify-center self-start rounded-lg bg-ink px-4 font-semibold text-white md:hidden"
+            data-testid="to-seat-map"
+          >
+            Seat map ↓
+          </a>
+        ) : null}
         <p className="text-lg font-semibold">{job.customer.name}</p>
         <p className="text-stone-700">{job.engineDescription}</p>
         <dl className="mt-2 grid grid-cols-2 gap-x-6 gap-y-1 text-sm sm:grid-cols-4">
@@ -109,19 +118,7 @@ export default async function JobPage({ params }: PageProps<"/jobs/[jobId]">) {
                   {head.camshafts.length ? ` · ${head.camshafts.map((c) => `${c.label} (${c.journalCount} journals)`).join(", ")}` : ""}
                 </p>
               </div>
-              <nav aria-label="Sheets" className="grid grid-cols-2 gap-2 sm:grid-cols-4">
-                {[
-                  { href: `/jobs/${job.id}/clearance`, label: "Journal clearance" },
-                  { href: `/jobs/${job.id}/torque`, label: "Cap torque" },
-                  { href: `/jobs/${job.id}/measurements`, label: "Measurements" },
-                  { href: `/api/heads/${head.id}/sheets`, label: "Export CSV" },
-                ].map((l) => (
-                  <a key={l.href} href={l.href} className="flex min-h-14 items-center justify-center rounded-xl border-2 border-ink bg-white px-3 text-center font-semibold">
-                    {l.label}
-                  </a>
-                ))}
-              </nav>
-              <div className="rounded-xl border border-stone-300 bg-white p-3">
+              <div className="scroll-mt-4 rounded-xl border border-stone-300 bg-white p-3" id={`seat-map-${head.id}`}>
                 <h3 className="mb-2 font-semibold">Seat map — tap a seat to lap it</h3>
                 <SeatMap
                   label={`Seat map of the ${head.label.toLowerCase()}`}
@@ -138,11 +135,27 @@ export default async function JobPage({ params }: PageProps<"/jobs/[jobId]">) {
                     state: s.state,
                     contrastsDb: curves.get(s.id) ?? [],
                     valveTag: s.valve?.tag ?? null,
+                    sentBack: (() => {
+                      const latest = reviews.find((r) => r.seatId === s.id);
+                      return s.state === "sent_back" && latest?.decision === "sent_back" ? { comment: latest.comment, by: latest.reviewerName } : null;
+                    })(),
                   }))}
                 />
               </div>
+              <nav aria-label="Sheets" className="grid grid-cols-2 gap-2 sm:grid-cols-4">
+                {[
+                  { href: `/jobs/${job.id}/clearance`, label: "Journal clearance" },
+                  { href: `/jobs/${job.id}/torque`, label: "Cap torque" },
+                  { href: `/jobs/${job.id}/measurements`, label: "Measurements" },
+                  { href: `/api/heads/${head.id}/sheets`, label: "Export CSV" },
+                ].map((l) => (
+                  <a key={l.href} href={l.href} className="flex min-h-14 items-center justify-center rounded-xl border-2 border-ink bg-white px-3 text-center font-semibold">
+                    {l.label}
+                  </a>
+                ))}
+              </nav>
               <details className="rounded-xl border border-stone-300 bg-white p-3">
-                <summary className="min-h-10 cursor-pointer font-semibold">Valves and their seats</summary>
+                <summary className="min-h-11 py-2.5 cursor-pointer font-semibold">Valves and their seats</summary>
                 <p className="my-2 text-sm text-stone-600">
                   Each valve goes back into the seat it was lapped in (service manuals). Before lapping, valves may be swapped; every move is
                   recorded.
@@ -150,7 +163,7 @@ export default async function JobPage({ params }: PageProps<"/jobs/[jobId]">) {
                 <ValveList jobId={job.id} valves={valves} seats={head.seats.map((s) => ({ id: s.id, code: seatCode(s), kind: s.kind }))} closed={closed} />
               </details>
               <details className="rounded-xl border border-stone-300 bg-white p-3" open={job.status === "awaiting_audit" && canReview}>
-                <summary className="min-h-10 cursor-pointer font-semibold">Audit and sign-off</summary>
+                <summary className="min-h-11 py-2.5 cursor-pointer font-semibold">Audit and sign-off</summary>
                 <div className="mt-2 flex flex-col gap-3">
                   <div className="flex flex-wrap gap-2 text-sm">
                     <a href={`/jobs/${job.id}/report`} className="inline-flex min-h-12 items-center rounded-lg border-2 border-ink px-4 font-semibold">
@@ -170,7 +183,7 @@ export default async function JobPage({ params }: PageProps<"/jobs/[jobId]">) {
                       <li key={s.id} className="rounded-lg border border-stone-200 p-2">
                         <div className="mb-1 flex items-center justify-between text-sm">
                           <span className="figure font-bold">{seatCode(s)}</span>
-                          <a href={`/review/${s.id}`} className="font-semibold text-brass-dark underline-offset-2 hover:underline">
+                          <a href={`/review/${s.id}`} className="inline-flex min-h-11 items-center px-1 font-semibold text-brass-dark underline-offset-2 hover:underline">
                             Listen back
                           </a>
                         </div>
@@ -213,7 +226,7 @@ export default async function JobPage({ params }: PageProps<"/jobs/[jobId]">) {
         )}
         {can(actor.role, "specs:manage") && !closed ? (
           <details className="mt-2">
-            <summary className="min-h-10 cursor-pointer font-semibold">Override a figure on this job</summary>
+            <summary className="min-h-11 py-2.5 cursor-pointer font-semibold">Override a figure on this job</summary>
             <SpecFigureForm target={{ kind: "job", jobId: job.id }} />
           </details>
         ) : null}

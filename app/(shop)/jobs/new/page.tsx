@@ -1,9 +1,9 @@
+import { forbidden } from "next/navigation";
 import type { Metadata } from "next";
 import { getDb } from "@/db/client";
 import { customerChoices, engineSpecChoices, lapperChoices } from "@/db/queries/options";
 import { JobForm } from "@/components/jobs/job-form";
-import { Forbidden } from "@/components/ui/forbidden";
-import { currentActor, forbiddenMessage } from "@/lib/auth/guard";
+import { currentActor } from "@/lib/auth/guard";
 import { can } from "@/lib/auth/roles";
 import { DEFAULT_HEAD_LAYOUT } from "@/lib/heads/layout";
 
@@ -11,7 +11,7 @@ export const metadata: Metadata = { title: "Book in a job" };
 
 export default async function NewJobPage() {
   const actor = await currentActor();
-  if (!actor || !can(actor.role, "jobs:manage")) return <Forbidden message={forbiddenMessage("jobs:manage")} />;
+  if (!actor || !can(actor.role, "jobs:manage")) forbidden();
   const db = await getDb();
   const [customers, lappers, specs] = await Promise.all([
     customerChoices(db, actor.shopId),

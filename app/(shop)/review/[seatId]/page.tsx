@@ -43,7 +43,7 @@ export default async function ReviewPage({ params, searchParams }: PageProps<"/r
 
   return (
     <div className="flex flex-col gap-4">
-      <Link href={`/jobs/${report.job.id}`} className="text-sm font-semibold text-brass-dark underline-offset-2 hover:underline">
+      <Link href={`/jobs/${report.job.id}`} className="inline-flex min-h-11 items-center self-start text-sm font-semibold text-brass-dark underline-offset-2 hover:underline">
         ← {report.job.number}
       </Link>
       <div>

@@ -1,19 +1,18 @@
 import type { Metadata } from "next";
-import { notFound } from "next/navigation";
+import { forbidden, notFound } from "next/navigation";
 import { z } from "zod";
 import { getDb } from "@/db/client";
 import { getJob } from "@/db/queries/jobs";
 import { customerChoices, engineSpecChoices, lapperChoices } from "@/db/queries/options";
 import { JobForm } from "@/components/jobs/job-form";
-import { Forbidden } from "@/components/ui/forbidden";
-import { currentActor, forbiddenMessage } from "@/lib/auth/guard";
+import { currentActor } from "@/lib/auth/guard";
 import { can } from "@/lib/auth/roles";
 
 export const metadata: Metadata = { title: "Edit job" };
 
 export default async function EditJobPage({ params }: PageProps<"/jobs/[jobId]/edit">) {
   const actor = await currentActor();
-  if (!actor || !can(actor.role, "jobs:manage")) return <Forbidden message={forbiddenMessage("jobs:manage")} />;
+  if (!actor || !can(actor.role, "jobs:manage")) forbidden();
   const { jobId } = await params;
   if (!z.string().uuid().safeParse(jobId).success) notFound();
   const db = await getDb();

@@ -25,7 +25,7 @@ export default async function MeasurementsPage({ params }: PageProps<"/jobs/[job
   const head = job.heads[0]!;
   return (
     <div className="flex flex-col gap-4">
-      <Link href={`/jobs/${jobId}`} className="text-sm font-semibold text-brass-dark underline-offset-2 hover:underline">
+      <Link href={`/jobs/${jobId}`} className="inline-flex min-h-11 items-center self-start text-sm font-semibold text-brass-dark underline-offset-2 hover:underline">
         ← {job.number}
       </Link>
       <div className="flex flex-wrap items-center justify-between gap-2">

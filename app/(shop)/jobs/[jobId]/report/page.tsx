@@ -92,7 +92,7 @@ export default async function HeadReportPage({ params }: PageProps<"/jobs/[jobId
     <article className="flex flex-col gap-6 print:gap-4 print:text-[11pt]" data-testid="head-report">
       <style>{PRINT_CSS}</style>
       <div className="flex flex-wrap items-center gap-3 print:hidden">
-        <Link href={`/jobs/${job.id}`} className="text-sm font-semibold text-brass-dark underline-offset-2 hover:underline">
+        <Link href={`/jobs/${job.id}`} className="inline-flex min-h-11 items-center self-start text-sm font-semibold text-brass-dark underline-offset-2 hover:underline">
           ← {job.number}
         </Link>
         <div className="ml-auto">

@@ -22,7 +22,7 @@ export default async function TorquePage({ params }: PageProps<"/jobs/[jobId]/to
   });
   return (
     <div className="flex flex-col gap-4">
-      <Link href={`/jobs/${jobId}`} className="text-sm font-semibold text-brass-dark underline-offset-2 hover:underline">
+      <Link href={`/jobs/${jobId}`} className="inline-flex min-h-11 items-center self-start text-sm font-semibold text-brass-dark underline-offset-2 hover:underline">
         ← {data.jobNumber}
       </Link>
       <h1 className="text-2xl font-bold tracking-tight">Camshaft cap torque</h1>
