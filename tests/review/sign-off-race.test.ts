@@ -86,6 +86,15 @@ describe.each(backends)("writes racing a sign-off on %s", (_name, open) => {
     await setJob(db, "MHW-0141", { status: "awaiting_audit" });
 
     const order = (await sheets.getTorqueSheets(db, rhea.shopId, head.jobId)).camshafts[0]!.sheet!.order;
+    // Sessions heard before the race whose recordings have not arrived yet: one late first
+    // recording per wave.
+    const lateSessions: string[] = [];
+    for (let n = 0; n < 60; n++) {
+      const id = randomUUID();
+      await bench.startSession(db, rhea, last, { sessionId: id, stage: "fine", deviceId });
+      lateSessions.push(id);
+    }
+    let late = 0;
     let tick = 0;
     let strokeIndex = 100;
     const writes: Array<() => Promise<unknown>> = [
@@ -99,6 +108,7 @@ describe.each(backends)("writes racing a sign-off on %s", (_name, open) => {
       () => bench.startSession(db, rhea, last, { sessionId: randomUUID(), stage: "fine", deviceId }),
       () => bench.saveStrokes(db, rhea, sessionId, strokeInputs([1, 1], (strokeIndex += 2))),
       () => storeRecording(db, rhea, sessionId, streamOf(wavFile)),
+      () => storeRecording(db, rhea, lateSessions[late++ % lateSessions.length]!, streamOf(wavFile)),
     ];
 
     const outcomes: PromiseSettledResult<unknown>[] = [];
