@@ -20,17 +20,13 @@ import { assertSeatOpen, holdOpenJob, openSeatsNow, signedOffSeats } from "@/lib
 import { judgeRange, type RangeVerdict } from "@/lib/measure/results";
 import { effectiveSpecs } from "@/lib/specs/effective";
 import { isClosed } from "@/lib/jobs/lifecycle";
-import { DONE_CHECK_KINDS, type DoneCheckInput, type DoneCheckKind, type DoneCheckResult } from "@/lib/validations/done-checks";
+import type { DoneCheckInput } from "@/lib/validations/done-checks";
+import { DONE_CHECK_KINDS, DONE_CHECK_LABELS, DONE_CHECK_RESULT_LABELS, type DoneCheckKind, type DoneCheckResult } from "./done-check-words";
+
+export { DONE_CHECK_LABELS, DONE_CHECK_RESULT_LABELS };
 
 type Reader = Pick<Db, "select">;
 
-export const DONE_CHECK_LABELS: Record<DoneCheckKind, string> = {
-  contact_ring: "Contact ring",
-  marking_compound: "Marking-compound test",
-  leak_test: "Leak test",
-};
-
-export const DONE_CHECK_RESULT_LABELS: Record<DoneCheckResult, string> = { pass: "Pass", fail: "Fail" };
 
 export interface DoneCheckRecord {
   id: string;

@@ -1,14 +1,11 @@
 // The done-check form: which seat, which check, pass or fail, an optional note and photo. Shared
 // by the server action and the tests; the words are the ones the bench screen shows.
 import { z } from "zod";
-import { seatCheckKind, seatCheckResult } from "@/db/schema";
+import { DONE_CHECK_KINDS, DONE_CHECK_RESULTS } from "@/lib/bench/done-check-words";
 import { uuidText } from "./ids";
 import { storableText } from "./text";
 
-export const DONE_CHECK_KINDS = seatCheckKind.enumValues;
-export type DoneCheckKind = (typeof DONE_CHECK_KINDS)[number];
-export const DONE_CHECK_RESULTS = seatCheckResult.enumValues;
-export type DoneCheckResult = (typeof DONE_CHECK_RESULTS)[number];
+export { DONE_CHECK_KINDS, DONE_CHECK_RESULTS, type DoneCheckKind, type DoneCheckResult } from "@/lib/bench/done-check-words";
 
 export const NOTE_MAX = 500;
 
