@@ -36,7 +36,7 @@ export function DoneChecksSummary({ checks, testId = "done-checks-summary" }: { 
                 {k === "leak_test" ? <span className="text-stone-600">· {checks.port}</span> : null}
                 {k === "contact_ring" && r.contactWidthMm !== null ? <span className="figure">· {mm(r.contactWidthMm)} mm</span> : null}
                 {r.photoUrl ? (
-                  <a href={r.photoUrl} target="_blank" rel="noreferrer" className="inline-flex min-h-11 items-center font-semibold text-brass-dark underline">
+                  <a href={r.photoUrl} target="_blank" rel="noreferrer" className="inline-flex min-h-11 min-w-11 items-center justify-center px-1 font-semibold text-brass-dark underline">
                     photo
                   </a>
                 ) : null}
