@@ -181,9 +181,9 @@ export function DoneChecks({ seatId, canWork, settled }: { seatId: string; canWo
                         className={`min-h-11 rounded-lg border px-2 ${noteError ? "border-2 border-rose-600" : "border-stone-400"}`}
                       />
                     </label>
-                    <label className="flex min-h-11 items-center gap-2">
+                    <label className="flex flex-col gap-1">
                       Photo (optional)
-                      <input name="photo" type="file" accept="image/jpeg,image/png,image/webp" capture="environment" className="min-h-11 text-sm" />
+                      <input name="photo" type="file" accept="image/jpeg,image/png,image/webp" capture="environment" className="min-h-11 w-full min-w-0 max-w-full text-sm" />
                     </label>
                     {noteError ? (
                       <p id={`${formId}-error`} className="text-rose-700">

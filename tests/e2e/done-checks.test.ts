@@ -140,6 +140,12 @@ describe("done-checks on a phone", () => {
 
     expect(await smallTargets(page, "[data-testid=done-checks]")).toEqual([]);
     // The phone shows no sideways scroll.
+    const wider = await page.evaluate(() =>
+      [...document.querySelectorAll("[data-testid=done-checks] *")]
+        .filter((el) => el.getBoundingClientRect().right > 390.5)
+        .map((el) => `${el.tagName}.${(el as HTMLElement).className} ${el.getBoundingClientRect().right.toFixed(0)}`),
+    );
+    expect(wider).toEqual([]);
     expect(await page.evaluate(() => document.documentElement.scrollWidth)).toBeLessThanOrEqual(390);
     await section.screenshot({ path: path.join(ARTIFACTS, "done-checks-bench.png") });
 
@@ -186,9 +192,9 @@ describe("done-checks on a phone", () => {
 
     // The head report prints the done-checks and the reason.
     await page.goto(`${baseURL}/jobs/${jobId}/report`);
-    const row = page.getByTestId("report-done-checks").locator("tr[data-seat="3I1"]");
+    const row = page.getByTestId("report-done-checks").locator('tr[data-seat="3I1"]');
     for (const kind of ["contact_ring", "marking_compound", "leak_test"]) expect(await row.locator(`td[data-check=${kind}]`).innerText()).toMatch(/^Pass/);
-    expect(await page.getByTestId("report-done-checks").locator("tr[data-seat="3I2"]").innerText()).toContain("Not recorded");
+    expect(await page.getByTestId("report-done-checks").locator('tr[data-seat="3I2"]').innerText()).toContain("Not recorded");
     expect(await page.getByTestId("report-checks-reason").innerText()).toContain("Leak-tested with the head assembled; customer waiting.");
     await page.context().close();
   });
