@@ -4,10 +4,21 @@
 // besides the sound — the contact ring (with its width from the seat's measurements), a
 // marking-compound contact test and a solvent leak test of the seat's port — each recorded as pass
 // or fail with an optional note and photo. Open by itself after fine settles; reachable any time.
-import { startTransition, useActionState, useCallback, useEffect, useState, type FormEvent } from "react";
+import {
+  startTransition,
+  useActionState,
+  useCallback,
+  useEffect,
+  useState,
+  type FormEvent,
+} from "react";
 import { saveDoneCheck, type DoneCheckState } from "@/lib/actions/done-checks";
 import type { SeatDoneChecks } from "@/lib/bench/done-checks";
-import { DONE_CHECK_KINDS, DONE_CHECK_LABELS, type DoneCheckKind } from "@/lib/bench/done-check-words";
+import {
+  DONE_CHECK_KINDS,
+  DONE_CHECK_LABELS,
+  type DoneCheckKind,
+} from "@/lib/bench/done-check-words";
 import { DoneChecksSummary, widthLine } from "./done-checks-summary";
 
 const initial: DoneCheckState = { ok: false, message: null, fieldErrors: {} };
@@ -17,18 +28,24 @@ function HowTo({ kind, checks }: { kind: DoneCheckKind; checks: SeatDoneChecks }
     case "contact_ring":
       return (
         <>
-          <p>An even, dull-grey band all the way round on the valve face and the seat: no bright spots, no break, no dark patches.</p>
-          <p className="figure text-stone-700" data-testid="ring-width">
+          <p>
+            An even, dull-grey band all the way round on the valve face and the seat: no bright
+            spots, no break, no dark patches.
+          </p>
+          <p className="text-stone-700" data-testid="ring-width">
             {widthLine(checks.width)}
           </p>
           {checks.width.measuredMm === null ? (
             <p>
               Measure it on the{" "}
-              <a href={`/jobs/${checks.jobId}/measurements`} className="inline-flex min-h-11 items-center font-semibold text-brass-dark underline">
+              <a
+                href={`/jobs/${checks.jobId}/measurements`}
+                className="inline-flex min-h-11 items-center font-semibold text-brass-dark underline"
+              >
                 measurements sheet
               </a>
-              . Typically about 1.0–1.6 mm on intake seats and 1.2–2.2 mm on exhaust seats, varying by engine (service manuals): the
-              engine maker&apos;s figure decides.
+              . Typically about 1.0–1.6 mm on intake seats and 1.2–2.2 mm on exhaust seats, varying
+              by engine (service manuals): the engine maker&apos;s figure decides.
             </p>
           ) : null}
         </>
@@ -36,26 +53,40 @@ function HowTo({ kind, checks }: { kind: DoneCheckKind; checks: SeatDoneChecks }
     case "marking_compound":
       return (
         <p>
-          A thin coat of marking compound on the valve face, the valve dropped into its seat and turned a little under light pressure, then
-          lifted out: the contact must be even and unbroken all the way round (common practice).
+          A thin coat of marking compound on the valve face, the valve dropped into its seat and
+          turned a little under light pressure, then lifted out: the contact must be even and
+          unbroken all the way round (common practice).
         </p>
       );
     case "leak_test":
       return (
         <>
           <p>
-            With the valves in and sprung, pour solvent into the <span className="font-semibold">{checks.port}</span> and watch the chamber side
-            of this seat: no seepage (common practice).
+            With the valves in and sprung, pour solvent into the{" "}
+            <span className="font-semibold">{checks.port}</span> and watch the chamber side of this
+            seat: no seepage (common practice).
           </p>
-          <p className="rounded-lg bg-amber-100 px-2 py-1 text-amber-950" data-testid="solvent-cautions">
-            Solvent is flammable: no flames or sparks, work with ventilation, wear nitrile gloves and eye protection (OSHA 29 CFR 1910.133).
+          <p
+            className="rounded-lg bg-amber-100 px-2 py-1 text-amber-950"
+            data-testid="solvent-cautions"
+          >
+            Solvent is flammable: no flames or sparks, work with ventilation, wear nitrile gloves
+            and eye protection (OSHA 29 CFR 1910.133).
           </p>
         </>
       );
   }
 }
 
-export function DoneChecks({ seatId, canWork, settled }: { seatId: string; canWork: boolean; settled: boolean }) {
+export function DoneChecks({
+  seatId,
+  canWork,
+  settled,
+}: {
+  seatId: string;
+  canWork: boolean;
+  settled: boolean;
+}) {
   const [checks, setChecks] = useState<SeatDoneChecks | null>(null);
   const [loadError, setLoadError] = useState<string | null>(null);
   const [state, action, saving] = useActionState(saveDoneCheck, initial);
@@ -65,13 +96,18 @@ export function DoneChecks({ seatId, canWork, settled }: { seatId: string; canWo
 
   const load = useCallback(async () => {
     try {
-      const res = await fetch(`/api/seats/${seatId}/checks`, { headers: { accept: "application/json" } });
-      const body = (await res.json().catch(() => null)) as (SeatDoneChecks & { message?: string }) | null;
+      const res = await fetch(`/api/seats/${seatId}/checks`, {
+        headers: { accept: "application/json" },
+      });
+      const body = (await res.json().catch(() => null)) as
+        (SeatDoneChecks & { message?: string }) | null;
       if (!res.ok || !body) throw new Error(body?.message ?? `HTTP ${res.status}`);
       setChecks(body);
       setLoadError(null);
     } catch (err) {
-      setLoadError(`The done-checks could not be loaded: ${err instanceof Error ? err.message : String(err)}`);
+      setLoadError(
+        `The done-checks could not be loaded: ${err instanceof Error ? err.message : String(err)}`,
+      );
     }
   }, [seatId]);
 
@@ -97,12 +133,18 @@ export function DoneChecks({ seatId, canWork, settled }: { seatId: string; canWo
     if (file instanceof File && file.size > 0) {
       setUploading(true);
       try {
-        const res = await fetch(`/api/seats/${seatId}/photos`, { method: "POST", headers: { "content-type": file.type || "application/octet-stream" }, body: file });
+        const res = await fetch(`/api/seats/${seatId}/photos`, {
+          method: "POST",
+          headers: { "content-type": file.type || "application/octet-stream" },
+          body: file,
+        });
         const body = (await res.json().catch(() => ({}))) as { id?: string; message?: string };
         if (!res.ok || !body.id) throw new Error(body.message ?? `HTTP ${res.status}`);
         data.set("photoId", body.id);
       } catch (err) {
-        setUploadError(`The photo was not saved, so the check was not recorded: ${err instanceof Error ? err.message : String(err)}`);
+        setUploadError(
+          `The photo was not saved, so the check was not recorded: ${err instanceof Error ? err.message : String(err)}`,
+        );
         return;
       } finally {
         setUploading(false);
@@ -113,14 +155,23 @@ export function DoneChecks({ seatId, canWork, settled }: { seatId: string; canWo
 
   // A saved check clears its form; a refused one keeps what was typed.
   useEffect(() => {
-    if (state.ok && lastKind) (document.getElementById(`done-check-${seatId}-${lastKind}`) as HTMLFormElement | null)?.reset();
+    if (state.ok && lastKind)
+      (
+        document.getElementById(`done-check-${seatId}-${lastKind}`) as HTMLFormElement | null
+      )?.reset();
   }, [state, lastKind, seatId]);
 
-  const passed = shown ? DONE_CHECK_KINDS.filter((k) => shown.latest[k]?.result === "pass").length : 0;
+  const passed = shown
+    ? DONE_CHECK_KINDS.filter((k) => shown.latest[k]?.result === "pass").length
+    : 0;
   const busy = saving || uploading;
 
   return (
-    <details className="rounded-xl border border-stone-300 bg-white p-3" open={settled} data-testid="done-checks">
+    <details
+      className="rounded-xl border border-stone-300 bg-white p-3"
+      open={settled}
+      data-testid="done-checks"
+    >
       <summary className="flex min-h-11 cursor-pointer items-center justify-between gap-2 font-semibold">
         <span>Done-checks</span>
         <span className="text-sm font-normal text-stone-600" data-testid="done-checks-count">
@@ -128,28 +179,43 @@ export function DoneChecks({ seatId, canWork, settled }: { seatId: string; canWo
         </span>
       </summary>
       <p className="mt-1 text-sm text-stone-600">
-        The sound says when to stop lapping; these say the seat seals. Clean off every trace of compound first.
+        The sound says when to stop lapping; these say the seat seals. Clean off every trace of
+        compound first.
       </p>
       {loadError ? (
         <div role="alert" className="mt-2 rounded-lg bg-rose-100 px-3 py-2 text-sm text-rose-900">
           <p>{loadError}</p>
-          <button type="button" onClick={() => void load()} className="mt-1 min-h-11 rounded-lg border border-rose-400 bg-white px-3 font-semibold">
+          <button
+            type="button"
+            onClick={() => void load()}
+            className="mt-1 min-h-11 rounded-lg border border-rose-400 bg-white px-3 font-semibold"
+          >
             Try again
           </button>
         </div>
       ) : null}
       {!shown ? (
-        loadError ? null : <div className="mt-2 h-24 animate-pulse rounded bg-stone-200" />
+        loadError ? null : (
+          <div className="mt-2 h-24 animate-pulse rounded bg-stone-200" />
+        )
       ) : (
         <div className="mt-2 flex flex-col gap-3">
           <DoneChecksSummary checks={shown} testId="bench-done-checks" />
           {state.message ? (
-            <p aria-live="polite" role={state.ok ? "status" : "alert"} className={`rounded-lg px-3 py-2 text-sm font-semibold ${state.ok ? "bg-emerald-100 text-emerald-900" : "bg-rose-100 text-rose-900"}`} data-testid="done-check-message">
+            <p
+              aria-live="polite"
+              role={state.ok ? "status" : "alert"}
+              className={`rounded-lg px-3 py-2 text-sm font-semibold ${state.ok ? "bg-emerald-100 text-emerald-900" : "bg-rose-100 text-rose-900"}`}
+              data-testid="done-check-message"
+            >
               {state.message}
             </p>
           ) : null}
           {uploadError ? (
-            <p role="alert" className="rounded-lg bg-rose-100 px-3 py-2 text-sm font-semibold text-rose-900">
+            <p
+              role="alert"
+              className="rounded-lg bg-rose-100 px-3 py-2 text-sm font-semibold text-rose-900"
+            >
               {uploadError}
             </p>
           ) : null}
@@ -158,47 +224,77 @@ export function DoneChecks({ seatId, canWork, settled }: { seatId: string; canWo
                 const errors = lastKind === kind && !state.ok ? state.fieldErrors : {};
                 const noteError = errors.note?.[0] ?? errors.photoId?.[0];
                 const formId = `done-check-${seatId}-${kind}`;
+                const recorded = shown.latest[kind];
+                // A check with a record that counts folds away; it can still be recorded again.
                 return (
-                  <form
+                  <details
                     key={kind}
-                    id={formId}
-                    onSubmit={(e) => void submit(e, kind)}
-                    className="flex flex-col gap-2 rounded-lg border border-stone-200 p-2 text-sm"
-                    aria-label={DONE_CHECK_LABELS[kind]}
-                    data-testid={`done-check-form-${kind}`}
+                    open={!recorded || Boolean(noteError)}
+                    className="rounded-lg border border-stone-200 p-2 text-sm"
                   >
-                    <input type="hidden" name="seatId" value={seatId} />
-                    <input type="hidden" name="kind" value={kind} />
-                    <h3 className="font-semibold">{DONE_CHECK_LABELS[kind]}</h3>
-                    <HowTo kind={kind} checks={shown} />
-                    <label className="flex flex-col gap-1">
-                      Note (optional)
-                      <input
-                        name="note"
-                        maxLength={500}
-                        aria-invalid={Boolean(noteError)}
-                        aria-describedby={noteError ? `${formId}-error` : undefined}
-                        className={`min-h-11 rounded-lg border px-2 ${noteError ? "border-2 border-rose-600" : "border-stone-400"}`}
-                      />
-                    </label>
-                    <label className="flex flex-col gap-1">
-                      Photo (optional)
-                      <input name="photo" type="file" accept="image/jpeg,image/png,image/webp" capture="environment" className="min-h-11 w-full min-w-0 max-w-full text-sm" />
-                    </label>
-                    {noteError ? (
-                      <p id={`${formId}-error`} className="text-rose-700">
-                        {noteError}
-                      </p>
-                    ) : null}
-                    <div className="grid grid-cols-2 gap-2">
-                      <button type="submit" name="result" value="pass" disabled={busy} className="min-h-12 rounded-lg bg-emerald-700 font-semibold text-white disabled:opacity-60">
-                        Pass
-                      </button>
-                      <button type="submit" name="result" value="fail" disabled={busy} className="min-h-12 rounded-lg border-2 border-rose-700 bg-white font-semibold text-rose-800 disabled:opacity-60">
-                        Fail
-                      </button>
-                    </div>
-                  </form>
+                    <summary className="flex min-h-11 cursor-pointer items-center font-semibold">
+                      {DONE_CHECK_LABELS[kind]}
+                      {recorded ? (
+                        <span className="ml-2 font-normal text-stone-600">— record again</span>
+                      ) : null}
+                    </summary>
+                    <form
+                      id={formId}
+                      onSubmit={(e) => void submit(e, kind)}
+                      className="flex flex-col gap-2"
+                      aria-label={DONE_CHECK_LABELS[kind]}
+                      data-testid={`done-check-form-${kind}`}
+                    >
+                      <input type="hidden" name="seatId" value={seatId} />
+                      <input type="hidden" name="kind" value={kind} />
+                      <HowTo kind={kind} checks={shown} />
+                      <label className="flex flex-col gap-1">
+                        Note (optional)
+                        <input
+                          name="note"
+                          maxLength={500}
+                          aria-invalid={Boolean(noteError)}
+                          aria-describedby={noteError ? `${formId}-error` : undefined}
+                          className={`min-h-11 rounded-lg border px-2 ${noteError ? "border-2 border-rose-600" : "border-stone-400"}`}
+                        />
+                      </label>
+                      <label className="flex flex-col gap-1">
+                        Photo (optional)
+                        <input
+                          name="photo"
+                          type="file"
+                          accept="image/jpeg,image/png,image/webp"
+                          capture="environment"
+                          className="min-h-11 w-full min-w-0 max-w-full text-sm"
+                        />
+                      </label>
+                      {noteError ? (
+                        <p id={`${formId}-error`} className="text-rose-700">
+                          {noteError}
+                        </p>
+                      ) : null}
+                      <div className="grid grid-cols-2 gap-2">
+                        <button
+                          type="submit"
+                          name="result"
+                          value="pass"
+                          disabled={busy}
+                          className="min-h-12 rounded-lg bg-emerald-700 font-semibold text-white disabled:opacity-60"
+                        >
+                          Pass
+                        </button>
+                        <button
+                          type="submit"
+                          name="result"
+                          value="fail"
+                          disabled={busy}
+                          className="min-h-12 rounded-lg border-2 border-rose-700 bg-white font-semibold text-rose-800 disabled:opacity-60"
+                        >
+                          Fail
+                        </button>
+                      </div>
+                    </form>
+                  </details>
                 );
               })
             : null}
