@@ -190,6 +190,10 @@ describe("done-checks on a phone", () => {
     await unchecked.getByRole("button", { name: "Approve seat" }).tap();
     await unchecked.getByTestId("checks-reason").getByText("Leak-tested with the head assembled; customer waiting.").waitFor({ timeout: 15_000 });
 
+    // The listen-back page shows them too.
+    await page.goto(`${baseURL}/review/${seatIds.get("3I1")}`);
+    expect(await page.getByTestId("review-done-checks").locator("[data-result=pass]").count()).toBe(3);
+
     // The head report prints the done-checks and the reason.
     await page.goto(`${baseURL}/jobs/${jobId}/report`);
     const row = page.getByTestId("report-done-checks").locator('tr[data-seat="3I1"]');
