@@ -90,13 +90,21 @@ export function DoneChecks({
   const [checks, setChecks] = useState<SeatDoneChecks | null>(null);
   const [loadError, setLoadError] = useState<string | null>(null);
   // A lost connection is answered here: the bench screen stays up and says nothing was recorded.
-  const [state, action, saving] = useActionState(async (prev: DoneCheckState, data: FormData): Promise<DoneCheckState> => {
-    try {
-      return await saveDoneCheck(prev, data);
-    } catch {
-      return { ok: false, message: "Not recorded: the server could not be reached. Try again when the phone is back online.", fieldErrors: {} };
-    }
-  }, initial);
+  const [state, action, saving] = useActionState(
+    async (prev: DoneCheckState, data: FormData): Promise<DoneCheckState> => {
+      try {
+        return await saveDoneCheck(prev, data);
+      } catch {
+        return {
+          ok: false,
+          message:
+            "Not recorded: the server could not be reached. Try again when the phone is back online.",
+          fieldErrors: {},
+        };
+      }
+    },
+    initial,
+  );
   const [lastKind, setLastKind] = useState<DoneCheckKind | null>(null);
   const [uploading, setUploading] = useState(false);
   const [uploadError, setUploadError] = useState<string | null>(null);

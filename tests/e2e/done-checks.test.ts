@@ -120,6 +120,12 @@ describe("done-checks on a phone", () => {
     // A saved check clears its form.
     expect(await ring.getByLabel("Note (optional)").inputValue()).toBe("");
 
+    // Offline: nothing is recorded, the screen stays up and says so.
+    await page.context().setOffline(true);
+    await section.getByTestId("done-check-form-marking_compound").getByRole("button", { name: "Pass" }).tap();
+    await section.getByTestId("done-check-message").getByText(/^Not recorded: the server could not be reached/).waitFor({ timeout: 20_000 });
+    expect(await section.getByTestId("done-checks-count").innerText()).toBe("1 of 3 passed");
+    await page.context().setOffline(false);
     await section.getByTestId("done-check-form-marking_compound").getByRole("button", { name: "Pass" }).tap();
     await section.getByTestId("done-check-message").getByText("Marking-compound test on seat 3I1: pass recorded.").waitFor({ timeout: 20_000 });
     await leakForm.getByRole("button", { name: "Pass" }).tap();
