@@ -93,7 +93,10 @@ export function DoneChecks({
   const [state, action, saving] = useActionState(
     async (prev: DoneCheckState, data: FormData): Promise<DoneCheckState> => {
       try {
-        return await saveDoneCheck(prev, data);
+        const answer = await saveDoneCheck(prev, data);
+        // The seat's done-checks as they now are, kept whatever the next answer says.
+        if (answer.ok && answer.checks) setChecks(answer.checks);
+        return answer;
       } catch {
         return {
           ok: false,
@@ -132,8 +135,7 @@ export function DoneChecks({
     })();
   }, [load]);
 
-  // The action answers with the seat's done-checks as they now are.
-  const shown = state.ok && state.checks?.seatId === seatId ? state.checks : checks;
+  const shown = checks;
 
   async function submit(e: FormEvent<HTMLFormElement>, kind: DoneCheckKind) {
     e.preventDefault();
