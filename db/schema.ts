@@ -49,6 +49,12 @@ export const lappingStage = pgEnum("lapping_stage", ["coarse", "fine"]);
 // or typed in with the reading.
 export const specSource = pgEnum("spec_source", ["library", "job_override", "entered"]);
 
+// The done-checks besides the sound, recorded per seat at the bench: the contact ring (an even,
+// dull-grey band of the right width), a marking-compound contact test, and a solvent leak test of
+// the seat's port. Each record is pass or fail; the latest of a kind is the one that counts.
+export const seatCheckKind = pgEnum("seat_check_kind", ["contact_ring", "marking_compound", "leak_test"]);
+export const seatCheckResult = pgEnum("seat_check_result", ["pass", "fail"]);
+
 export const reviewDecision = pgEnum("review_decision", ["approved", "sent_back", "reopened"]);
 export const mailStatus = pgEnum("mail_status", ["queued", "sending", "sent", "failed"]);
 
@@ -313,6 +319,39 @@ export const seatPhotos = pgTable(
   ],
 );
 
+// One done-check of a seat as recorded at the bench; never changed, a new record supersedes it.
+export const seatChecks = pgTable(
+  "seat_checks",
+  {
+    id: uuid("id").primaryKey().defaultRandom(),
+    seatId: uuid("seat_id")
+      .notNull()
+      .references(() => seats.id, { onDelete: "cascade" }),
+    kind: seatCheckKind("kind").notNull(),
+    result: seatCheckResult("result").notNull(),
+    // The port the solvent was poured into (the seat's own: intake or exhaust); leak tests only.
+    port: valveKind("port"),
+    // The contact ring's width as the seat's measurements gave it when the ring was judged (mm).
+    contactWidthMm: real("contact_width_mm"),
+    measurementId: uuid("measurement_id").references(() => measurements.id, { onDelete: "set null" }),
+    note: text("note"),
+    photoId: uuid("photo_id").references(() => seatPhotos.id, { onDelete: "set null" }),
+    recordedById: uuid("recorded_by_id")
+      .notNull()
+      .references(() => users.id, { onDelete: "restrict" }),
+    recordedAt: timestamp("recorded_at", { withTimezone: true }).notNull().defaultNow(),
+  },
+  (t) => [
+    index("seat_checks_seat_idx").on(t.seatId, t.kind, t.recordedAt),
+    check("seat_checks_port_for_leak_test", sql`(${t.kind} = 'leak_test') = (${t.port} is not null)`),
+    check(
+      "seat_checks_width_for_ring",
+      sql`${t.contactWidthMm} is null or (${t.kind} = 'contact_ring' and ${t.contactWidthMm} > 0)`,
+    ),
+    check("seat_checks_note_length", sql`${t.note} is null or length(${t.note}) between 1 and 2000`),
+  ],
+);
+
 export const strokes = pgTable(
   "strokes",
   {
@@ -505,6 +544,8 @@ export const reviews = pgTable(
     seatId: uuid("seat_id").references(() => seats.id, { onDelete: "cascade" }),
     decision: reviewDecision("decision").notNull(),
     comment: text("comment").notNull(),
+    // Why a seat was approved without all its done-checks recorded as passed; null otherwise.
+    checksReason: text("checks_reason"),
     reviewerId: uuid("reviewer_id")
       .notNull()
       .references(() => users.id, { onDelete: "restrict" }),
@@ -513,6 +554,7 @@ export const reviews = pgTable(
   (t) => [
     index("reviews_job_idx").on(t.jobId, t.createdAt),
     check("reviews_comment_length", sql`length(${t.comment}) between 1 and 2000`),
+    check("reviews_checks_reason_length", sql`${t.checksReason} is null or length(${t.checksReason}) between 1 and 2000`),
   ],
 );
 
@@ -576,6 +618,9 @@ export type Journal = typeof journals.$inferSelect;
 export type Seat = typeof seats.$inferSelect;
 export type Valve = typeof valves.$inferSelect;
 export type LappingSession = typeof lappingSessions.$inferSelect;
+export type SeatCheck = typeof seatChecks.$inferSelect;
+export type SeatCheckKind = (typeof seatCheckKind.enumValues)[number];
+export type SeatCheckResult = (typeof seatCheckResult.enumValues)[number];
 export type Stroke = typeof strokes.$inferSelect;
 export type NewStroke = typeof strokes.$inferInsert;
 export type Measurement = typeof measurements.$inferSelect;

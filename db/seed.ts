@@ -8,6 +8,7 @@ import {
   auditEntries,
   engineSpecs,
   lappingSessions,
+  seatChecks,
   specValues,
   strokes,
   customers,
@@ -304,6 +305,14 @@ export async function seedDemoShop(db: Db): Promise<boolean> {
                 };
               }),
             );
+          }
+          // A settled seat of the scenario has its done-checks recorded at the bench, all passed.
+          if (seat.state === "settled") {
+            await tx.insert(seatChecks).values([
+              { seatId: seat.id, kind: "contact_ring", result: "pass", recordedById: techId },
+              { seatId: seat.id, kind: "marking_compound", result: "pass", recordedById: techId },
+              { seatId: seat.id, kind: "leak_test", result: "pass", port: seat.kind, recordedById: techId },
+            ]);
           }
         }
       }

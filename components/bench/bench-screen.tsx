@@ -10,6 +10,7 @@ import type { SeatReport } from "@/lib/bench/service";
 import type { StrokeInput } from "@/lib/validations/bench";
 import { SEAT_STATE_LABELS, STAGE_LABELS } from "@/lib/labels";
 import dynamic from "next/dynamic";
+import { LazyDoneChecks } from "./done-checks-lazy";
 import { FadeChart, type ChartStroke } from "./fade-chart";
 import { keepOfflineCopy } from "./offline-copy";
 import { useListener } from "./use-listener";
@@ -603,6 +604,7 @@ export function BenchScreen({ initial, initialStage }: { initial: SeatReport; in
         ) : null}
       </div>
 
+      {!listening ? <LazyDoneChecks seatId={seatId} canWork={report.canWork} settled={report.stages.fine.verdict.state === "settled"} /> : null}
       {!listening ? <SeatPhotos seatId={seatId} canAdd={report.canWork} /> : null}
 
       <details className="rounded-xl border border-stone-300 bg-white p-3 text-sm">

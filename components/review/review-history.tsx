@@ -29,6 +29,11 @@ export function ReviewHistory({ reviews, emptyText }: { reviews: ReviewRow[]; em
             </time>
           </div>
           <p className="mt-1 whitespace-pre-wrap">{r.comment}</p>
+          {r.checksReason ? (
+            <p className="mt-1 whitespace-pre-wrap rounded bg-amber-50 px-2 py-1 text-amber-950" data-testid="checks-reason">
+              <span className="font-semibold">Approved without all done-checks:</span> {r.checksReason}
+            </p>
+          ) : null}
         </li>
       ))}
     </ol>

@@ -3,6 +3,8 @@
 import { useActionState } from "react";
 import type { ReviewRow } from "@/db/queries/reviews";
 import type { SeatState } from "@/db/schema";
+import { DoneChecksSummary } from "@/components/bench/done-checks-summary";
+import type { SeatDoneChecks } from "@/lib/bench/done-checks";
 import { submitSeatReopen, submitSeatReview } from "@/lib/actions/review";
 import { initialActionState } from "@/lib/actions/state";
 import { ReopenForm } from "./reopen-form";
@@ -17,6 +19,8 @@ export interface SeatReviewPanelProps {
   canReview: boolean;
   /** True while the head is signed off: a seat is reopened only after its head is. */
   headClosed: boolean;
+  /** The seat's done-checks (contact ring, marking compound, leak test). */
+  doneChecks?: SeatDoneChecks;
 }
 
 const STATE_LABELS: Record<SeatState, string> = {
@@ -29,7 +33,7 @@ const STATE_LABELS: Record<SeatState, string> = {
 };
 
 /** Approve or send back one seat with a comment, or reopen an approved one with a reason. */
-export function SeatReviewPanel({ jobId, seat, reviews, canReview, headClosed }: SeatReviewPanelProps) {
+export function SeatReviewPanel({ jobId, seat, reviews, canReview, headClosed, doneChecks }: SeatReviewPanelProps) {
   const [reviewState, reviewAction, reviewing] = useActionState(submitSeatReview, initialActionState);
   const canApprove = seat.state === "settled";
   const canSendBack = seat.state === "settled" || seat.state === "stalled" || seat.state === "lapping";
@@ -40,6 +44,13 @@ export function SeatReviewPanel({ jobId, seat, reviews, canReview, headClosed }:
       <h3 id={headingId} className="text-lg font-semibold">
         Seat {seat.code} · <span className="font-normal">{STATE_LABELS[seat.state]}</span>
       </h3>
+
+      {doneChecks ? (
+        <div className="rounded-lg bg-stone-50 p-2" data-testid="seat-done-checks">
+          <h4 className="text-sm font-semibold text-stone-600">Done-checks</h4>
+          <DoneChecksSummary checks={doneChecks} />
+        </div>
+      ) : null}
 
       {canReview && !headClosed && seat.state !== "approved" && (canApprove || canSendBack) ? (
         <form action={reviewAction} className="flex flex-col gap-2">
@@ -63,6 +74,28 @@ export function SeatReviewPanel({ jobId, seat, reviews, canReview, headClosed }:
             <p id={`${headingId}-comment-error`} className="text-sm text-rose-700">
               {reviewState.fieldErrors.comment[0]}
             </p>
+          ) : null}
+          {canApprove && doneChecks && !doneChecks.complete ? (
+            <>
+              <label className="flex flex-col gap-1 text-sm font-semibold">
+                Reason to approve without the done-checks
+                <span className="font-normal text-stone-600">Needed only to approve: the done-checks are not all passed.</span>
+                <textarea
+                  name="checksReason"
+                  maxLength={2000}
+                  rows={2}
+                  aria-invalid={Boolean(reviewState.fieldErrors.checksReason)}
+                  aria-describedby={reviewState.fieldErrors.checksReason ? `${headingId}-checks-reason-error` : undefined}
+                  className={`rounded-lg border p-2 font-normal ${reviewState.fieldErrors.checksReason ? "border-2 border-rose-600" : "border-stone-400"}`}
+                  placeholder="e.g. leak test done on the whole head at assembly"
+                />
+              </label>
+              {reviewState.fieldErrors.checksReason ? (
+                <p id={`${headingId}-checks-reason-error`} className="text-sm text-rose-700">
+                  {reviewState.fieldErrors.checksReason[0]}
+                </p>
+              ) : null}
+            </>
           ) : null}
           <div className="flex flex-wrap gap-2">
             {canApprove ? (

@@ -12,6 +12,8 @@ export interface ReviewRow {
   seatCode: string | null;
   decision: "approved" | "sent_back" | "reopened";
   comment: string;
+  /** Why the seat was approved without all its done-checks passed; null otherwise. */
+  checksReason: string | null;
   reviewerId: string;
   reviewerName: string;
   createdAt: string;
@@ -33,6 +35,7 @@ export async function getReviews(db: Db, shopId: string, jobId: string): Promise
     seatCode: seat ? seatCode(seat) : null,
     decision: review.decision,
     comment: review.comment,
+    checksReason: review.checksReason,
     reviewerId: review.reviewerId,
     reviewerName,
     createdAt: review.createdAt.toISOString(),

@@ -25,7 +25,7 @@ function done(jobId: string, message: string): ActionState {
 export async function submitSeatReview(_prev: ActionState, f: FormData): Promise<ActionState> {
   try {
     const actor = await requireActor("jobs:audit");
-    const v = seatReviewSchema.parse({ seatId: text(f, "seatId"), jobId: text(f, "jobId"), decision: text(f, "decision"), comment: text(f, "comment") });
+    const v = seatReviewSchema.parse({ seatId: text(f, "seatId"), jobId: text(f, "jobId"), decision: text(f, "decision"), comment: text(f, "comment"), checksReason: text(f, "checksReason") });
     const r = await reviewSeat(await getDb(), actor, v);
     return done(v.jobId, r.state === "approved" ? `Seat ${r.code} approved; it is read-only now.` : `Seat ${r.code} sent back to the bench.`);
   } catch (err) {

@@ -10,6 +10,7 @@ import { BadRequestError, ConflictError, ForbiddenError, NotFoundError } from "@
 import { queueHeadReportMail } from "@/lib/mail/head-report-mail";
 import { seatCode } from "@/lib/heads/layout";
 import { isClosed } from "@/lib/jobs/lifecycle";
+import { doneChecksOf, shortfallText } from "@/lib/bench/done-checks";
 
 export type ReviewVerdict = "approved" | "sent_back";
 
@@ -48,7 +49,7 @@ export function assertSupervisor(actor: Actor): void {
 }
 
 /** The text a decision is recorded with; the database also refuses empty or over-long text. */
-function requiredText(value: string, field: "comment" | "reason", min: number): string {
+function requiredText(value: string, field: "comment" | "reason" | "checksReason", min: number): string {
   const text = value.trim();
   if (text.length < min || text.length > 2000) {
     throw new BadRequestError(
@@ -102,10 +103,11 @@ export interface SeatReviewResult {
 export async function reviewSeat(
   db: Db,
   actor: Actor,
-  input: { seatId: string; decision: ReviewVerdict; comment: string },
+  input: { seatId: string; decision: ReviewVerdict; comment: string; checksReason?: string | null },
 ): Promise<SeatReviewResult> {
   assertSupervisor(actor);
   const comment = requiredText(input.comment, "comment", 3);
+  const givenReason = input.checksReason?.trim() ? requiredText(input.checksReason, "checksReason", 3) : null;
   return db.transaction(async (tx) => {
     const { seat, job } = await lockSeat(tx, actor.shopId, input.seatId);
     const code = seatCode(seat);
@@ -123,9 +125,24 @@ export async function reviewSeat(
           : `Seat ${code} is ${STATE_WORDS[seat.state]}; there is no lapping to send back yet.`,
       );
     }
+    // An approval without every done-check passed (contact ring, marking compound, leak test)
+    // is the supervisor's call, and the reason for it goes on record.
+    let checksReason: string | null = null;
+    let shortfall: string | null = null;
+    if (input.decision === "approved") {
+      const checks = (await doneChecksOf(tx, job.id, [seat])).get(seat.id)!;
+      if (!checks.complete) {
+        shortfall = shortfallText(checks);
+        if (!givenReason) {
+          const message = `Seat ${code}'s done-checks are not all passed (${shortfall}). Give a reason for approving it without them, or send it back.`;
+          throw new BadRequestError(message, { checksReason: [message] });
+        }
+        checksReason = givenReason;
+      }
+    }
     const next: SeatState = input.decision;
     await tx.update(seats).set({ state: next, updatedAt: new Date() }).where(eq(seats.id, seat.id));
-    await tx.insert(reviews).values({ jobId: job.id, seatId: seat.id, decision: input.decision, comment, reviewerId: actor.id });
+    await tx.insert(reviews).values({ jobId: job.id, seatId: seat.id, decision: input.decision, comment, checksReason, reviewerId: actor.id });
     await recordAudit(tx, {
       actorId: actor.id,
       action: input.decision === "approved" ? "seat.approved" : "seat.sent_back",
@@ -133,7 +150,7 @@ export async function reviewSeat(
       entityId: seat.id,
       jobId: job.id,
       before: { seat: code, state: seat.state },
-      after: { seat: code, state: next, comment },
+      after: { seat: code, state: next, comment, ...(checksReason ? { checksReason, checksShortfall: shortfall } : {}) },
     });
     return { seatId: seat.id, code, state: next };
   });

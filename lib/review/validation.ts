@@ -2,6 +2,7 @@
 import { z } from "zod";
 import { DATE_RANGE_MESSAGE, isCalendarDate, isDateInRange, storableText } from "@/lib/validations/text";
 import { uuidText } from "@/lib/validations/ids";
+import { checksReasonSchema } from "@/lib/validations/done-checks";
 
 const comment = storableText(
   z
@@ -21,7 +22,14 @@ const reason = storableText(
 
 const decision = z.enum(["approved", "sent_back"], { error: "Choose approve or send back." });
 
-export const seatReviewSchema = z.object({ seatId: uuidText("Unknown seat."), jobId: uuidText("Unknown job."), decision, comment });
+export const seatReviewSchema = z.object({
+  seatId: uuidText("Unknown seat."),
+  jobId: uuidText("Unknown job."),
+  decision,
+  comment,
+  // Required by the service when the seat's done-checks are not all passed.
+  checksReason: checksReasonSchema,
+});
 export const seatReopenSchema = z.object({ seatId: uuidText("Unknown seat."), jobId: uuidText("Unknown job."), reason });
 export const headReviewSchema = z.object({ jobId: uuidText("Unknown job."), decision, comment });
 export const headReopenSchema = z.object({ jobId: uuidText("Unknown job."), reason });

@@ -18,6 +18,7 @@ const EXPECTED_TABLES = [
   "mail_outbox",
   "measurements",
   "reviews",
+  "seat_checks",
   "seat_photos",
   "seats",
   "shops",

@@ -426,6 +426,14 @@ const PROBES: Record<string, Probe> = {
       expect(photos.map((x) => x.id)).toContain(r.photoId);
     },
   },
+  "GET /api/seats/[seatId]/checks": {
+    request: (_p, r) => ({ path: `/api/seats/${r.seatId}/checks` }),
+    allowed: async (res, _p, r) => {
+      const body = (await res.json()) as { seatId: string; latest: Record<string, unknown> };
+      expect(body.seatId).toBe(r.seatId);
+      expect(Object.keys(body.latest).sort()).toEqual(["contact_ring", "leak_test", "marking_compound"]);
+    },
+  },
   "POST /api/seats/[seatId]/photos": {
     request: (_p, r) => ({
       method: "POST",

@@ -1,5 +1,5 @@
 // Writes racing a sign-off: bursts of every kind of write on a head (clearance, torque set-up and
-// ticks, measurements, valve identity, photos, session starts, strokes, recordings) while a
+// ticks, measurements, valve identity, photos, done-checks, session starts, strokes, recordings) while a
 // supervisor approves the last seat and signs the head off. Afterwards nothing on the seat is newer
 // than its approval and nothing on the head newer than its sign-off, on PGlite and on the
 // PostgreSQL server. "Newer" is read from each row's xmin, the transaction that wrote it: a
@@ -27,6 +27,7 @@ const sheets = await import("@/lib/heads/sheets");
 const bench = await import("@/lib/bench/service");
 const review = await import("@/lib/review/service");
 const { addSeatPhoto } = await import("@/lib/storage/photos");
+const { recordDoneCheck } = await import("@/lib/bench/done-checks");
 const { storeRecording } = await import("@/lib/storage/recording-upload");
 const { AppError } = await import("@/lib/errors");
 const h = await import("../sheets/helpers");
@@ -105,6 +106,7 @@ describe.each(backends)("writes racing a sign-off on %s", (_name, open) => {
       () => sheets.recordMeasurement(db, rhea, { jobId: head.jobId, kind: "seat_contact_width", seatId: last, valueSi: 1.4, enteredUnit: "mm", method: null, spec: null, note: null }),
       () => sheets.updateValveIdentity(db, rhea, { valveId: valve.id, tag: `E-${randomUUID().slice(0, 4)}`, partNumber: null, serial: null }),
       () => addSeatPhoto(db, rhea, last, photo()),
+      () => recordDoneCheck(db, rhea, { seatId: last, kind: "marking_compound", result: "pass" }),
       () => bench.startSession(db, rhea, last, { sessionId: randomUUID(), stage: "fine", deviceId }),
       () => bench.saveStrokes(db, rhea, sessionId, strokeInputs([1, 1], (strokeIndex += 2))),
       () => storeRecording(db, rhea, sessionId, streamOf(wavFile)),
@@ -123,7 +125,8 @@ describe.each(backends)("writes racing a sign-off on %s", (_name, open) => {
     };
     const signOff = async () => {
       await new Promise((r) => setTimeout(r, 30));
-      await review.reviewSeat(db, rhea, { seatId: last, decision: "approved", comment: "Even grey ring." });
+      // Only the marking-compound test is recorded in the race, so the approval gives its reason.
+      await review.reviewSeat(db, rhea, { seatId: last, decision: "approved", comment: "Even grey ring.", checksReason: "Leak test done with the head assembled." });
       await review.reviewHead(db, rhea, { jobId: head.jobId, decision: "approved", comment: "Head signed off." });
       signedOff = true;
     };
@@ -154,6 +157,7 @@ describe.each(backends)("writes racing a sign-off on %s", (_name, open) => {
       select ${landed}::text as x from strokes where session_id in (select id from lapping_sessions where seat_id = ${last})
       union all select ${landed}::text from lapping_sessions where seat_id = ${last}
       union all select ${landed}::text from seat_photos where seat_id = ${last}
+      union all select ${landed}::text from seat_checks where seat_id = ${last}
       union all select ${landed}::text from measurements where seat_id = ${last}
       union all select ${landed}::text from valves where id = ${valve.id}`);
     const headRows = await when(sql`

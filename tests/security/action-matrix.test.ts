@@ -300,6 +300,13 @@ async function jobFormAsItIs(c: CaseContext) {
 }
 
 const CASES: Record<string, Case> = {
+  "lib/actions/done-checks.ts#saveDoneCheck": async (c) => {
+    return () =>
+      action("lib/actions/done-checks.ts#saveDoneCheck")(
+        prev,
+        form({ seatId: seatOf(c, "4I1"), kind: "leak_test", result: "pass", note: `Dry, call ${c.n}.` }),
+      );
+  },
   "lib/actions/jobs.ts#createJob": async (c) => {
     // Another shop may book in for itself, but not with this shop's technician on the job.
     const assignedTechnicianId = c.caller.startsWith("otherShop")
@@ -340,6 +347,8 @@ const CASES: Record<string, Case> = {
           jobId: c.job.jobId,
           decision: "approved",
           comment: "Even grey ring all round.",
+          // No done-checks are recorded on this seat, so an approval gives its reason.
+          checksReason: "Checked with the head assembled.",
         }),
       );
   },
@@ -635,6 +644,7 @@ describe("route handlers, for another shop's supervisor", () => {
     "GET /api/photos/[photoId]": () => ({ path: `/api/photos/${mine.photoId}` }),
     "GET /api/seats/[seatId]": () => ({ path: `/api/seats/${mine.seatId}` }),
     "GET /api/seats/[seatId]/photos": () => ({ path: `/api/seats/${mine.seatId}/photos` }),
+    "GET /api/seats/[seatId]/checks": () => ({ path: `/api/seats/${mine.seatId}/checks` }),
     "POST /api/seats/[seatId]/photos": () => ({
       path: `/api/seats/${mine.seatId}/photos`,
       headers: { "content-type": "image/png" },

@@ -10,11 +10,13 @@ import * as jobsRoute from "@/app/api/jobs/route";
 import * as photoRoute from "@/app/api/photos/[photoId]/route";
 import * as seatPhotosRoute from "@/app/api/seats/[seatId]/photos/route";
 import * as seatRoute from "@/app/api/seats/[seatId]/route";
+import * as seatChecksRoute from "@/app/api/seats/[seatId]/checks/route";
 import * as sessionsRoute from "@/app/api/seats/[seatId]/sessions/route";
 import * as endRoute from "@/app/api/sessions/[sessionId]/end/route";
 import * as chunksRoute from "@/app/api/sessions/[sessionId]/recording/chunks/route";
 import * as recordingRoute from "@/app/api/sessions/[sessionId]/recording/route";
 import * as strokesRoute from "@/app/api/sessions/[sessionId]/strokes/route";
+import * as doneCheckActions from "@/lib/actions/done-checks";
 import * as jobActions from "@/lib/actions/jobs";
 import * as mailActions from "@/lib/actions/mail";
 import * as reviewActions from "@/lib/actions/review";
@@ -464,6 +466,12 @@ export const routeCases: RouteCase[] = [
   { group: "photo reads", name: "a photo id with a NUL byte", as: RHEA, status: 400, send: () => photoRoute.GET(request("/api/photos/x", "GET"), params({ photoId: NUL_ID })) },
   { group: "photo reads", name: "the photo list of another shop's seat", as: RHEA, status: 404, send: (f) => seatPhotosRoute.GET(request("/api/seats/x/photos", "GET"), params({ seatId: f.other.seats.get("1I1")! })) },
 
+  // GET /api/seats/[seatId]/checks
+  { group: "done-check reads", name: "another shop's seat", as: RHEA, status: 404, send: (f) => seatChecksRoute.GET(request("/api/seats/x/checks", "GET"), params({ seatId: f.other.seats.get("1I1")! })) },
+  { group: "done-check reads", name: "a seat id that climbs paths", as: RHEA, status: 400, send: () => seatChecksRoute.GET(request("/api/seats/x/checks", "GET"), params({ seatId: "../../etc/passwd" })) },
+  { group: "done-check reads", name: "a seat id with a NUL byte", as: INES, status: 400, send: () => seatChecksRoute.GET(request("/api/seats/x/checks", "GET"), params({ seatId: NUL_ID })) },
+  { group: "done-check reads", name: "nobody signed in", as: null, status: 401, send: (f) => seatChecksRoute.GET(request("/api/seats/x/checks", "GET"), params({ seatId: f.own.seats.get("3I1")! })) },
+
   // GET /api/seats/[seatId], GET /api/heads/[headId]/sheets, GET /api/jobs
   { group: "reads", name: "another shop's seat", as: INES, status: 404, send: (f) => seatRoute.GET(request("/api/seats/x", "GET"), params({ seatId: f.other.seats.get("1I1")! })) },
   { group: "reads", name: "a seat id of 100 kB", as: INES, status: 400, send: () => seatRoute.GET(request("/api/seats/x", "GET"), params({ seatId: HUGE(100_000) })) },
@@ -549,6 +557,9 @@ const specFigure = (f: Fixtures, o: Record<string, string>) =>
 const seatReview = (f: Fixtures, o: Record<string, string>) =>
   reviewActions.submitSeatReview(initialActionState, form({ seatId: f.audit.seats.get("1I1")!, jobId: f.audit.jobId, decision: "approved", comment: "Even grey ring, leak test dry.", ...o }));
 
+const doneCheck = (f: Fixtures, o: Record<string, string>) =>
+  doneCheckActions.saveDoneCheck(initialActionState, form({ seatId: f.own.seats.get("3E1")!, kind: "leak_test", result: "pass", note: "", ...o }));
+
 /** The sign-in check behind /api/auth/callback/credentials, as next-auth calls it. */
 async function signIn(credentials: unknown): Promise<ActionState> {
   const provider = authOptions.providers[0] as unknown as { options: { authorize(c: unknown, req: unknown): Promise<unknown> } };
@@ -616,6 +627,20 @@ export const actionCases: ActionCase[] = [
   { group: "review actions", name: "signing off another shop's head", as: RHEA, message: /your shop/, run: (f) => reviewActions.submitHeadReview(initialActionState, form({ jobId: f.other.jobId, decision: "approved", comment: "All seats approved." })) },
   { group: "review actions", name: "reopening a head that is not signed off", as: RHEA, run: (f) => reviewActions.submitHeadReopen(initialActionState, form({ jobId: f.audit.jobId, reason: "Customer asked again." })) },
   { group: "review actions", name: "a technician signing off", as: INES, message: /supervisor/, run: (f) => seatReview(f, {}) },
+
+  // saveDoneCheck, and approving without the done-checks
+  { group: "done-check actions", name: "an unknown check", as: INES, field: "kind", run: (f) => doneCheck(f, { kind: "sniff_test" }) },
+  { group: "done-check actions", name: "a result that is neither pass nor fail", as: INES, field: "result", run: (f) => doneCheck(f, { result: "mostly" }) },
+  { group: "done-check actions", name: "a 1 MB note", as: INES, field: "note", run: (f) => doneCheck(f, { note: HUGE(MB) }) },
+  { group: "done-check actions", name: "a NUL byte in the note", as: INES, field: "note", run: (f) => doneCheck(f, { note: NUL_TEXT }) },
+  { group: "done-check actions", name: "a seat id that climbs paths", as: INES, field: "seatId", run: (f) => doneCheck(f, { seatId: TRAVERSAL_ID }) },
+  { group: "done-check actions", name: "another shop's seat", as: RHEA, message: /your shop/, run: (f) => doneCheck(f, { seatId: f.other.seats.get("1I1")! }) },
+  { group: "done-check actions", name: "another shop's photo", as: INES, field: "photoId", run: (f) => doneCheck(f, { photoId: f.other.photoId }) },
+  { group: "done-check actions", name: "a photo id that is not one", as: INES, field: "photoId", run: (f) => doneCheck(f, { photoId: "ring.jpg" }) },
+  { group: "done-check actions", name: "a technician on another's job", as: DOV, message: /assigned to another technician/, run: (f) => doneCheck(f, {}) },
+  { group: "done-check actions", name: "a check on a signed-off head", as: RHEA, message: /signed off/, run: (f) => doneCheck(f, { seatId: f.signedOff.seatId }) },
+  { group: "done-check actions", name: "approving a seat without its done-checks and without a reason", as: RHEA, field: "checksReason", message: /done-checks are not all passed/, run: (f) => seatReview(f, { seatId: f.openJob.seats.get("1I1")!, jobId: f.openJob.jobId }) },
+  { group: "done-check actions", name: "a NUL byte in the reason for approving without them", as: RHEA, field: "checksReason", run: (f) => seatReview(f, { checksReason: NUL_TEXT }) },
 
   // the head sheets
   { group: "sheet actions", name: 'a clearance of "NaN"', as: INES, field: "value", run: (f) => clearance(f, { value: "NaN" }) },

@@ -8,7 +8,7 @@ import path from "node:path";
 import bcrypt from "bcryptjs";
 import { and, eq, sql } from "drizzle-orm";
 import type { Db } from "@/db/client";
-import { customers, engineSpecs, jobs, mailOutbox, shops, users, valves } from "@/db/schema";
+import { customers, engineSpecs, jobs, mailOutbox, seats, shops, users, valves } from "@/db/schema";
 import { startSession } from "@/lib/bench/service";
 import { createHeadWithSeats } from "@/lib/heads/create";
 import { DEFAULT_HEAD_LAYOUT } from "@/lib/heads/layout";
@@ -46,6 +46,8 @@ export interface Fixtures {
   /** A session Ines started on a job assigned to nobody, which any technician may work on. */
   openJob: HeadIds & { inesSession: string };
   ownSpecId: string;
+  /** A seat of MHW-0151, a job of Rhea's shop already signed off. */
+  signedOff: { jobId: string; seatId: string };
   /** Everything of the second shop, Ferrule Lane Engines. */
   other: HeadIds & {
     shopId: string;
@@ -154,6 +156,20 @@ export async function buildFixtures(db: Db): Promise<Fixtures> {
     journalsPerCamshaft: 5,
   });
   const open = await headIds(db, "MHW-0150");
+  // A settled seat with no done-checks: approving it needs a reason.
+  await db.update(seats).set({ state: "settled" }).where(eq(seats.id, open.seats.get("1I1")!));
+  const [closedJob] = await db
+    .insert(jobs)
+    .values({ shopId: ines.shopId, number: "MHW-0151", customerId: first!.customerId, engineDescription: "Tor T14 1.4 inline-4, single cam, 8 valves", status: "signed_off" })
+    .returning();
+  const closedHead = await createHeadWithSeats(db, closedJob!.id, "Cylinder head", {
+    arrangement: "inline",
+    cylinderCount: 1,
+    intakeValvesPerCylinder: 1,
+    exhaustValvesPerCylinder: 1,
+    camshaftCount: 0,
+    journalsPerCamshaft: 0,
+  });
   const openSession = randomUUID();
   await startSession(db, ines, open.seats.get("2I1")!, { sessionId: openSession, stage: "coarse", deviceId: "phone-ines-1" });
   const [ownSpec] = await db
@@ -170,6 +186,7 @@ export async function buildFixtures(db: Db): Promise<Fixtures> {
     inesSession,
     openJob: { ...open, inesSession: openSession },
     ownSpecId: ownSpec!.id,
+    signedOff: { jobId: closedJob!.id, seatId: closedHead.seats[0]!.id },
     other: {
       ...other,
       shopId: shop!.id,

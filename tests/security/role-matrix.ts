@@ -297,6 +297,15 @@ export const ROUTE_MATRIX: Record<string, CrossShopRow<ApiOutcome, CrossShopApi>
     otherShop: 404,
     why: "The seat's photo list, read by every role of its shop.",
   },
+  "GET /api/seats/[seatId]/checks": {
+    anonymous: 401,
+    technicianOwnJob: 200,
+    technicianOtherJob: 200,
+    supervisor: 200,
+    admin: 200,
+    otherShop: 404,
+    why: "The seat's done-checks, read by every role of its shop.",
+  },
   "POST /api/seats/[seatId]/photos": {
     anonymous: 401,
     technicianOwnJob: 201,
@@ -387,6 +396,15 @@ export const ROUTE_MATRIX: Record<string, CrossShopRow<ApiOutcome, CrossShopApi>
 export type CrossShopAction = "not-found" | "own-shop";
 
 export const ACTION_MATRIX: Record<string, CrossShopRow<ActionOutcome, CrossShopAction>> = {
+  "lib/actions/done-checks.ts#saveDoneCheck": {
+    anonymous: "unauthorized",
+    technicianOwnJob: "ok",
+    technicianOtherJob: "forbidden",
+    supervisor: "ok",
+    admin: "forbidden",
+    otherShop: "not-found",
+    why: "Recording a done-check (contact ring, marking compound, leak test) is work on the job.",
+  },
   "lib/actions/jobs.ts#createJob": {
     anonymous: "unauthorized",
     technicianOwnJob: "forbidden",

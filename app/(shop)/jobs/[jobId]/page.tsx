@@ -13,6 +13,7 @@ import { HeadReviewPanel } from "@/components/review/head-review-panel";
 import { SeatReviewPanel } from "@/components/review/seat-review-panel";
 import { getReviews, getUnapprovedSeatCodes } from "@/db/queries/reviews";
 import { effectiveSpecs } from "@/lib/specs/effective";
+import { getJobDoneChecks } from "@/lib/bench/done-checks";
 import { SPEC_KEYS } from "@/lib/specs/keys";
 import { requireActor } from "@/lib/auth/guard";
 import { can } from "@/lib/auth/roles";
@@ -34,6 +35,7 @@ export default async function JobPage({ params }: PageProps<"/jobs/[jobId]">) {
   const closed = isClosed(job.status);
   const specs = [...(await effectiveSpecs(db, job.id)).values()];
   const reviews = await getReviews(db, actor.shopId, job.id);
+  const doneChecks = await getJobDoneChecks(db, actor.shopId, job.id);
   const unapproved = await getUnapprovedSeatCodes(db, actor.shopId, job.id);
   const canReview = actor.role === "supervisor";
   const moves = allowedMoves(job.status, actor.role).map((m) => ({ to: m.to, label: m.label }));
@@ -193,6 +195,7 @@ export default async function JobPage({ params }: PageProps<"/jobs/[jobId]">) {
                           reviews={reviews.filter((r) => r.seatId === s.id)}
                           canReview={canReview}
                           headClosed={closed}
+                          doneChecks={doneChecks.get(s.id)}
                         />
                       </li>
                     ))}

@@ -4,6 +4,8 @@ import { notFound } from "next/navigation";
 import { z } from "zod";
 import { getDb } from "@/db/client";
 import { SeatPhotos } from "@/components/review/seat-photos";
+import { DoneChecksSummary } from "@/components/bench/done-checks-summary";
+import { getSeatDoneChecks } from "@/lib/bench/done-checks";
 import { SessionReview } from "@/components/review/session-review";
 import { leftOutSummary } from "@/lib/audio/verdict";
 import { requireActor } from "@/lib/auth/guard";
@@ -29,6 +31,7 @@ export default async function ReviewPage({ params, searchParams }: PageProps<"/r
     if (err instanceof NotFoundError) notFound();
     throw err;
   });
+  const doneChecks = await getSeatDoneChecks(await getDb(), actor, seatId);
   const all: Listed[] = [
     ...report.stages.coarse.sessions.map((s) => ({ ...s, stage: "coarse" as const })),
     ...report.stages.fine.sessions.map((s) => ({ ...s, stage: "fine" as const })),
@@ -115,6 +118,12 @@ export default async function ReviewPage({ params, searchParams }: PageProps<"/r
           ) : null}
         </>
       )}
+      <section aria-labelledby="review-done-checks" className="rounded-xl border border-stone-300 bg-white p-3">
+        <h2 id="review-done-checks" className="mb-1 font-semibold">
+          Done-checks
+        </h2>
+        <DoneChecksSummary checks={doneChecks} testId="review-done-checks" />
+      </section>
       <SeatPhotos seatId={seatId} canAdd={report.canWork} />
     </div>
   );

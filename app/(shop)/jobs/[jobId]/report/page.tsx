@@ -12,6 +12,8 @@ import { Cautions } from "@/components/sheets/cautions";
 import type { SeatVerdict } from "@/lib/audio";
 import { requireActor } from "@/lib/auth/guard";
 import { listJobPhotos } from "@/lib/storage/photos";
+import { getJobDoneChecks } from "@/lib/bench/done-checks";
+import { DONE_CHECK_KINDS, DONE_CHECK_LABELS } from "@/lib/bench/done-check-words";
 import { NotFoundError } from "@/lib/errors";
 import { seatCode } from "@/lib/heads/layout";
 import { getClearanceSheet, getTorqueSheets, listMeasurements } from "@/lib/heads/sheets";
@@ -87,6 +89,7 @@ export default async function HeadReportPage({ params }: PageProps<"/jobs/[jobId
   const others = (measurements ?? []).filter((m) => m.kind !== "journal_clearance");
   const photos = (await listJobPhotos(db, actor.shopId, job.id)).map((p) => ({ code: seatCode(p.seat), id: p.id, createdAt: p.createdAt }));
   const threshold = DEFAULT_SETTLED_THRESHOLD_DB;
+  const doneChecks = await getJobDoneChecks(db, actor.shopId, job.id);
 
   return (
     <article className="flex flex-col gap-6 print:gap-4 print:text-[11pt]" data-testid="head-report">
@@ -325,6 +328,72 @@ export default async function HeadReportPage({ params }: PageProps<"/jobs/[jobId
         )}
       </section>
 
+      <section aria-labelledby="report-done-checks" className="report-section flex flex-col gap-2">
+        <h2 id="report-done-checks" className="text-xl font-bold">
+          Done-checks
+        </h2>
+        <p className="text-sm text-stone-600">
+          Besides the sound: an even, dull-grey contact ring of the specified width, a marking-compound contact test and a solvent leak test of
+          each port, recorded at the bench.
+        </p>
+        {job.heads.map((head) => (
+          <div key={head.id} className="overflow-x-auto rounded-xl border border-stone-300 bg-white print:overflow-visible print:border-0">
+            <table className="w-full min-w-[40rem] text-left text-sm print:min-w-0" data-testid="report-done-checks">
+              <thead className="bg-stone-100 print:bg-transparent">
+                <tr>
+                  <th scope="col" className="px-3 py-2">Seat</th>
+                  {DONE_CHECK_KINDS.map((k) => (
+                    <th key={k} scope="col" className="px-3 py-2">
+                      {DONE_CHECK_LABELS[k]}
+                    </th>
+                  ))}
+                </tr>
+              </thead>
+              <tbody>
+                {head.seats.map((s) => {
+                  const c = doneChecks.get(s.id);
+                  return (
+                    <tr key={s.id} className="border-t border-stone-200" data-seat={seatCode(s)}>
+                      <th scope="row" className="figure px-3 py-2 font-semibold">
+                        {seatCode(s)}
+                      </th>
+                      {DONE_CHECK_KINDS.map((k) => {
+                        const r = c?.latest[k] ?? null;
+                        return (
+                          <td key={k} className="px-3 py-2 align-top" data-check={k}>
+                            {r ? (
+                              <>
+                                <span className={`font-semibold ${r.result === "pass" ? "text-emerald-800" : "text-rose-800"}`}>{r.result === "pass" ? "Pass" : "Fail"}</span>
+                                <span className="block text-xs text-stone-600">
+                                  {r.recordedBy} · <span className="figure">{stamp(r.recordedAt)}</span>
+                                </span>
+                                {k === "contact_ring" && c ? (
+                                  <span className="block text-xs">
+                                    {r.contactWidthMm !== null ? <span className="figure">width {r.contactWidthMm.toFixed(2)} mm</span> : "width not measured"}
+                                    {c.width.specMin !== null || c.width.specMax !== null ? (
+                                      <span className="figure"> (spec {c.width.specMin?.toFixed(2) ?? "…"}–{c.width.specMax?.toFixed(2) ?? "…"} mm)</span>
+                                    ) : null}
+                                  </span>
+                                ) : null}
+                                {k === "leak_test" && c ? <span className="block text-xs">{c.port}</span> : null}
+                                {r.note ? <span className="block text-xs text-stone-700">“{r.note}”</span> : null}
+                                {r.photoUrl ? <span className="block text-xs">photo attached</span> : null}
+                              </>
+                            ) : (
+                              <span className="text-stone-500">Not recorded</span>
+                            )}
+                          </td>
+                        );
+                      })}
+                    </tr>
+                  );
+                })}
+              </tbody>
+            </table>
+          </div>
+        ))}
+      </section>
+
       <section aria-labelledby="report-photos" className="report-section flex flex-col gap-2">
         <h2 id="report-photos" className="text-xl font-bold">
           Contact ring photos
@@ -361,6 +430,11 @@ export default async function HeadReportPage({ params }: PageProps<"/jobs/[jobId
                   {r.reviewerName} · <span className="figure">{stamp(r.createdAt)}</span>
                 </p>
                 <p className="mt-1 text-stone-700">{r.comment}</p>
+                {r.checksReason ? (
+                  <p className="mt-1 text-stone-900" data-testid="report-checks-reason">
+                    <span className="font-semibold">Approved without all done-checks:</span> {r.checksReason}
+                  </p>
+                ) : null}
               </li>
             ))}
           </ul>
