@@ -44,11 +44,14 @@ export function ClearanceRow({
   camshaftLabel,
   journal,
   closed,
+  spec,
 }: {
   jobId: string;
   camshaftLabel: string;
   journal: Journal;
   closed: boolean;
+  /** The specification in force for the job, shown beside the reading. */
+  spec: ClearanceSheet["spec"];
 }) {
   const timeZone = useShopTimeZone();
   const { state, pending, onSubmit, onChange, errorFor, showMessage } = useKeptForm(saveClearanceReading);
@@ -80,6 +83,10 @@ export function ClearanceRow({
     );
   };
   const saved = journal.reading;
+  const specHint =
+    spec && spec.min !== null && spec.max !== null
+      ? `Spec in force ${spec.min.toFixed(3)}–${spec.max.toFixed(3)} mm${spec.limit !== null ? `, limit ${spec.limit.toFixed(3)}` : ""}`
+      : "No spec on file: enter it below";
   return (
     <li className="rounded-xl border border-stone-300 bg-white p-3" data-testid="clearance-row" data-journal={journal.position}>
       <div className="flex flex-wrap items-start justify-between gap-2">
@@ -117,11 +124,11 @@ export function ClearanceRow({
                 </select>
                 <FieldError id={`${id}-stripId-err`} message={errorFor("stripId")} />
               </label>
-              {input("value", "Reading", "value", saved?.method === "strip" ? String(saved.clearanceMm) : "", "Read off the strip's envelope scale")}
+              {input("value", "Reading", "value", saved?.method === "strip" ? String(saved.clearanceMm) : "", specHint)}
             </>
           ) : (
             <>
-              {input("boreValue", "Bore", "boreValue", saved?.boreMm != null ? String(saved.boreMm) : "")}
+              {input("boreValue", "Bore", "boreValue", saved?.boreMm != null ? String(saved.boreMm) : "", specHint)}
               {input("journalValue", "Journal", "journalValue", saved?.journalMm != null ? String(saved.journalMm) : "")}
               <div className="hidden sm:block" />
             </>

@@ -38,7 +38,7 @@ export function useKeptForm<T>(action: (prev: ActionState<T>, f: FormData) => Pr
     startTransition(() => dispatch(data));
   };
   /** Tracks edits, so that a refusal goes once the refused value is changed. */
-  const onChange = (e: FormEvent<HTMLFormElement>) => {
+  const onChange = (e: { target: EventTarget | null }) => {
     const t = e.target as HTMLInputElement;
     if (t.name) setNow((n) => ({ ...n, [t.name]: t.value }));
   };
@@ -70,7 +70,6 @@ const TONE_CLASS: Record<ResultTone, string> = {
   warn: "border-amber-500 bg-amber-50 text-amber-950",
   refused: "border-rose-600 bg-rose-50 text-rose-900",
 };
-const TONE_WORD: Record<ResultTone, string> = { ok: "Saved", warn: "Saved — check", refused: "Not saved" };
 
 /** The answer to a save, in the colour of what it says: green saved, amber saved but worth a look, red refused. */
 export function ResultMessage({ state, show = true, testId }: { state: ActionState<unknown>; show?: boolean; testId?: string }) {
@@ -79,17 +78,11 @@ export function ResultMessage({ state, show = true, testId }: { state: ActionSta
   return (
     <p
       aria-live="polite"
-      role={visible && tone === "refused" ? "alert" : undefined}
       data-tone={visible ? tone : undefined}
       data-testid={testId}
       className={visible ? `rounded-lg border-l-4 px-2 py-1 text-sm ${TONE_CLASS[tone]}` : "text-sm"}
     >
-      {visible ? (
-        <>
-          <span className="sr-only">{TONE_WORD[tone]}: </span>
-          {state.message}
-        </>
-      ) : null}
+      {visible ? state.message : null}
     </p>
   );
 }

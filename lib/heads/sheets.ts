@@ -618,6 +618,11 @@ export async function recordMeasurements(db: Db, actor: Actor, jobId: string, in
         recordedById: actor.id,
         updatedAt: new Date(),
       };
+      // The same figure typed again (same value, unit and method) changes nothing and is not audited again.
+      if (before && before.value === p.input.valueSi && before.enteredUnit === p.input.enteredUnit && before.method === p.input.method && !p.input.spec) {
+        out.push({ ...savedView(before), specSource: before.specSource });
+        continue;
+      }
       const [stored] = before
         ? await tx.update(measurements).set(values).where(eq(measurements.id, before.id)).returning()
         : await tx.insert(measurements).values(values).returning();
