@@ -60,11 +60,11 @@ const blankToUndefined = (v: unknown) =>
  * Each field says what it wants in its own terms: the example is a figure of that field's kind
  * (a clearance, a diameter, a count), never another field's.
  */
-const numberError = (what: string, example?: string) => (iss: { input?: unknown }) =>
+const numberError = (what: string, example?: string, as = "a number") => (iss: { input?: unknown }) =>
   iss.input === undefined
     ? `Enter ${what}.`
     : example
-      ? `Enter ${what} as a number, like ${example}.`
+      ? `Enter ${what} as ${as}, like ${example}.`
       : `Enter ${what} as a plain number: digits with one decimal point or comma.`;
 
 /** A measured value: a number, zero or more. */
@@ -87,7 +87,7 @@ const wholeNumber = (what: string, min: number, max: number, range: string, exam
   z.preprocess(
     numberFromInput,
     z
-      .number({ error: numberError(what, example) })
+      .number({ error: numberError(what, example, "a whole number") })
       .int(`Enter ${what} as a whole number, like ${example}.`)
       .min(min, range)
       .max(max, range),
