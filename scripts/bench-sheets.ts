@@ -1,11 +1,11 @@
 // Speed of a sheet save, measured in Debian's Chromium at a phone viewport against a production
 // build of the demo shop: journal clearance readings on MHW-0142's clearance sheet and seat
 // measurements on its measurement grid, each timed from the save's request leaving the page to
-// the last byte of its answer (the server action, including what it renders back), and from the
-// tap to the answer being on screen.
+// the last byte of its answer (the server action, including what it renders back), and to the
+// answer being on screen. The goal is held to the answer (tap → the action's response), at p95.
 // Run: npm run bench:sheets   (builds first when no build exists; BENCH_REBUILD=1 forces it;
 // BENCH_SAVES=n sets the saves per sheet, default 40)
-import type { Page, Request } from "playwright-core";
+import type { Page } from "playwright-core";
 import { DEMO_USERS } from "@/db/seed";
 import { PHONE, launchBrowser, signIn } from "../tests/e2e/browser";
 import { buildApp, randomSecret, startServer } from "../tests/e2e/server";
@@ -18,79 +18,62 @@ const pct = (xs: number[], p: number) => {
   return s[Math.min(s.length - 1, Math.ceil(p * s.length) - 1)] ?? NaN;
 };
 
-/** Times every server-action request the page sends: request start to the answer's last byte. */
-function actionTimer(page: Page) {
-  const times: number[] = [];
-  const sent = new Map<Request, number>();
-  const isAction = (req: Request) => req.method() === "POST" && Boolean(req.headers()["next-action"]);
-  page.on("request", (req: Request) => {
-    if (isAction(req)) sent.set(req, performance.now());
-  });
-  page.on("requestfinished", (req: Request) => {
-    const t0 = sent.get(req);
-    if (t0 !== undefined) times.push(performance.now() - t0);
-    sent.delete(req);
-  });
-  return times;
+/**
+ * Taps save and times it: from the tap to the server action's answer arriving (response headers),
+ * which the goal is held to, and to the saved reading being on screen.
+ */
+async function timedSave(page: Page, save: () => Promise<void>, onScreen: () => Promise<void>, out: { answer: number[]; screen: number[] }) {
+  const answered = page.waitForResponse((r) => r.request().method() === "POST" && Boolean(r.request().headers()["next-action"]), { timeout: 30_000 });
+  const t0 = performance.now();
+  await save();
+  await answered;
+  out.answer.push(performance.now() - t0);
+  await onScreen();
+  out.screen.push(performance.now() - t0);
 }
 
-async function clearanceSaves(page: Page, url: string): Promise<number[]> {
+async function clearanceSaves(page: Page, url: string) {
   await page.goto(url);
   const rows = page.getByTestId("clearance-row");
   await rows.first().waitFor();
   const count = await rows.count();
-  const onScreen: number[] = [];
+  const out = { answer: [] as number[], screen: [] as number[] };
   for (let i = 0; i < SAVES; i++) {
     const row = rows.nth(i % count);
     // Plausible readings inside the narrow strip's scale, different each time so every save writes.
     const value = (0.04 + ((i * 7) % 30) / 1000).toFixed(3);
     await row.locator("input[name=value]").fill(value);
-    const t0 = Date.now();
-    await row.locator("button[type=submit]").tap();
-    await row.getByTestId("clearance-message").filter({ hasText: new RegExp(`^${value.replace(".", "\\.")} mm`) }).waitFor({ timeout: 30_000 });
-    onScreen.push(Date.now() - t0);
+    await timedSave(
+      page,
+      () => row.locator("button[type=submit]").tap(),
+      () => row.getByTestId("clearance-message").filter({ hasText: new RegExp(`^${value.replace(".", "\\.")} mm`) }).waitFor({ timeout: 30_000 }),
+      out,
+    );
   }
-  return onScreen;
+  return out;
 }
 
-async function formSaves(page: Page, url: string): Promise<number[]> {
-  await page.goto(url);
-  const form = page.getByTestId("measurement-form");
-  await form.waitFor();
-  const onScreen: number[] = [];
-  for (let i = 0; i < SAVES; i++) {
-    await form.locator("select[name=seatId]").selectOption({ index: 1 + (i % 4) });
-    const value = (1.2 + ((i * 7) % 30) / 100).toFixed(2);
-    await form.locator("input[name=value]").fill(value);
-    const t0 = Date.now();
-    await form.locator("button[type=submit]").tap();
-    await form.getByTestId("measurement-message").filter({ hasText: /Saved/ }).waitFor({ timeout: 30_000 }).catch(async (e: unknown) => {
-      throw new Error(`${String(e)}: ${await form.getByTestId("measurement-message").innerText()}`);
-    });
-    onScreen.push(Date.now() - t0);
-  }
-  return onScreen;
-}
-
-async function gridSaves(page: Page, url: string): Promise<number[]> {
+async function gridSaves(page: Page, url: string) {
   await page.goto(url);
   const grid = page.getByTestId("measurement-grid");
   await grid.waitFor();
   const rows = grid.getByTestId("grid-row");
   const count = await rows.count();
-  const onScreen: number[] = [];
+  const out = { answer: [] as number[], screen: [] as number[] };
   for (let i = 0; i < SAVES; i++) {
     const row = rows.nth(i % count);
     // Seat contact widths between 1.20 and 1.49 mm, different each time so every save writes.
     const value = (1.2 + ((i * 7) % 30) / 100).toFixed(2);
     const input = row.locator('input[data-kind="seat_contact_width"]');
     await input.fill(value);
-    const t0 = Date.now();
-    await input.press("Enter");
-    await row.getByTestId("grid-saved-seat_contact_width").filter({ hasText: new RegExp(`^${value.replace(".", "\\.")}`) }).waitFor({ timeout: 30_000 });
-    onScreen.push(Date.now() - t0);
+    await timedSave(
+      page,
+      () => input.press("Enter"),
+      () => row.getByTestId("grid-saved-seat_contact_width").filter({ hasText: new RegExp(`^${value.replace(".", "\\.")}`) }).waitFor({ timeout: 30_000 }),
+      out,
+    );
   }
-  return onScreen;
+  return out;
 }
 
 async function main() {
@@ -100,6 +83,7 @@ async function main() {
   const browser = await launchBrowser();
   const goals: string[] = [];
   let allServer: number[] = [];
+  let allScreen: number[] = [];
   try {
     const context = await browser.newContext(PHONE);
     // MHW-0142 is Dov's job in the demo shop.
@@ -113,26 +97,19 @@ async function main() {
     const parts = (process.env.BENCH_PARTS ?? "clearance,grid").split(",");
     console.log(`sheet saves on MHW-0142 (demo shop), Chromium ${browser.version()}, phone viewport, ${SAVES} saves per sheet`);
     for (const part of parts) {
-      const times = actionTimer(page);
-      const onScreen =
-        part === "clearance"
-          ? await clearanceSaves(page, `${jobUrl}/clearance`)
-          : part === "form"
-            ? await formSaves(page, `${jobUrl}/measurements`)
-            : await gridSaves(page, `${jobUrl}/measurements`);
-      page.removeAllListeners("requestfinished");
-      page.removeAllListeners("request");
+      const { answer, screen } = part === "clearance" ? await clearanceSaves(page, `${jobUrl}/clearance`) : await gridSaves(page, `${jobUrl}/measurements`);
       // The first save warms the route up; it is reported but left out of the percentiles.
-      const warm = times.slice(1);
+      const warm = answer.slice(1);
       allServer = allServer.concat(warm);
+      allScreen = allScreen.concat(screen.slice(1));
       console.log(
-        `${part}: answer p50 ${pct(warm, 0.5).toFixed(0)} ms, p95 ${pct(warm, 0.95).toFixed(0)} ms, max ${pct(warm, 1).toFixed(0)} ms (first ${times[0]?.toFixed(0)} ms); ` +
-          `tap → on screen p50 ${pct(onScreen.slice(1), 0.5).toFixed(0)} ms, p95 ${pct(onScreen.slice(1), 0.95).toFixed(0)} ms`,
+        `${part}: ${answer.length} saves; tap → answer p50 ${pct(warm, 0.5).toFixed(0)} ms, p95 ${pct(warm, 0.95).toFixed(0)} ms, max ${pct(warm, 1).toFixed(0)} ms (first ${answer[0]?.toFixed(0)} ms); ` +
+          `tap → on screen p50 ${pct(screen.slice(1), 0.5).toFixed(0)} ms, p95 ${pct(screen.slice(1), 0.95).toFixed(0)} ms`,
       );
     }
     const p95 = pct(allServer, 0.95);
     goals.push(
-      `GOAL sheet-save-p95: ${p95 <= GOAL_P95_MS ? "held" : "missed"} (p95 ${p95.toFixed(0)} ms, p50 ${pct(allServer, 0.5).toFixed(0)} ms over ${allServer.length} saves; goal ≤ ${GOAL_P95_MS} ms)`,
+      `GOAL sheet-save-p95: ${p95 <= GOAL_P95_MS ? "held" : "missed"} (tap → answer p95 ${p95.toFixed(0)} ms, p50 ${pct(allServer, 0.5).toFixed(0)} ms over ${allServer.length} saves; on screen p95 ${pct(allScreen, 0.95).toFixed(0)} ms; goal ≤ ${GOAL_P95_MS} ms)`,
     );
   } finally {
     await browser.close();
