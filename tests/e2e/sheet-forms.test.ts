@@ -36,6 +36,8 @@ describe("sheet forms keep what was typed", () => {
     const value = row.locator("input[name=value]");
     await value.fill("0,05x");
     await row.locator("summary").tap();
+    await row.locator("input[name=specMin]").fill("0.040");
+    await row.locator("input[name=specMax]").fill("0.080");
     const limit = row.locator("input[name=specLimit]");
     await limit.fill("lots");
     await row.getByRole("button", { name: /save reading/i }).tap();
@@ -57,7 +59,8 @@ describe("sheet forms keep what was typed", () => {
     expect(await row.getByTestId("clearance-saved").innerText()).toBe("Not measured");
 
     // Correcting a field clears its own refusal; the other stays until it too is changed.
-    await value.fill("0.050");
+    // 0.060 mm is on the wide strip's scale, 0.051–0.152 mm (retail guides; common practice).
+    await value.fill("0.060");
     expect(await invalid(value)).toBeNull();
     expect(await invalid(limit)).toBe("true");
     await limit.fill("");
@@ -65,12 +68,12 @@ describe("sheet forms keep what was typed", () => {
 
     // Saved: the reading shows apart from the fields, in the shop's date format, and the form keeps its choices.
     await row.getByRole("button", { name: /save reading/i }).tap();
-    await message.filter({ hasText: /^0\.050 mm — Within spec\./ }).waitFor({ timeout: 15_000 });
+    await message.filter({ hasText: /^0\.060 mm — Within spec\./ }).waitFor({ timeout: 15_000 });
     expect(await message.getAttribute("data-tone")).toBe("ok");
-    expect(await row.getByTestId("clearance-verdict").innerText()).toMatch(/0\.050 mm · Within spec/);
+    expect(await row.getByTestId("clearance-verdict").innerText()).toMatch(/0\.060 mm · Within spec/);
     expect(await row.getByTestId("clearance-saved").innerText()).toMatch(WHEN);
     expect(await row.locator("select[name=stripId]").inputValue()).toBe("wide");
-    expect(await value.inputValue()).toBe("0.050");
+    expect(await value.inputValue()).toBe("0.060");
     // The specification in force beside the field: Halden HV30 demo figure 0.040–0.080 mm (invented, db/seed.ts).
     expect(await row.innerText()).toMatch(/Spec in force 0\.040–0\.080 mm, limit 0\.120/);
   });
@@ -124,6 +127,8 @@ describe("sheet forms keep what was typed", () => {
 
 describe("the seat × measurement grid", () => {
   const rowOf = (code: string) => page.locator(`[data-testid=grid-row][data-seat="${code}"]`);
+  /** A row's answer, in the table row under the seat's. */
+  const messageOf = (code: string) => rowOf(code).locator("xpath=following-sibling::tr[1]").getByTestId("grid-message");
   const width = (code: string) => rowOf(code).locator('input[data-kind="seat_contact_width"]');
 
   it("is typed with Tab and Enter, shows the specification in force, and a second reading replaces the first", async () => {
@@ -148,13 +153,13 @@ describe("the seat × measurement grid", () => {
     const codes = await page.locator("[data-testid=grid-row]").evaluateAll((rows) => rows.map((r) => r.getAttribute("data-seat")));
     expect(next).toBe(`${codes[codes.indexOf("5I1") + 1]} seat contact width`);
     await rowOf("5I1").getByTestId("grid-saved-seat_contact_width").filter({ hasText: /^1\.300 mm · Within spec/ }).waitFor({ timeout: 15_000 });
-    expect(await rowOf("5I1").getByTestId("grid-message").getAttribute("data-tone")).toBe("ok");
+    expect(await messageOf("5I1").getAttribute("data-tone")).toBe("ok");
 
     // 1.3 mm on an exhaust seat is below its own 1.4–1.9 mm: saved, in the warning colour.
     await width("5E2").fill("1.3");
     await width("5E2").press("Enter");
     await rowOf("5E2").getByTestId("grid-saved-seat_contact_width").filter({ hasText: /Below spec/ }).waitFor({ timeout: 15_000 });
-    expect(await rowOf("5E2").getByTestId("grid-message").getAttribute("data-tone")).toBe("warn");
+    expect(await messageOf("5E2").getAttribute("data-tone")).toBe("warn");
 
     // A second reading of the same figure on the same seat replaces the first, and says so.
     await width("5I1").fill("1.45");
