@@ -232,10 +232,10 @@ export default async function HeadReportPage({ params }: PageProps<"/jobs/[jobId
                       <th scope="row" className="px-3 py-2 font-normal">
                         {c.label}, journal {j.position}
                       </th>
-                      <td className="figure px-3 py-2">{j.reading ? `${j.reading.clearanceMm.toFixed(3)} mm` : "—"}</td>
+                      <td className="figure px-3 py-2">{j.reading && !j.reading.offScale ? `${j.reading.clearanceMm.toFixed(3)} mm` : "—"}</td>
                       <td className="px-3 py-2">{j.reading?.method ?? "—"}</td>
                       <td className="px-3 py-2">
-                        {j.reading ? (j.reading.verdict ? CLEARANCE_VERDICT_LABELS[j.reading.verdict] : "No spec") : "Not measured"}
+                        {j.reading ? (j.reading.offScale ? "Off scale: not a clearance, measure again" : j.reading.verdict ? CLEARANCE_VERDICT_LABELS[j.reading.verdict] : "No spec") : "Not measured"}
                       </td>
                     </tr>
                   )),
