@@ -78,6 +78,8 @@ export const shops = pgTable("shops", {
   id: uuid("id").primaryKey().defaultRandom(),
   name: text("name").notNull().unique(),
   address: text("address"),
+  // The IANA time zone every date of the shop is shown in (lib/dates.ts).
+  timeZone: text("time_zone").notNull().default("Europe/London"),
   ...timestamps,
 });
 
@@ -402,6 +404,8 @@ export const measurements = pgTable(
     stripId: text("strip_id"),
     boreMm: real("bore_mm"),
     journalMm: real("journal_mm"),
+    // A strip reading past the end of its strip's scale: kept as typed, never judged as a clearance.
+    offScale: boolean("off_scale").notNull().default(false),
     specSource: specSource("spec_source"),
     note: text("note"),
     recordedById: uuid("recorded_by_id")

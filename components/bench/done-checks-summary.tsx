@@ -2,10 +2,11 @@
 // the contact width, the note and the photo. No hooks, so the bench, the sign-off panel and the
 // report all show the same lines.
 import type { SeatDoneChecks } from "@/lib/bench/done-checks";
+import { DEFAULT_TIME_ZONE, formatWhen } from "@/lib/dates";
 import { DONE_CHECK_KINDS as KINDS, DONE_CHECK_LABELS as CHECK_LABELS } from "@/lib/bench/done-check-words";
 
-const fmt = new Intl.DateTimeFormat("en-GB", { dateStyle: "medium", timeStyle: "short", timeZone: "UTC" });
-export const when = (iso: string) => `${fmt.format(new Date(iso))} UTC`;
+/** The shop's one date format (lib/dates.ts), in its time zone when the caller knows it. */
+export const when = (iso: string, timeZone: string = DEFAULT_TIME_ZONE) => formatWhen(iso, timeZone);
 export const mm = (v: number | null) => (v === null ? "…" : v.toFixed(2));
 
 /** "1.25 mm (spec 1.00–1.40 mm)" or what is missing. */

@@ -1,5 +1,6 @@
 "use client";
 
+import { formatDay } from "@/lib/dates";
 import { useQuery } from "@tanstack/react-query";
 import {
   createColumnHelper,
@@ -39,11 +40,7 @@ function StatusBadge({ status }: { status: JobStatus }) {
   );
 }
 
-function formatDate(iso: string | null): string {
-  if (!iso) return "—";
-  const d = new Date(`${iso}T12:00:00Z`);
-  return d.toLocaleDateString(undefined, { day: "numeric", month: "short" });
-}
+const formatDate = (iso: string | null) => formatDay(iso);
 
 const columns = [
   col.accessor("number", {

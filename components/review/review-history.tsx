@@ -1,4 +1,6 @@
 import type { ReviewRow } from "@/db/queries/reviews";
+import { useShopTimeZone } from "@/components/shop-time-zone";
+import { formatWhen } from "@/lib/dates";
 
 const DECISION_LABELS: Record<ReviewRow["decision"], string> = {
   approved: "Approved",
@@ -12,10 +14,9 @@ const DECISION_STYLES: Record<ReviewRow["decision"], string> = {
   reopened: "bg-sky-100 text-sky-900",
 };
 
-const fmt = new Intl.DateTimeFormat("en-GB", { dateStyle: "medium", timeStyle: "short", timeZone: "UTC" });
-
 /** The decisions already taken, newest first, as the reviews query returns them. */
 export function ReviewHistory({ reviews, emptyText }: { reviews: ReviewRow[]; emptyText: string }) {
+  const timeZone = useShopTimeZone();
   if (reviews.length === 0) return <p className="text-sm text-stone-600">{emptyText}</p>;
   return (
     <ol className="flex flex-col gap-2" aria-label="Review history">
@@ -25,7 +26,7 @@ export function ReviewHistory({ reviews, emptyText }: { reviews: ReviewRow[]; em
             <span className={`rounded-full px-2 py-0.5 font-semibold ${DECISION_STYLES[r.decision]}`}>{DECISION_LABELS[r.decision]}</span>
             <span className="font-semibold">{r.reviewerName}</span>
             <time dateTime={r.createdAt} className="text-stone-600">
-              {fmt.format(new Date(r.createdAt))} UTC
+              {formatWhen(r.createdAt, timeZone)}
             </time>
           </div>
           <p className="mt-1 whitespace-pre-wrap">{r.comment}</p>

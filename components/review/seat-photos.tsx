@@ -3,6 +3,8 @@
 // Photos of the lapped contact ring on face and seat, taken with the phone's camera. Shown on
 // the bench screen (with the button to add one) and on the review page.
 import { useCallback, useEffect, useRef, useState } from "react";
+import { useShopTimeZone } from "@/components/shop-time-zone";
+import { formatWhen } from "@/lib/dates";
 
 interface Photo {
   id: string;
@@ -11,6 +13,7 @@ interface Photo {
 }
 
 export function SeatPhotos({ seatId, canAdd }: { seatId: string; canAdd: boolean }) {
+  const timeZone = useShopTimeZone();
   const [photos, setPhotos] = useState<Photo[] | null>(null);
   const [message, setMessage] = useState<string | null>(null);
   const [busy, setBusy] = useState(false);
@@ -95,7 +98,7 @@ export function SeatPhotos({ seatId, canAdd }: { seatId: string; canAdd: boolean
               <a href={`/api/photos/${p.id}`} target="_blank" rel="noreferrer">
                 {/* Plain img: the photos are private, served by our own route with the session cookie. */}
                 {/* eslint-disable-next-line @next/next/no-img-element */}
-                <img src={`/api/photos/${p.id}`} alt={`Contact ring photo taken ${new Date(p.createdAt).toLocaleString()}`} className="aspect-square w-full rounded object-cover" />
+                <img src={`/api/photos/${p.id}`} alt={`Contact ring photo taken ${formatWhen(p.createdAt, timeZone)}`} className="aspect-square w-full rounded object-cover" />
               </a>
             </li>
           ))}

@@ -23,11 +23,16 @@ const VERDICT_TEXT: Record<string, string> = {
   beyond_limit: "Beyond limit",
   below: "Below spec",
   above: "Above spec",
+  off_scale: "Off scale (not a clearance)",
 };
 
 const columns = [
   col.accessor("label", { header: "Measurement" }),
-  col.accessor("where", { header: "Where" }),
+  col.accessor("where", {
+    header: "Where",
+    // Seat codes in the monospace font, so 2I1 never reads as 2l1.
+    cell: (c) => (c.row.original.whereIsSeat ? <span className="figure font-semibold">{c.getValue()}</span> : c.getValue()),
+  }),
   col.accessor("valueSi", { header: "Value", cell: (c) => <span className="figure">{fmt(c.getValue(), c.row.original)} {unitOf(c.row.original)}</span> }),
   col.accessor((r) => `${fmt(r.specMin, r)}–${fmt(r.specMax, r)}`, {
     id: "spec",

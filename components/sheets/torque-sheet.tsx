@@ -1,6 +1,7 @@
 "use client";
 
 import { useActionState, useState } from "react";
+import { FieldError, fieldClass, ResultMessage, useKeptForm } from "./form-kit";
 import { saveTick, saveTorqueSetup, undoLastTick } from "@/lib/actions/sheets";
 import { initialActionState, type ActionState } from "@/lib/actions/state";
 import type { TorqueSheetView } from "@/lib/heads/sheets";
@@ -51,21 +52,21 @@ function SubmitRow({
   label,
   pending,
   state,
+  show = true,
 }: {
   className?: string;
   buttonClass: string;
   label: string;
   pending: boolean;
-  state: ActionState;
+  state: ActionState<unknown>;
+  show?: boolean;
 }) {
   return (
     <div className={`flex flex-wrap items-center gap-2 ${className}`}>
       <button type="submit" disabled={pending} className={`min-h-12 rounded-lg font-semibold disabled:opacity-60 ${buttonClass}`}>
         {label}
       </button>
-      <p aria-live="polite" className={`text-sm ${state.ok ? "text-emerald-800" : "text-rose-700"}`}>
-        {state.message}
-      </p>
+      <ResultMessage state={state} show={show} />
     </div>
   );
 }
@@ -94,10 +95,12 @@ function TypedTorque({
         inputMode="decimal"
         value={value}
         onChange={(e) => onChange(e.target.value)}
-        className={`${field} figure`}
+        aria-invalid={error ? true : undefined}
+        aria-describedby={error ? `${name}-err` : undefined}
+        className={fieldClass(Boolean(error), "figure")}
         data-testid={name}
       />
-      {error ? <span className={errorText}>{error}</span> : null}
+      <FieldError id={`${name}-err`} message={error} />
     </label>
   );
 }
@@ -115,7 +118,7 @@ export function TorqueSetupForm({
   specNm: number | null;
   closed: boolean;
 }) {
-  const [state, action, pending] = useActionState(saveTorqueSetup, initialActionState);
+  const { state, pending, onSubmit, onChange, errorFor, showMessage } = useKeptForm(saveTorqueSetup);
   const [mode, setMode] = useState<"centre-out" | "maker">(start.order ? "maker" : "centre-out");
   const [stageMode, setStageMode] = useState<"fractions" | "torques">("fractions");
   const startNm = start.finalNm ?? specNm;
@@ -124,7 +127,7 @@ export function TorqueSetupForm({
   const [stageTorques, setStageTorques] = useState(
     startNm === null ? "" : start.stageFractions.slice(0, -1).map((f) => String(roundTo(f * startNm, 2))).join(", "),
   );
-  const fe = (k: string) => state.fieldErrors[k]?.[0];
+  const fe = (k: string) => errorFor(k);
   if (closed) return <p className="text-sm text-stone-600">No torque sheet was set up before sign-off.</p>;
   // The unit names the torque already typed: changing it converts the figure, never reinterprets it.
   const changeUnit = (next: TorqueUnit) => {
@@ -135,13 +138,20 @@ export function TorqueSetupForm({
   const finalNm = typedNm(finalText, unit);
   const needsConfirmation = finalNm !== null && deviationNeedsConfirmation(finalNm, specNm);
   return (
-    <form action={action} className="grid grid-cols-2 gap-2 sm:grid-cols-4" data-testid="torque-setup" noValidate>
+    <form onSubmit={onSubmit} onChange={onChange} className="grid grid-cols-2 gap-2 sm:grid-cols-4" data-testid="torque-setup" noValidate>
       <input type="hidden" name="jobId" value={jobId} />
       <input type="hidden" name="camshaftId" value={camshaftId} />
       <label className="flex flex-col text-sm font-semibold">
         Caps
-        <input name="capCount" inputMode="numeric" defaultValue={start.capCount} className={`${field} figure`} />
-        {fe("capCount") ? <span className={errorText}>{fe("capCount")}</span> : null}
+        <input
+          name="capCount"
+          inputMode="numeric"
+          defaultValue={start.capCount}
+          aria-invalid={fe("capCount") ? true : undefined}
+          aria-describedby={fe("capCount") ? `${camshaftId}-capCount-err` : undefined}
+          className={fieldClass(Boolean(fe("capCount")), "figure")}
+        />
+        <FieldError id={`${camshaftId}-capCount-err`} message={fe("capCount")} />
       </label>
       <label className="flex flex-col text-sm font-semibold">
         Bolts per cap
@@ -225,8 +235,13 @@ export function TorqueSetupForm({
       {stageMode === "fractions" ? (
         <label className="col-span-2 flex flex-col text-sm font-semibold sm:col-span-4">
           Stages (share of final)
-          <input name="stageFractions" defaultValue={start.stageFractions.map((f) => roundTo(f, 3)).join(", ")} className={`${field} figure`} />
-          {fe("stageFractions") ? <span className={errorText}>{fe("stageFractions")}</span> : null}
+          <input
+            name="stageFractions"
+            defaultValue={start.stageFractions.map((f) => roundTo(f, 3)).join(", ")}
+            aria-invalid={fe("stageFractions") ? true : undefined}
+            className={fieldClass(Boolean(fe("stageFractions")), "figure")}
+          />
+          <FieldError id={`${camshaftId}-stageFractions-err`} message={fe("stageFractions")} />
         </label>
       ) : (
         <TypedTorque
@@ -241,8 +256,13 @@ export function TorqueSetupForm({
       {mode === "maker" ? (
         <label className="col-span-2 flex flex-col text-sm font-semibold sm:col-span-4">
           Bolts in the maker&apos;s order (e.g. C3-L, C3-R, C2-R, …)
-          <input name="order" defaultValue={start.order?.join(", ") ?? ""} className={`${field} figure`} />
-          {fe("order") ? <span className={errorText}>{fe("order")}</span> : null}
+          <input
+            name="order"
+            defaultValue={start.order?.join(", ") ?? ""}
+            aria-invalid={fe("order") ? true : undefined}
+            className={fieldClass(Boolean(fe("order")), "figure")}
+          />
+          <FieldError id={`${camshaftId}-order-err`} message={fe("order")} />
         </label>
       ) : null}
       <SubmitRow
@@ -251,29 +271,36 @@ export function TorqueSetupForm({
         label={pending ? "Setting up…" : start.finalNm === null ? "Set up the sheet" : "Change the set-up"}
         pending={pending}
         state={state}
+        show={showMessage}
       />
     </form>
   );
 }
 
 function UndoTickForm({ jobId, sheetId, tick }: { jobId: string; sheetId: string; tick: Tick }) {
-  const [state, action, pending] = useActionState(undoLastTick, initialActionState);
+  const { state, pending, onSubmit, onChange, errorFor, showMessage } = useKeptForm(undoLastTick);
   return (
     <details className="rounded-lg border border-stone-300 p-2" data-testid="undo-tick">
       <summary className="min-h-12 cursor-pointer content-center text-sm font-semibold">
         Undo the last tick ({tick.boltId} at stage {tick.stage})
       </summary>
-      <form action={action} className="mt-2 flex flex-col gap-2">
+      <form onSubmit={onSubmit} onChange={onChange} className="mt-2 flex flex-col gap-2" noValidate>
         <input type="hidden" name="jobId" value={jobId} />
         <input type="hidden" name="sheetId" value={sheetId} />
         <input type="hidden" name="stage" value={tick.stage} />
         <input type="hidden" name="boltId" value={tick.boltId} />
         <label className="flex flex-col text-sm font-semibold">
           Why (kept in the audit trail)
-          <input name="reason" className={field} maxLength={300} />
-          {state.fieldErrors.reason?.[0] ? <span className={errorText}>{state.fieldErrors.reason[0]}</span> : null}
+          <input
+            name="reason"
+            maxLength={300}
+            aria-invalid={errorFor("reason") ? true : undefined}
+            aria-describedby={errorFor("reason") ? `${sheetId}-reason-err` : undefined}
+            className={fieldClass(Boolean(errorFor("reason")))}
+          />
+          <FieldError id={`${sheetId}-reason-err`} message={errorFor("reason")} />
         </label>
-        <SubmitRow buttonClass="border-2 border-ink bg-white px-4" label={pending ? "Undoing…" : "Undo the tick"} pending={pending} state={state} />
+        <SubmitRow buttonClass="border-2 border-ink bg-white px-4" label={pending ? "Undoing…" : "Undo the tick"} pending={pending} state={state} show={showMessage} />
       </form>
     </details>
   );

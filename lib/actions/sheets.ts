@@ -3,12 +3,24 @@
 // Server actions for the head's sheets. Each checks the session and role first, validates with
 // the shared zod schemas, and leaves the database unchanged when it refuses.
 import { revalidatePath } from "next/cache";
-import { z } from "zod";
+import { z, type ZodError } from "zod";
 import { getDb } from "@/db/client";
 import { requireActor } from "@/lib/auth/guard";
-import { moveValve, recordJournalClearance, recordMeasurement, setUpTorqueSheet, tickBolt, undoTick, updateValveIdentity } from "@/lib/heads/sheets";
+import {
+  GRID_KINDS,
+  moveValve,
+  recordJournalClearance,
+  recordMeasurement,
+  recordMeasurements,
+  setUpTorqueSheet,
+  tickBolt,
+  undoTick,
+  updateValveIdentity,
+  type ClearanceReadingView,
+  type SavedMeasurement,
+} from "@/lib/heads/sheets";
 import { CLEARANCE_VERDICT_LABELS } from "@/lib/measure/clearance";
-import { RANGE_VERDICT_LABELS } from "@/lib/measure/results";
+import { MEASUREMENT_KINDS, RANGE_VERDICT_LABELS } from "@/lib/measure/results";
 import { toMm } from "@/lib/measure/units";
 import {
   clearanceMmOf,
@@ -24,7 +36,8 @@ import {
   torqueSheetSetupSchema,
 } from "@/lib/validations/measurements";
 import { storableText } from "@/lib/validations/text";
-import { actionFailure, type ActionState } from "./state";
+import { fieldErrorsOf } from "@/lib/errors";
+import { actionFailure, type ActionState, type ResultTone } from "./state";
 import { uuidText } from "@/lib/validations/ids";
 
 
@@ -44,20 +57,45 @@ const noteSchema = z.object({
   note: storableText(z.string().trim().max(300, "Keep the note under 300 characters.")).transform((v) => v || null),
 });
 
-export async function saveClearanceReading(_prev: ActionState, f: FormData): Promise<ActionState> {
+/**
+ * A sheet save answers with what it saved and re-renders nothing else: the form shows the saved
+ * reading itself, and other screens read the database when they are opened (they are dynamic).
+ */
+function saved<T>(message: string, tone: ResultTone, value: T): ActionState<T> {
+  return { ok: true, message, tone, fieldErrors: {}, saved: value };
+}
+
+/** Every refusal of a form at once: the zod issues of each part, merged field by field. */
+function refusedFields(...results: Array<{ success: boolean; error?: ZodError }>): ActionState<never> | null {
+  const fieldErrors: Record<string, string[]> = {};
+  for (const r of results) {
+    if (r.success || !r.error) continue;
+    for (const [k, v] of Object.entries(fieldErrorsOf(r.error))) (fieldErrors[k] ??= []).push(...v);
+  }
+  if (!Object.keys(fieldErrors).length) return null;
+  const n = Object.keys(fieldErrors).length;
+  return { ok: false, message: n === 1 ? "Check the highlighted field: nothing was saved." : `Check the ${n} highlighted fields: nothing was saved.`, fieldErrors };
+}
+
+export async function saveClearanceReading(_prev: ActionState, f: FormData): Promise<ActionState<ClearanceReadingView>> {
   try {
     const actor = await requireActor("jobs:work");
     const jobId = jobIdSchema.parse(text(f, "jobId"));
     const method = text(f, "method");
-    const reading = journalClearanceReadingSchema.parse(
+    const readingResult = journalClearanceReadingSchema.safeParse(
       method === "diameters"
         ? { journalId: text(f, "journalId"), method, boreValue: text(f, "boreValue"), journalValue: text(f, "journalValue"), unit: text(f, "unit") }
         : { journalId: text(f, "journalId"), method: "strip", stripId: text(f, "stripId"), value: text(f, "value"), unit: text(f, "unit") },
     );
-    const hasSpec = [text(f, "specMin"), text(f, "specMax")].some((v) => v && v.trim() !== "");
-    const spec = hasSpec
-      ? clearanceSpecMm(clearanceSpecSchema.parse({ min: text(f, "specMin"), max: text(f, "specMax"), serviceLimit: text(f, "specLimit"), unit: reading.unit }))
+    const hasSpec = [text(f, "specMin"), text(f, "specMax"), text(f, "specLimit")].some((v) => v && v.trim() !== "");
+    const specResult = hasSpec
+      ? clearanceSpecSchema.safeParse({ min: text(f, "specMin"), max: text(f, "specMax"), serviceLimit: text(f, "specLimit"), unit: text(f, "unit") })
       : null;
+    // Every refused field at once: the reading's and the specification's.
+    const refusal = refusedFields(readingResult, ...(specResult ? [specResult] : []));
+    if (refusal || !readingResult.success || (specResult && !specResult.success)) return refusal ?? actionFailure(readingResult.error);
+    const reading = readingResult.data;
+    const spec = specResult?.success ? clearanceSpecMm(specResult.data) : null;
     const clearanceMm = clearanceMmOf(reading);
     const result = await recordJournalClearance(await getDb(), actor, {
       jobId,
@@ -70,9 +108,12 @@ export async function saveClearanceReading(_prev: ActionState, f: FormData): Pro
       enteredUnit: reading.unit,
       spec: spec ? { minMm: spec.minMm, maxMm: spec.maxMm, serviceLimitMm: spec.serviceLimitMm ?? null } : null,
     });
+    if (result.offScale && result.strip && !result.strip.ok) {
+      return saved(`Saved as off scale, not as a clearance: ${result.strip.message}`, "warn", result.reading);
+    }
     const verdict = result.verdict ? CLEARANCE_VERDICT_LABELS[result.verdict] : "no specification to judge against";
-    const strip = result.strip && !result.strip.ok ? ` ${result.strip.message}` : "";
-    return done(jobId, "clearance", `${clearanceMm.toFixed(3)} mm — ${verdict}.${strip}`);
+    const tone: ResultTone = result.verdict === "within_spec" ? "ok" : "warn";
+    return saved(`${clearanceMm.toFixed(3)} mm — ${verdict}.`, tone, result.reading);
   } catch (err) {
     return actionFailure(err);
   }
@@ -139,7 +180,7 @@ export async function undoLastTick(_prev: ActionState, f: FormData): Promise<Act
   }
 }
 
-export async function saveMeasurement(_prev: ActionState, f: FormData): Promise<ActionState> {
+export async function saveMeasurement(_prev: ActionState, f: FormData): Promise<ActionState<SavedMeasurement>> {
   try {
     const actor = await requireActor("jobs:work");
     const jobId = jobIdSchema.parse(text(f, "jobId"));
@@ -167,7 +208,70 @@ export async function saveMeasurement(_prev: ActionState, f: FormData): Promise<
       spec: si.min !== null || si.max !== null ? { min: si.min, max: si.max } : null,
       note,
     });
-    return done(jobId, "measurements", result.verdict ? `Saved — ${RANGE_VERDICT_LABELS[result.verdict]}.` : "Saved (no specification to judge against).");
+    const replaced = result.replaced ? " It replaces the earlier reading, which the audit trail keeps." : "";
+    return result.verdict
+      ? saved(`Saved — ${RANGE_VERDICT_LABELS[result.verdict]}.${replaced}`, result.verdict === "within_spec" ? "ok" : "warn", result)
+      : saved(`Saved (no specification to judge against).${replaced}`, "ok", result);
+  } catch (err) {
+    return actionFailure(err);
+  }
+}
+
+/**
+ * One seat's row of the measurement grid: every figure typed on it, saved together or not at all,
+ * with every refused figure named at once. Field errors are keyed by the figure's kind.
+ */
+export async function saveSeatMeasurements(_prev: ActionState, f: FormData): Promise<ActionState<SavedMeasurement[]>> {
+  try {
+    const actor = await requireActor("jobs:work");
+    const jobId = jobIdSchema.parse(text(f, "jobId"));
+    const seatId = uuidText("Unknown seat.").parse(text(f, "seatId"));
+    const fieldErrors: Record<string, string[]> = {};
+    const parsed: Array<{ kind: (typeof GRID_KINDS)[number]; m: z.infer<typeof measurementSchema> }> = [];
+    for (const kind of GRID_KINDS) {
+      const value = text(f, kind);
+      if (value === undefined || value.trim() === "") continue;
+      const r = measurementSchema.safeParse({
+        kind,
+        seatId,
+        value,
+        unit: text(f, `${kind}.unit`) ?? MEASUREMENT_KINDS[kind].defaultUnit,
+        method: kind === "stem_guide_clearance" ? text(f, "stemGuideMethod") : undefined,
+      });
+      if (r.success) parsed.push({ kind, m: r.data });
+      else
+        for (const issue of r.error.issues) {
+          // The method belongs to the grid's column, the rest to the figure's own field.
+          const key = issue.path[0] === "method" ? "stemGuideMethod" : kind;
+          (fieldErrors[key] ??= []).push(issue.message);
+        }
+    }
+    if (Object.keys(fieldErrors).length) {
+      const n = Object.keys(fieldErrors).length;
+      return { ok: false, message: n === 1 ? "Check the highlighted figure: nothing on this seat was saved." : `Check the ${n} highlighted figures: nothing on this seat was saved.`, fieldErrors };
+    }
+    if (!parsed.length) return { ok: false, message: "Type at least one figure for this seat before saving.", fieldErrors: {} };
+    const results = await recordMeasurements(
+      await getDb(),
+      actor,
+      jobId,
+      parsed.map(({ kind, m }) => ({
+        jobId,
+        kind,
+        seatId,
+        valueSi: measurementSi(m).value,
+        enteredUnit: m.unit,
+        method: m.method ?? null,
+        spec: null,
+        note: null,
+      })),
+    );
+    const out = results.filter((r) => r.verdict && r.verdict !== "within_spec");
+    const replaced = results.some((r) => r.replaced) ? " Figures typed again replace the earlier readings (kept in the audit trail)." : "";
+    const message = out.length
+      ? `Saved ${results.length}; out of specification: ${out.map((r) => `${MEASUREMENT_KINDS[r.kind].label.toLowerCase()} ${RANGE_VERDICT_LABELS[r.verdict!].toLowerCase()}`).join(", ")}.${replaced}`
+      : `Saved ${results.length}${results.every((r) => r.verdict) ? ", all within spec" : ""}.${replaced}`;
+    return saved(message, out.length ? "warn" : "ok", results);
   } catch (err) {
     return actionFailure(err);
   }

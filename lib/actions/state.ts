@@ -2,15 +2,24 @@
 import { ZodError } from "zod";
 import { AppError, BadRequestError, currentRequestId, databaseRefusal, fieldErrorsOf, logServerError } from "@/lib/errors";
 
-export interface ActionState {
+/** What a result message says: saved and fine, saved but worth a look, or refused. */
+export type ResultTone = "ok" | "warn" | "refused";
+
+export interface ActionState<T = unknown> {
   ok: boolean;
   message: string | null;
   fieldErrors: Record<string, string[]>;
+  /** The message's tone when it is not simply ok (saved) or refused (not saved). */
+  tone?: ResultTone;
+  /** What was saved, as the form shows it, so the form can show it without the page being rendered again. */
+  saved?: T;
 }
 
-export const initialActionState: ActionState = { ok: false, message: null, fieldErrors: {} };
+export const toneOf = (state: Pick<ActionState, "ok" | "tone">): ResultTone => state.tone ?? (state.ok ? "ok" : "refused");
 
-export function actionFailure(err: unknown): ActionState {
+export const initialActionState: ActionState<never> = { ok: false, message: null, fieldErrors: {} };
+
+export function actionFailure(err: unknown): ActionState<never> {
   if (err instanceof ZodError) {
     return { ok: false, message: "Check the highlighted fields.", fieldErrors: fieldErrorsOf(err) };
   }

@@ -1,7 +1,7 @@
 // The head's sheets on the server: journal oil clearance readings, cap torque sequences, the
 // other head measurements and valve identity. Every write checks the shop, the role, that the
 // head is not signed off, and lands together with its audit entry.
-import { and, asc, eq, inArray } from "drizzle-orm";
+import { and, asc, desc, eq, inArray, isNull } from "drizzle-orm";
 import type { Db } from "@/db/client";
 import {
   camshafts,
@@ -91,6 +91,45 @@ export interface ClearanceResult {
   verdict: ClearanceVerdict | null;
   strip: StripCheck | null;
   specSource: "library" | "job_override" | "entered" | null;
+  /** A strip read past the end of its scale: kept as typed, not a measured clearance. */
+  offScale: boolean;
+  /** The reading as the sheet shows it once saved. */
+  reading: ClearanceReadingView;
+}
+
+/** A journal's saved reading as the clearance sheet shows it. */
+export interface ClearanceReadingView {
+  clearanceMm: number;
+  method: string | null;
+  stripId: string | null;
+  boreMm: number | null;
+  journalMm: number | null;
+  enteredUnit: string;
+  offScale: boolean;
+  verdict: ClearanceVerdict | null;
+  strip: StripCheck | null;
+  specSource: string | null;
+  spec: { minMm: number | null; maxMm: number | null; serviceLimitMm: number | null };
+  recordedAt: string;
+}
+
+function clearanceReadingView(r: typeof measurements.$inferSelect): ClearanceReadingView {
+  const spec = r.specMin !== null && r.specMax !== null ? { minMm: r.specMin, maxMm: r.specMax, serviceLimitMm: r.serviceLimit } : null;
+  const strip = r.method === "strip" && r.stripId ? stripCheck(r.value, r.stripId as StripId) : null;
+  return {
+    clearanceMm: r.value,
+    method: r.method,
+    stripId: r.stripId,
+    boreMm: r.boreMm,
+    journalMm: r.journalMm,
+    enteredUnit: r.enteredUnit,
+    offScale: r.offScale,
+    verdict: spec && !r.offScale ? judgeClearance(r.value, spec) : null,
+    strip,
+    specSource: r.specSource,
+    spec: { minMm: r.specMin, maxMm: r.specMax, serviceLimitMm: r.serviceLimit },
+    recordedAt: r.updatedAt.toISOString(),
+  };
 }
 
 function clearanceSpecFrom(spec: EffectiveSpec | null) {
@@ -113,9 +152,11 @@ export async function recordJournalClearance(db: Db, actor: Actor, input: Cleara
   const library = input.spec ? null : await effectiveSpec(db, row.job.id, "journal_clearance");
   const spec = input.spec ?? clearanceSpecFrom(library);
   const specSource: "entered" | "library" | "job_override" | null = input.spec ? "entered" : spec ? library!.source : null;
-  const verdict = spec ? judgeClearance(input.clearanceMm, spec) : null;
   const strip = input.method === "strip" && input.stripId ? stripCheck(input.clearanceMm, input.stripId) : null;
-  await db.transaction(async (tx) => {
+  // A strip crushed past the end of its scale gives no clearance to judge: it is kept as off scale.
+  const offScale = strip !== null && !strip.ok;
+  const verdict = spec && !offScale ? judgeClearance(input.clearanceMm, spec) : null;
+  const saved = await db.transaction(async (tx) => {
     await holdOpenJob(tx, row.job.id, signedOffSheets);
     // The journal is locked so that two readings of it at once replace each other rather than both insert.
     await tx.select({ id: journals.id }).from(journals).where(eq(journals.id, input.journalId)).for("no key update");
@@ -134,6 +175,7 @@ export async function recordJournalClearance(db: Db, actor: Actor, input: Cleara
       stripId: input.stripId,
       boreMm: input.boreMm,
       journalMm: input.journalMm,
+      offScale,
       specMin: spec?.minMm ?? null,
       specMax: spec?.maxMm ?? null,
       serviceLimit: spec?.serviceLimitMm ?? null,
@@ -141,14 +183,10 @@ export async function recordJournalClearance(db: Db, actor: Actor, input: Cleara
       recordedById: actor.id,
       updatedAt: new Date(),
     };
-    let id: string;
-    if (before) {
-      await tx.update(measurements).set(values).where(eq(measurements.id, before.id));
-      id = before.id;
-    } else {
-      const [created] = await tx.insert(measurements).values(values).returning({ id: measurements.id });
-      id = created!.id;
-    }
+    const [stored] = before
+      ? await tx.update(measurements).set(values).where(eq(measurements.id, before.id)).returning()
+      : await tx.insert(measurements).values(values).returning();
+    const id = stored!.id;
     await backToBenchForWork(tx, actor, row.job, "journal clearance");
     await recordAudit(tx, {
       actorId: actor.id,
@@ -163,11 +201,13 @@ export async function recordJournalClearance(db: Db, actor: Actor, input: Cleara
         journal: row.journal.position,
         valueMm: input.clearanceMm,
         method: input.method,
+        offScale,
         verdict,
       },
     });
+    return stored!;
   });
-  return { verdict, strip, specSource };
+  return { verdict, strip, specSource, offScale, reading: clearanceReadingView(saved) };
 }
 
 export interface ClearanceSheet {
@@ -181,18 +221,7 @@ export interface ClearanceSheet {
     journals: Array<{
       id: string;
       position: number;
-      reading: null | {
-        clearanceMm: number;
-        method: string | null;
-        stripId: string | null;
-        boreMm: number | null;
-        journalMm: number | null;
-        enteredUnit: string;
-        verdict: ClearanceVerdict | null;
-        strip: StripCheck | null;
-        specSource: string | null;
-        spec: { minMm: number | null; maxMm: number | null; serviceLimitMm: number | null };
-      };
+      reading: ClearanceReadingView | null;
     }>;
   }>;
 }
@@ -220,25 +249,7 @@ export async function getClearanceSheet(db: Db, shopId: string, jobId: string): 
         .filter((j) => j.camshaftId === c.id)
         .map((j) => {
           const r = byJournal.get(j.id);
-          const spec = r && r.specMin !== null && r.specMax !== null ? { minMm: r.specMin, maxMm: r.specMax, serviceLimitMm: r.serviceLimit } : null;
-          return {
-            id: j.id,
-            position: j.position,
-            reading: r
-              ? {
-                  clearanceMm: r.value,
-                  method: r.method,
-                  stripId: r.stripId,
-                  boreMm: r.boreMm,
-                  journalMm: r.journalMm,
-                  enteredUnit: r.enteredUnit,
-                  verdict: spec ? judgeClearance(r.value, spec) : null,
-                  strip: r.method === "strip" && r.stripId ? stripCheck(r.value, r.stripId as StripId) : null,
-                  specSource: r.specSource,
-                  spec: { minMm: r.specMin, maxMm: r.specMax, serviceLimitMm: r.serviceLimit },
-                }
-              : null,
-          };
+          return { id: j.id, position: j.position, reading: r ? clearanceReadingView(r) : null };
         }),
     })),
   };
@@ -530,55 +541,193 @@ export function specKeyFor(kind: MeasurementInput["kind"], seatKind: "intake" | 
   }
 }
 
-export async function recordMeasurement(db: Db, actor: Actor, input: MeasurementInput) {
-  const { head, job } = await headOfJob(db, actor.shopId, input.jobId);
+export interface SavedMeasurement {
+  id: string;
+  kind: MeasurementInput["kind"];
+  seatId: string | null;
+  valueSi: number;
+  enteredUnit: string;
+  method: string | null;
+  specMin: number | null;
+  specMax: number | null;
+  specSource: "library" | "job_override" | "entered" | null;
+  verdict: RangeVerdict | null;
+  /** This reading replaced an earlier one of the same figure on the same seat (or head). */
+  replaced: { valueSi: number } | null;
+  recordedAt: string;
+}
+
+/**
+ * Records one or more measurements of a head in one transaction. A figure is held once per seat
+ * (or once per head for head measurements): a second reading of it replaces the first, and the
+ * audit trail keeps the value it replaced.
+ */
+export async function recordMeasurements(db: Db, actor: Actor, jobId: string, inputs: readonly MeasurementInput[]): Promise<SavedMeasurement[]> {
+  const { head, job } = await headOfJob(db, actor.shopId, jobId);
   assertEditable(actor, job);
-  const info = MEASUREMENT_KINDS[input.kind];
-  let seatKind: "intake" | "exhaust" | null = null;
-  if (info.scope === "seat") {
-    if (!input.seatId) throw new BadRequestError("Choose the seat this was measured on.", { seatId: ["Choose a seat."] });
-    const [seat] = await db.select().from(seats).where(and(eq(seats.id, input.seatId), eq(seats.headId, head.id)));
-    if (!seat) throw new BadRequestError("That seat is not on this head.", { seatId: ["No such seat."] });
-    assertSeatOpen(seat);
-    seatKind = seat.kind;
-  }
-  const key = specKeyFor(input.kind, seatKind);
-  const library = !input.spec && key ? await effectiveSpec(db, job.id, key) : null;
-  const spec = input.spec ?? (library ? { min: library.min, max: library.max } : null);
-  const specSource: "entered" | "library" | "job_override" | null = input.spec ? "entered" : library ? library.source : null;
-  const verdict: RangeVerdict | null = spec && (spec.min !== null || spec.max !== null) ? judgeRange(input.valueSi, { min: spec.min ?? undefined, max: spec.max ?? undefined }) : null;
-  const id = await db.transaction(async (tx) => {
-    await holdOpenJob(tx, job.id, signedOffSheets);
-    if (info.scope === "seat") await openSeatsNow(tx, [input.seatId!]);
-    const [created] = await tx
-      .insert(measurements)
-      .values({
-        headId: head.id,
-        kind: input.kind,
-        seatId: info.scope === "seat" ? input.seatId : null,
-        value: input.valueSi,
-        enteredUnit: input.enteredUnit,
-        method: input.method,
-        specMin: spec?.min ?? null,
-        specMax: spec?.max ?? null,
-        serviceLimit: library?.limit ?? null,
-        specSource,
-        note: input.note,
-        recordedById: actor.id,
-      })
-      .returning({ id: measurements.id });
-    await backToBenchForWork(tx, actor, job, MEASUREMENT_KINDS[input.kind].label.toLowerCase());
-    await recordAudit(tx, {
-      actorId: actor.id,
-      action: "measurement.recorded",
-      entityType: "measurement",
-      entityId: created!.id,
-      jobId: job.id,
-      after: { kind: input.kind, valueSi: input.valueSi, method: input.method, verdict, specSource },
-    });
-    return created!.id;
+  const specs = await effectiveSpecs(db, job.id);
+  const seatIds = [...new Set(inputs.map((i) => i.seatId).filter((id): id is string => id !== null))];
+  const seatRows = seatIds.length ? await db.select().from(seats).where(and(inArray(seats.id, seatIds), eq(seats.headId, head.id))) : [];
+  const planned = inputs.map((input) => {
+    const info = MEASUREMENT_KINDS[input.kind];
+    let seatKind: "intake" | "exhaust" | null = null;
+    if (info.scope === "seat") {
+      if (!input.seatId) throw new BadRequestError("Choose the seat this was measured on.", { seatId: ["Choose a seat."] });
+      const seat = seatRows.find((s) => s.id === input.seatId);
+      if (!seat) throw new BadRequestError("That seat is not on this head.", { seatId: ["No such seat."] });
+      assertSeatOpen(seat);
+      seatKind = seat.kind;
+    }
+    const key = specKeyFor(input.kind, seatKind);
+    const library = !input.spec && key ? (specs.get(key) ?? null) : null;
+    const spec = input.spec ?? (library ? { min: library.min, max: library.max } : null);
+    const specSource: SavedMeasurement["specSource"] = input.spec ? "entered" : library ? library.source : null;
+    const verdict: RangeVerdict | null =
+      spec && (spec.min !== null || spec.max !== null) ? judgeRange(input.valueSi, { min: spec.min ?? undefined, max: spec.max ?? undefined }) : null;
+    return { input, info, seatId: info.scope === "seat" ? input.seatId : null, spec, library, specSource, verdict };
   });
-  return { id, verdict, specSource };
+  return db.transaction(async (tx) => {
+    await holdOpenJob(tx, job.id, signedOffSheets);
+    // The seats are read again under the hold and locked, so two readings of one seat's figure
+    // at once replace each other rather than both insert.
+    if (seatIds.length) {
+      await openSeatsNow(tx, seatIds);
+      await tx.select({ id: seats.id }).from(seats).where(inArray(seats.id, seatIds)).for("no key update");
+    }
+    const out: SavedMeasurement[] = [];
+    for (const p of planned) {
+      const [before] = await tx
+        .select()
+        .from(measurements)
+        .where(and(eq(measurements.headId, head.id), eq(measurements.kind, p.input.kind), p.seatId ? eq(measurements.seatId, p.seatId) : isNull(measurements.seatId)))
+        .orderBy(desc(measurements.updatedAt))
+        .limit(1)
+        .for("update");
+      const values = {
+        headId: head.id,
+        kind: p.input.kind,
+        seatId: p.seatId,
+        value: p.input.valueSi,
+        enteredUnit: p.input.enteredUnit,
+        method: p.input.method,
+        specMin: p.spec?.min ?? null,
+        specMax: p.spec?.max ?? null,
+        serviceLimit: p.library?.limit ?? null,
+        specSource: p.specSource,
+        note: p.input.note,
+        recordedById: actor.id,
+        updatedAt: new Date(),
+      };
+      // The same figure typed again (same value, unit and method) changes nothing and is not audited again.
+      if (before && before.value === p.input.valueSi && before.enteredUnit === p.input.enteredUnit && before.method === p.input.method && !p.input.spec) {
+        out.push({ ...savedView(before), specSource: before.specSource });
+        continue;
+      }
+      const [stored] = before
+        ? await tx.update(measurements).set(values).where(eq(measurements.id, before.id)).returning()
+        : await tx.insert(measurements).values(values).returning();
+      await recordAudit(tx, {
+        actorId: actor.id,
+        action: before ? "measurement.edited" : "measurement.recorded",
+        entityType: "measurement",
+        entityId: stored!.id,
+        jobId: job.id,
+        before: before ? { valueSi: before.value, method: before.method, enteredUnit: before.enteredUnit } : null,
+        after: { kind: p.input.kind, valueSi: p.input.valueSi, method: p.input.method, verdict: p.verdict, specSource: p.specSource },
+      });
+      out.push({
+        id: stored!.id,
+        kind: p.input.kind,
+        seatId: p.seatId,
+        valueSi: stored!.value,
+        enteredUnit: stored!.enteredUnit,
+        method: stored!.method,
+        specMin: stored!.specMin,
+        specMax: stored!.specMax,
+        specSource: p.specSource,
+        verdict: p.verdict,
+        replaced: before ? { valueSi: before.value } : null,
+        recordedAt: stored!.updatedAt.toISOString(),
+      });
+    }
+    const labels = [...new Set(planned.map((p) => p.info.label.toLowerCase()))].join(", ");
+    await backToBenchForWork(tx, actor, job, labels);
+    return out;
+  });
+}
+
+export async function recordMeasurement(db: Db, actor: Actor, input: MeasurementInput) {
+  const [saved] = await recordMeasurements(db, actor, input.jobId, [input]);
+  return saved!;
+}
+
+/** The specification in force for one figure, as the grid shows it beside the field. */
+export interface SpecInForce {
+  min: number | null;
+  max: number | null;
+  source: "library" | "job_override";
+}
+
+export interface MeasurementGrid {
+  closed: boolean;
+  /** The per-seat figures, in the order of the grid's columns. */
+  kinds: Array<Exclude<MeasurementKind, "journal_clearance" | "deck_flatness">>;
+  seats: Array<{
+    id: string;
+    code: string;
+    kind: "intake" | "exhaust";
+    approved: boolean;
+    /** The specification in force per figure for this seat's kind; absent when none is on file. */
+    specs: Partial<Record<string, SpecInForce>>;
+    readings: Partial<Record<string, SavedMeasurement>>;
+  }>;
+}
+
+export const GRID_KINDS = ["seat_contact_width", "valve_stem_diameter", "stem_guide_clearance", "installed_spring_height", "spring_load"] as const;
+
+/** The seat × measurement grid: every seat of the head with its readings and the specification in force. */
+export async function getMeasurementGrid(db: Db, shopId: string, jobId: string): Promise<MeasurementGrid> {
+  const { head, job } = await headOfJob(db, shopId, jobId);
+  const specs = await effectiveSpecs(db, job.id);
+  const ss = await db.select().from(seats).where(eq(seats.headId, head.id)).orderBy(asc(seats.cylinder), asc(seats.kind), asc(seats.position));
+  const ms = await db
+    .select()
+    .from(measurements)
+    .where(and(eq(measurements.headId, head.id), inArray(measurements.kind, [...GRID_KINDS])))
+    .orderBy(asc(measurements.updatedAt));
+  return {
+    closed: isClosed(job.status),
+    kinds: [...GRID_KINDS],
+    seats: ss.map((seat) => {
+      const seatSpecs: Partial<Record<string, SpecInForce>> = {};
+      for (const kind of GRID_KINDS) {
+        const s = specs.get(specKeyFor(kind, seat.kind)!);
+        if (s && (s.min !== null || s.max !== null)) seatSpecs[kind] = { min: s.min, max: s.max, source: s.source };
+      }
+      const readings: Partial<Record<string, SavedMeasurement>> = {};
+      // Older duplicate rows (from before a second reading replaced the first) give way to the latest.
+      for (const m of ms.filter((m) => m.seatId === seat.id)) readings[m.kind] = savedView(m);
+      return { id: seat.id, code: seatCode(seat), kind: seat.kind, approved: seat.state === "approved", specs: seatSpecs, readings };
+    }),
+  };
+}
+
+function savedView(m: typeof measurements.$inferSelect): SavedMeasurement {
+  const verdict = m.specMin !== null || m.specMax !== null ? judgeRange(m.value, { min: m.specMin ?? undefined, max: m.specMax ?? undefined }) : null;
+  return {
+    id: m.id,
+    kind: m.kind as SavedMeasurement["kind"],
+    seatId: m.seatId,
+    valueSi: m.value,
+    enteredUnit: m.enteredUnit,
+    method: m.method,
+    specMin: m.specMin,
+    specMax: m.specMax,
+    specSource: m.specSource,
+    verdict,
+    replaced: null,
+    recordedAt: m.updatedAt.toISOString(),
+  };
 }
 
 export interface MeasurementRow {
@@ -586,6 +735,8 @@ export interface MeasurementRow {
   kind: MeasurementKind;
   label: string;
   where: string;
+  /** Whether "where" is a seat code (shown in the monospace font). */
+  whereIsSeat: boolean;
   valueSi: number;
   enteredUnit: string;
   method: string | null;
@@ -614,9 +765,11 @@ export async function listMeasurements(db: Db, shopId: string, jobId: string): P
     const spec = { min: m.specMin ?? undefined, max: m.specMax ?? undefined };
     const verdict =
       m.kind === "journal_clearance"
-        ? m.specMin !== null && m.specMax !== null
-          ? judgeClearance(m.value, { minMm: m.specMin, maxMm: m.specMax, serviceLimitMm: m.serviceLimit })
-          : null
+        ? m.offScale
+          ? "off_scale"
+          : m.specMin !== null && m.specMax !== null
+            ? judgeClearance(m.value, { minMm: m.specMin, maxMm: m.specMax, serviceLimitMm: m.serviceLimit })
+            : null
         : m.specMin !== null || m.specMax !== null
           ? judgeRange(m.value, spec)
           : null;
@@ -625,6 +778,7 @@ export async function listMeasurements(db: Db, shopId: string, jobId: string): P
       kind,
       label: MEASUREMENT_KINDS[kind].label,
       where: seat ? seatCode(seat) : journal && camshaft ? `${camshaft.label}, journal ${journal.position}` : "Head",
+      whereIsSeat: Boolean(seat),
       valueSi: m.value,
       enteredUnit: m.enteredUnit,
       method: m.method,
@@ -633,7 +787,7 @@ export async function listMeasurements(db: Db, shopId: string, jobId: string): P
       serviceLimit: m.serviceLimit,
       specSource: m.specSource,
       verdict,
-      recordedAt: m.createdAt.toISOString(),
+      recordedAt: m.updatedAt.toISOString(),
     } satisfies MeasurementRow;
   });
 }

@@ -40,7 +40,8 @@ export async function unfinishedWork(db: Reader, jobId: string): Promise<Unfinis
         await db
           .select({ journalId: measurements.journalId })
           .from(measurements)
-          .where(and(eq(measurements.headId, head.id), eq(measurements.kind, "journal_clearance")))
+          // A strip read off its scale is no clearance: that journal is still to be measured.
+          .where(and(eq(measurements.headId, head.id), eq(measurements.kind, "journal_clearance"), eq(measurements.offScale, false)))
       ).map((m) => m.journalId),
     );
     const torque = await db.select().from(torqueSheets).where(eq(torqueSheets.headId, head.id));

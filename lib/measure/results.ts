@@ -100,6 +100,9 @@ export const MEASUREMENT_KINDS: Readonly<Record<MeasurementKind, MeasurementKind
   },
 };
 
+/** The measurements of the head as a whole (not per seat or journal). */
+export const HEAD_KINDS = MEASUREMENT_KIND_IDS.filter((k) => MEASUREMENT_KINDS[k].scope === "head");
+
 export const STEM_GUIDE_METHODS = ["direct", "rocking"] as const;
 export type StemGuideMethod = (typeof STEM_GUIDE_METHODS)[number];
 

@@ -56,31 +56,39 @@ function numberFromInput(v: unknown): unknown {
 const blankToUndefined = (v: unknown) =>
   v === null || (typeof v === "string" && v.trim() === "") ? undefined : v;
 
-const numberError = (what: string) => (iss: { input?: unknown }) =>
-  iss.input === undefined ? `Enter ${what}.` : "Enter a number, like 0.051.";
+/**
+ * Each field says what it wants in its own terms: the example is a figure of that field's kind
+ * (a clearance, a diameter, a count), never another field's.
+ */
+const numberError = (what: string, example?: string, as = "a number") => (iss: { input?: unknown }) =>
+  iss.input === undefined
+    ? `Enter ${what}.`
+    : example
+      ? `Enter ${what} as ${as}, like ${example}.`
+      : `Enter ${what} as a plain number: digits with one decimal point or comma.`;
 
 /** A measured value: a number, zero or more. */
-const measuredNumber = (what: string) =>
+const measuredNumber = (what: string, example?: string) =>
   z.preprocess(
     numberFromInput,
-    z.number({ error: numberError(what) }).min(0, "A measurement cannot be negative."),
+    z.number({ error: numberError(what, example) }).min(0, "A measurement cannot be negative."),
   );
 
-const optionalMeasuredNumber = (what: string) =>
+const optionalMeasuredNumber = (what: string, example?: string) =>
   z.preprocess(
     numberFromInput,
     z
-      .number({ error: numberError(what) })
+      .number({ error: numberError(what, example) })
       .min(0, "A measurement cannot be negative.")
       .optional(),
   );
 
-const wholeNumber = (what: string, min: number, max: number, range: string) =>
+const wholeNumber = (what: string, min: number, max: number, range: string, example: string) =>
   z.preprocess(
     numberFromInput,
     z
-      .number({ error: numberError(what) })
-      .int("Enter a whole number.")
+      .number({ error: numberError(what, example, "a whole number") })
+      .int(`Enter ${what} as a whole number, like ${example}.`)
       .min(min, range)
       .max(max, range),
   );
@@ -122,15 +130,15 @@ const stripReadingSchema = z.object({
   journalId: uuidField("the journal"),
   method: z.literal("strip"),
   stripId: stripIdSchema,
-  value: measuredNumber("the reading"),
+  value: measuredNumber("the strip reading", "0.051"),
   unit: lengthUnitSchema,
 });
 
 const diametersReadingSchema = z.object({
   journalId: uuidField("the journal"),
   method: z.literal("diameters"),
-  boreValue: measuredNumber("the bore diameter"),
-  journalValue: measuredNumber("the journal diameter"),
+  boreValue: measuredNumber("the bore diameter", "26.000"),
+  journalValue: measuredNumber("the journal diameter", "25.949"),
   unit: lengthUnitSchema,
 });
 
@@ -202,9 +210,9 @@ export function clearanceMmOf(reading: JournalClearanceReading): number {
 
 export const clearanceSpecSchema = z
   .object({
-    min: measuredNumber("the minimum"),
-    max: measuredNumber("the maximum"),
-    serviceLimit: optionalMeasuredNumber("the service limit"),
+    min: measuredNumber("the minimum clearance", "0.040"),
+    max: measuredNumber("the maximum clearance", "0.080"),
+    serviceLimit: optionalMeasuredNumber("the service limit", "0.120"),
     unit: lengthUnitSchema,
   })
   .superRefine(
@@ -258,8 +266,8 @@ export const measurementSchema = z
     unit: measurementUnitSchema,
     spec: z
       .object({
-        min: optionalMeasuredNumber("the minimum"),
-        max: optionalMeasuredNumber("the maximum"),
+        min: optionalMeasuredNumber("the specification's minimum"),
+        max: optionalMeasuredNumber("the specification's maximum"),
       })
       // A form sends both ends blank for "no specification": that is no spec, not an empty one.
       .transform((s) => (s.min === undefined && s.max === undefined ? undefined : s))
@@ -377,6 +385,7 @@ export const torqueSheetSetupSchema = z
       1,
       MAX_CAPS,
       `A camshaft has between 1 and ${MAX_CAPS} caps.`,
+      "5",
     ),
     boltsPerCap: z.preprocess(
       numberFromInput,
@@ -504,7 +513,7 @@ export function stageFractionsOf(setup: TorqueSheetSetup): number[] {
 
 export const tickSchema = z.object({
   sheetId: uuidField("the torque sheet"),
-  stage: wholeNumber("the stage", 1, MAX_STAGES, `Stages run from 1 to ${MAX_STAGES}.`),
+  stage: wholeNumber("the stage", 1, MAX_STAGES, `Stages run from 1 to ${MAX_STAGES}.`, "2"),
   boltId: z.preprocess(
     (v) => (typeof v === "string" ? v.trim().toUpperCase() : v),
     z

@@ -1,7 +1,7 @@
 // Debian's Chromium driven by playwright-core; no browser is ever downloaded. Playwright gives
 // every launch a fresh, temporary profile of its own.
 import fs from "node:fs";
-import { chromium, type Browser, type BrowserContext } from "playwright-core";
+import { chromium, type Browser, type BrowserContext, type Page } from "playwright-core";
 
 export const CHROMIUM_PATH = process.env.CHROMIUM_PATH ?? "/usr/bin/chromium";
 
@@ -35,4 +35,25 @@ export async function signIn(context: BrowserContext, baseURL: string, email: st
   await page.getByLabel("Password").fill(password);
   await page.getByRole("button", { name: "Sign in" }).click();
   return page;
+}
+
+/**
+ * A fresh browser with a demo user signed in at a phone viewport, on the jobs list, and the URL of
+ * one demo job's page (looked up by its number through the API).
+ */
+export async function signedInOnJob(
+  baseURL: string,
+  email: string,
+  password: string,
+  jobNumber: string,
+  contextOptions: Parameters<Browser["newContext"]>[0] = PHONE,
+): Promise<{ browser: Browser; page: Page; jobUrl: string }> {
+  const browser = await launchBrowser();
+  const context = await browser.newContext(contextOptions);
+  const page = await signIn(context, baseURL, email, password);
+  await page.waitForURL(/\/jobs(\?mine=1)?$/);
+  const { jobs } = (await (await page.request.get(`${baseURL}/api/jobs`)).json()) as { jobs: Array<{ id: string; number: string }> };
+  const job = jobs.find((j) => j.number === jobNumber);
+  if (!job) throw new Error(`no demo job ${jobNumber}`);
+  return { browser, page, jobUrl: `${baseURL}/jobs/${job.id}` };
 }

@@ -28,7 +28,7 @@ async function signedIn(email: string): Promise<Page> {
   const context = await browser.newContext(PHONE);
   const u = user(email);
   const page = await signIn(context, baseURL, u.email, u.password);
-  await page.waitForURL(/\/jobs$/);
+  await page.waitForURL(/\/jobs(\?mine=1)?$/);
   return page;
 }
 

@@ -5,7 +5,7 @@
 import { afterAll, beforeAll, describe, expect, inject, it } from "vitest";
 import type { Browser, Page } from "playwright-core";
 import { DEMO_USERS } from "@/db/seed";
-import { PHONE, launchBrowser, signIn } from "./browser";
+import { signedInOnJob } from "./browser";
 
 const baseURL = inject("baseURL");
 let browser: Browser;
@@ -13,13 +13,8 @@ let page: Page;
 let jobUrl: string;
 
 beforeAll(async () => {
-  browser = await launchBrowser();
-  const context = await browser.newContext(PHONE);
   const tech = DEMO_USERS.find((u) => u.email.startsWith("ines"))!;
-  page = await signIn(context, baseURL, tech.email, tech.password);
-  await page.waitForURL(/\/jobs(\?mine=1)?$/);
-  const { jobs } = (await (await page.request.get(`${baseURL}/api/jobs`)).json()) as { jobs: Array<{ id: string; number: string }> };
-  jobUrl = `${baseURL}/jobs/${jobs.find((j) => j.number === "MHW-0141")!.id}`;
+  ({ browser, page, jobUrl } = await signedInOnJob(baseURL, tech.email, tech.password, "MHW-0141"));
 });
 afterAll(async () => {
   await browser?.close();

@@ -67,10 +67,10 @@ describe("journalClearanceReadingSchema", () => {
       value: "A measurement cannot be negative.",
     });
     expect(errors(journalClearanceReadingSchema.safeParse(strip({ value: "abc" })))).toEqual({
-      value: "Enter a number, like 0.051.",
+      value: "Enter the strip reading as a number, like 0.051.",
     });
     expect(errors(journalClearanceReadingSchema.safeParse(strip({ value: "" })))).toEqual({
-      value: "Enter the reading.",
+      value: "Enter the strip reading.",
     });
     for (const value of ["1e-2", "0x10", "0.05 mm", "Infinity", "1,000.5"])
       expect(

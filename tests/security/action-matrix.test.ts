@@ -403,6 +403,13 @@ const CASES: Record<string, Case> = {
         form({ jobId: c.job.jobId, kind: "deck_flatness", value: "0.03", unit: "mm" }),
       );
   },
+  "lib/actions/sheets.ts#saveSeatMeasurements": async (c) => {
+    return () =>
+      action("lib/actions/sheets.ts#saveSeatMeasurements")(
+        prev,
+        form({ jobId: c.job.jobId, seatId: seatOf(c, "1I1"), seat_contact_width: "1.3", "seat_contact_width.unit": "mm" }),
+      );
+  },
   "lib/actions/sheets.ts#saveTorqueSetup": async (c) => {
     const camshaft = c.job.camshafts[0]!;
     return () =>

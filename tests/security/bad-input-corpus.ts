@@ -548,6 +548,9 @@ const measurement = (f: Fixtures, o: Record<string, string>) =>
     form({ jobId: f.own.jobId, kind: "seat_contact_width", seatId: f.own.seats.get("3I1")!, value: "1.3", unit: "mm", specMin: "", specMax: "", ...o }),
   );
 
+const seatRow = (f: Fixtures, o: Record<string, string>) =>
+  sheetActions.saveSeatMeasurements(initialActionState, form({ jobId: f.own.jobId, seatId: f.own.seats.get("3I1")!, seat_contact_width: "1.3", ...o }));
+
 const valveIdentity = (f: Fixtures, o: Record<string, string>) =>
   sheetActions.saveValveIdentity(initialActionState, form({ jobId: f.own.jobId, valveId: f.own.valveIn.get("3I1")!, tag: "3I1", partNumber: "", serial: "", ...o }));
 
@@ -665,6 +668,10 @@ export const actionCases: ActionCase[] = [
   { group: "sheet actions", name: "undoing a tick on another shop's sheet", as: RHEA, run: (f) => sheetActions.undoLastTick(initialActionState, form({ jobId: f.other.jobId, sheetId: f.other.sheetId, stage: "1", boltId: "C3-L", reason: "Wrong bolt." })) },
   { group: "sheet actions", name: "a negative tick stage", as: INES, field: "stage", run: (f) => sheetActions.saveTick(initialActionState, form({ jobId: f.own.jobId, sheetId: f.other.sheetId, stage: "-1", boltId: "C3-L" })) },
   { group: "sheet actions", name: "ticking another shop's sheet", as: RHEA, run: (f) => sheetActions.saveTick(initialActionState, form({ jobId: f.other.jobId, sheetId: f.other.sheetId, stage: "1", boltId: "C3-L" })) },
+  { group: "sheet actions", name: "a grid row with a width of \"1,2,3\"", as: INES, field: "seat_contact_width", run: (f) => seatRow(f, { seat_contact_width: "1,2,3" }) },
+  { group: "sheet actions", name: "a grid row with a spring load in mm", as: INES, field: "spring_load", run: (f) => seatRow(f, { spring_load: "200", "spring_load.unit": "mm" }) },
+  { group: "sheet actions", name: "a grid row on another shop's seat", as: RHEA, run: (f) => seatRow(f, { seatId: f.other.seats.get("1I1")! }) },
+  { group: "sheet actions", name: "a grid row with a stem-guide clearance and no method", as: INES, field: "stemGuideMethod", run: (f) => seatRow(f, { stem_guide_clearance: "0.04" }) },
   { group: "sheet actions", name: "an unknown measurement kind", as: INES, field: "kind", run: (f) => measurement(f, { kind: "vibes" }) },
   { group: "sheet actions", name: 'a measurement of "1e309"', as: INES, field: "value", run: (f) => measurement(f, { value: "1e309" }) },
   { group: "sheet actions", name: "a measurement on another shop's seat", as: RHEA, run: (f) => measurement(f, { seatId: f.other.seats.get("1I1")! }) },

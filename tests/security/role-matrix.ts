@@ -504,6 +504,15 @@ export const ACTION_MATRIX: Record<string, CrossShopRow<ActionOutcome, CrossShop
     otherShop: "not-found",
     why: "Recording a measurement is work on the job.",
   },
+  "lib/actions/sheets.ts#saveSeatMeasurements": {
+    anonymous: "unauthorized",
+    technicianOwnJob: "ok",
+    technicianOtherJob: "forbidden",
+    supervisor: "ok",
+    admin: "forbidden",
+    otherShop: "not-found",
+    why: "Recording a seat's measurements is work on the job.",
+  },
   "lib/actions/sheets.ts#saveTorqueSetup": {
     anonymous: "unauthorized",
     technicianOwnJob: "ok",

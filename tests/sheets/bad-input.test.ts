@@ -50,8 +50,8 @@ describe("clearance reading", () => {
   beforeEach(() => signInAs("ines@millrace.example"));
 
   it("refuses a value that is not a number, blank, negative or absurd", async () => {
-    expect((await refused(() => strip({ value: "abc" }))).fieldErrors).toEqual({ value: ["Enter a number, like 0.051."] });
-    expect((await refused(() => strip({ value: "" }))).fieldErrors).toEqual({ value: ["Enter the reading."] });
+    expect((await refused(() => strip({ value: "abc" }))).fieldErrors).toEqual({ value: ["Enter the strip reading as a number, like 0.051."] });
+    expect((await refused(() => strip({ value: "" }))).fieldErrors).toEqual({ value: ["Enter the strip reading."] });
     expect((await refused(() => strip({ value: "-0.02" }))).fieldErrors).toEqual({ value: ["A measurement cannot be negative."] });
     // 5 mm is far beyond any camshaft journal oil clearance (plausibility bound 0–0.5 mm, lib/measure/results.ts).
     const absurd = await refused(() => strip({ value: "5" }));

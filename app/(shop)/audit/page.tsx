@@ -1,5 +1,7 @@
 import { forbidden } from "next/navigation";
 import type { Metadata } from "next";
+import { getShopTimeZone } from "@/db/queries/shops";
+import { formatWhen } from "@/lib/dates";
 import Link from "next/link";
 import { getDb } from "@/db/client";
 import { currentActor } from "@/lib/auth/guard";
@@ -30,7 +32,6 @@ function pageHref(filter: AuditFilter, page: number): string {
   return s ? `/audit?${s}` : "/audit";
 }
 
-const fmt = new Intl.DateTimeFormat("en-GB", { dateStyle: "medium", timeStyle: "medium", timeZone: "UTC" });
 
 export default async function AuditPage({ searchParams }: PageProps<"/audit">) {
   const actor = await currentActor();
@@ -47,6 +48,7 @@ export default async function AuditPage({ searchParams }: PageProps<"/audit">) {
   const filter: AuditFilter = parsed.success ? parsed.data : { page: 1 };
   const problems = parsed.success ? [] : Object.values(fieldErrorsOf(parsed.error)).flat();
   const db = await getDb();
+  const timeZone = await getShopTimeZone(db, actor.shopId);
   const [options, result] = await Promise.all([auditFilterOptions(db, actor.shopId), listAuditEntries(db, actor.shopId, filter)]);
   const filtered = Boolean(filter.job || filter.person || filter.from || filter.to);
 
@@ -115,7 +117,7 @@ export default async function AuditPage({ searchParams }: PageProps<"/audit">) {
       ) : (
         <ol className="flex flex-col gap-2" data-testid="audit-list">
           {result.entries.map((e) => (
-            <AuditItem key={e.id} entry={e} />
+            <AuditItem key={e.id} entry={e} timeZone={timeZone} />
           ))}
         </ol>
       )}
@@ -141,7 +143,7 @@ export default async function AuditPage({ searchParams }: PageProps<"/audit">) {
   );
 }
 
-function AuditItem({ entry }: { entry: AuditRow }) {
+function AuditItem({ entry, timeZone }: { entry: AuditRow; timeZone: string }) {
   return (
     <li className="rounded-xl border border-stone-300 bg-white p-3">
       <div className="flex flex-wrap items-baseline justify-between gap-2">
@@ -153,7 +155,7 @@ function AuditItem({ entry }: { entry: AuditRow }) {
           </span>
         </span>
         <time dateTime={entry.at} className="text-sm text-stone-600">
-          {fmt.format(new Date(entry.at))}
+          {formatWhen(entry.at, timeZone, { seconds: true })}
         </time>
       </div>
       <p className="text-sm">{entry.actorName ?? "The system"}</p>

@@ -1,5 +1,7 @@
 import { forbidden } from "next/navigation";
 import type { Metadata } from "next";
+import { getShopTimeZone } from "@/db/queries/shops";
+import { formatWhen } from "@/lib/dates";
 import { getDb } from "@/db/client";
 import type { MailOutboxRow } from "@/db/schema";
 import { currentActor } from "@/lib/auth/guard";
@@ -16,12 +18,13 @@ const STATUS: Record<MailOutboxRow["status"], { label: string; className: string
   failed: { label: "Failed", className: "bg-rose-100 text-rose-900" },
 };
 
-const when = new Intl.DateTimeFormat("en-GB", { dateStyle: "medium", timeStyle: "short" });
 
 export default async function OutboxPage() {
   const actor = await currentActor();
   if (!actor || !can(actor.role, "users:manage")) forbidden();
-  const mail = await listShopMail(await getDb(), actor.shopId);
+  const db = await getDb();
+  const mail = await listShopMail(db, actor.shopId);
+  const timeZone = await getShopTimeZone(db, actor.shopId);
   return (
     <div className="flex flex-col gap-6">
       <div>
@@ -56,9 +59,9 @@ export default async function OutboxPage() {
                 return (
                   <tr key={m.id} className="border-b border-stone-200 align-top last:border-0">
                     <td className="whitespace-nowrap p-3">
-                      {when.format(m.sentAt ?? m.createdAt)}
+                      {formatWhen(m.sentAt ?? m.createdAt, timeZone)}
                       {m.status === "queued" && m.attempts > 0 ? (
-                        <div className="text-stone-600">next try {when.format(m.nextAttemptAt)}</div>
+                        <div className="text-stone-600">next try {formatWhen(m.nextAttemptAt, timeZone)}</div>
                       ) : null}
                     </td>
                     <td className="p-3">{m.kind}</td>

@@ -1,4 +1,5 @@
 import type { Metadata } from "next";
+import { formatDay } from "@/lib/dates";
 import Link from "next/link";
 import { notFound } from "next/navigation";
 import { z } from "zod";
@@ -82,7 +83,7 @@ export default async function JobPage({ params }: PageProps<"/jobs/[jobId]">) {
         <p className="text-stone-700">{job.engineDescription}</p>
         <dl className="mt-2 grid grid-cols-2 gap-x-6 gap-y-1 text-sm sm:grid-cols-4">
           <Fact label="Technician">{job.technician?.name ?? "Unassigned"}</Fact>
-          <Fact label="Promised" figure>{job.promisedOn ?? "—"}</Fact>
+          <Fact label="Promised" figure>{formatDay(job.promisedOn)}</Fact>
           <Fact label="Contact">{job.customer.phone ?? job.customer.email ?? "—"}</Fact>
         </dl>
         {job.notes ? <p className="mt-2 rounded-lg bg-amber-50 p-3 text-sm">{job.notes}</p> : null}

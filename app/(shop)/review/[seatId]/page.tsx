@@ -1,4 +1,6 @@
 import type { Metadata } from "next";
+import { getShopTimeZone } from "@/db/queries/shops";
+import { formatWhen } from "@/lib/dates";
 import Link from "next/link";
 import { notFound } from "next/navigation";
 import { z } from "zod";
@@ -18,12 +20,11 @@ const STAGE_NAME = { coarse: "Coarse", fine: "Fine" } as const;
 
 type Listed = StageRecord["sessions"][number] & { stage: StageRecord["stage"] };
 
-function when(iso: string): string {
-  return new Date(iso).toLocaleString("en-GB", { dateStyle: "medium", timeStyle: "short", timeZone: "UTC" }) + " UTC";
-}
+
 
 export default async function ReviewPage({ params, searchParams }: PageProps<"/review/[seatId]">) {
   const actor = await requireActor("jobs:read");
+  const timeZone = await getShopTimeZone(await getDb(), actor.shopId);
   const { seatId } = await params;
   const { session: wanted } = await searchParams;
   if (!z.string().uuid().safeParse(seatId).success) notFound();
@@ -82,7 +83,7 @@ export default async function ReviewPage({ params, searchParams }: PageProps<"/r
                         {STAGE_NAME[s.stage]} · {s.technicianName}
                       </span>
                       <span className={current ? "text-stone-200" : "text-stone-500"}>
-                        {when(s.startedAt)}
+                        {formatWhen(s.startedAt, timeZone)}
                         {s.hasRecording ? "" : " · not recorded"}
                       </span>
                     </Link>

@@ -49,7 +49,7 @@ export default async function ClearancePage({ params }: PageProps<"/jobs/[jobId]
                 <h2 className="mb-2 text-lg font-semibold">{c.label}</h2>
                 <ul className="flex flex-col gap-2">
                   {c.journals.map((j) => (
-                    <ClearanceRow key={j.id} jobId={jobId} camshaftLabel={c.label} journal={j} closed={sheet.closed} />
+                    <ClearanceRow key={j.id} jobId={jobId} camshaftLabel={c.label} journal={j} closed={sheet.closed} spec={sheet.spec} />
                   ))}
                 </ul>
               </section>

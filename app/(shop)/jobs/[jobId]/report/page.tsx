@@ -1,4 +1,6 @@
 import type { Metadata } from "next";
+import { getShopTimeZone } from "@/db/queries/shops";
+import { formatWhen } from "@/lib/dates";
 import Link from "next/link";
 import { notFound } from "next/navigation";
 import { z } from "zod";
@@ -54,8 +56,6 @@ function verdictLine(v: SeatVerdict | undefined): string {
   return v.strokesRemaining !== null ? `Fading (~${v.strokesRemaining} to go)` : "Fading";
 }
 
-const stamp = (iso: string) =>
-  new Date(iso).toLocaleString("en-GB", { dateStyle: "medium", timeStyle: "short", timeZone: "UTC" }) + " UTC";
 const mm = (v: number | null) => (v === null ? "…" : v.toFixed(3));
 
 // Paper layout: no shell, no buttons, sections kept whole where they fit.
@@ -76,6 +76,7 @@ export default async function HeadReportPage({ params }: PageProps<"/jobs/[jobId
   const { jobId } = await params;
   if (!z.string().uuid().safeParse(jobId).success) notFound();
   const db = await getDb();
+  const timeZone = await getShopTimeZone(db, actor.shopId);
   const job = await getJob(db, actor.shopId, jobId);
   if (!job) notFound();
   const [clearance, torque, measurements, reviews] = await Promise.all([
@@ -117,7 +118,7 @@ export default async function HeadReportPage({ params }: PageProps<"/jobs/[jobId
           <Fact label="Status">{JOB_STATUS_LABELS[job.status]}</Fact>
           <Fact label="Technician">{job.technician?.name ?? "Unassigned"}</Fact>
           <Fact label="Promised" figure>{job.promisedOn ?? "—"}</Fact>
-          <Fact label="Printed" figure>{stamp(new Date().toISOString())}</Fact>
+          <Fact label="Printed" figure>{formatWhen(new Date(), timeZone)}</Fact>
         </dl>
         {job.notes ? <p className="mt-2 text-sm">{job.notes}</p> : null}
       </header>
@@ -234,10 +235,10 @@ export default async function HeadReportPage({ params }: PageProps<"/jobs/[jobId
                       <th scope="row" className="px-3 py-2 font-normal">
                         {c.label}, journal {j.position}
                       </th>
-                      <td className="figure px-3 py-2">{j.reading ? `${j.reading.clearanceMm.toFixed(3)} mm` : "—"}</td>
+                      <td className="figure px-3 py-2">{j.reading && !j.reading.offScale ? `${j.reading.clearanceMm.toFixed(3)} mm` : "—"}</td>
                       <td className="px-3 py-2">{j.reading?.method ?? "—"}</td>
                       <td className="px-3 py-2">
-                        {j.reading ? (j.reading.verdict ? CLEARANCE_VERDICT_LABELS[j.reading.verdict] : "No spec") : "Not measured"}
+                        {j.reading ? (j.reading.offScale ? "Off scale: not a clearance, measure again" : j.reading.verdict ? CLEARANCE_VERDICT_LABELS[j.reading.verdict] : "No spec") : "Not measured"}
                       </td>
                     </tr>
                   )),
@@ -365,7 +366,7 @@ export default async function HeadReportPage({ params }: PageProps<"/jobs/[jobId
                               <>
                                 <span className={`font-semibold ${r.result === "pass" ? "text-emerald-800" : "text-rose-800"}`}>{r.result === "pass" ? "Pass" : "Fail"}</span>
                                 <span className="block text-xs text-stone-600">
-                                  {r.recordedBy} · <span className="figure">{stamp(r.recordedAt)}</span>
+                                  {r.recordedBy} · <span className="figure">{formatWhen(r.recordedAt, timeZone)}</span>
                                 </span>
                                 {k === "contact_ring" && c ? (
                                   <span className="block text-xs">
@@ -427,7 +428,7 @@ export default async function HeadReportPage({ params }: PageProps<"/jobs/[jobId
               <li key={r.id} className="rounded-xl border border-stone-300 bg-white p-3 text-sm print:rounded-none print:border-0 print:border-b print:px-0">
                 <p>
                   <span className="font-semibold">{DECISION_TEXT[r.decision]}</span> · {r.seatCode ? `seat ${r.seatCode}` : "whole head"} ·{" "}
-                  {r.reviewerName} · <span className="figure">{stamp(r.createdAt)}</span>
+                  {r.reviewerName} · <span className="figure">{formatWhen(r.createdAt, timeZone)}</span>
                 </p>
                 <p className="mt-1 text-stone-700">{r.comment}</p>
                 {r.checksReason ? (
