@@ -6,10 +6,10 @@ import { attachRecording, getSessionForUpload } from "@/lib/bench/service";
 import { BadRequestError, PayloadTooLargeError, UnsupportedMediaTypeError } from "@/lib/errors";
 import { blobStore } from "./index";
 import { NOTHING_DECLARED, storeWhole, type DeclaredBody } from "./intact";
+import { MAX_RECORDING_BYTES } from "./limits";
 import { isKeptRecording, NOT_A_RECORDING, peekStream, sniff, type Sniffed } from "./sniff";
 
-/** 60 minutes of Opus at 64 kbit/s is about 29 MB; anything much larger is not a bench recording. */
-export const MAX_RECORDING_BYTES = 64 * 1024 * 1024;
+export { MAX_RECORDING_BYTES };
 
 export const tooLargeRecording = () => new PayloadTooLargeError(`Recordings are limited to ${MAX_RECORDING_BYTES / 1048576} MB.`);
 
@@ -23,7 +23,7 @@ export async function sniffRecording(
   const peeked = await peekStream(body);
   if (!peeked) return null;
   const sniffed = sniff(peeked.head);
-  if (!isKeptRecording(sniffed)) {
+  if (!sniffed || !isKeptRecording(sniffed)) {
     await peeked.stream.cancel().catch(() => {});
     throw new UnsupportedMediaTypeError(NOT_A_RECORDING);
   }

@@ -168,7 +168,7 @@ export async function peekStream(
  * (Firefox) or Vorbis (some recorder apps), MP3 and WAV. Plain Matroska and Ogg FLAC are refused:
  * no phone records them and the players are not tested with them.
  */
-export function isKeptRecording(s: Sniffed | null): s is Sniffed {
+export function isKeptRecording(s: Sniffed | null): boolean {
   if (!s) return false;
   if (s.kind === "ogg") return s.codec === "opus" || s.codec === "vorbis";
   return s.kind === "webm" || s.kind === "wav" || s.kind === "mp4" || s.kind === "mp3";
