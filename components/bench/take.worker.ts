@@ -8,6 +8,7 @@ export type ToTakeWorker = {
   earlier: Array<{ contrastDb: number; flags: string[]; startS: number }>;
 };
 export type FromTakeWorker =
+  | { type: "ready" }
   | { type: "progress"; done: number }
   | { type: "done"; result: TakeAnalysis }
   | { type: "error"; message: string };
@@ -25,3 +26,7 @@ self.onmessage = (e: MessageEvent<ToTakeWorker>) => {
     post({ type: "error", message: err instanceof Error ? err.message : String(err) });
   }
 };
+
+// The page sends the recording only once this module runs: a message posted while the worker's
+// chunks were still loading would find no handler.
+post({ type: "ready" });

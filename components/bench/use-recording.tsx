@@ -32,6 +32,9 @@ const VERDICT_WORDS: Record<SeatVerdict["state"], string> = {
   "not-settling": "not settling",
 };
 
+/** A worker that has not said it is up after this long will not. */
+const WORKER_START_MS = 20_000;
+
 function analyse(
   samples: Float32Array,
   sampleRate: number,
@@ -40,20 +43,29 @@ function analyse(
 ): Promise<TakeAnalysis> {
   return new Promise((resolve, reject) => {
     const worker = new Worker(new URL("./take.worker.ts", import.meta.url), { type: "module" });
+    const fail = (message: string) => {
+      clearTimeout(starting);
+      worker.terminate();
+      reject(new Error(message));
+    };
+    const starting = setTimeout(
+      () => fail("the analysis did not start; reload the page and try again"),
+      WORKER_START_MS,
+    );
     worker.onmessage = (e: MessageEvent<FromTakeWorker>) => {
       const m = e.data;
-      if (m.type === "progress") onProgress(m.done);
-      else {
+      if (m.type === "ready") {
+        clearTimeout(starting);
+        worker.postMessage({ samples, sampleRate, earlier } satisfies ToTakeWorker, [
+          samples.buffer,
+        ]);
+      } else if (m.type === "progress") onProgress(m.done);
+      else if (m.type === "done") {
         worker.terminate();
-        if (m.type === "done") resolve(m.result);
-        else reject(new Error(m.message));
-      }
+        resolve(m.result);
+      } else fail(m.message);
     };
-    worker.onerror = (e) => {
-      worker.terminate();
-      reject(new Error(e.message || "the analysis stopped"));
-    };
-    worker.postMessage({ samples, sampleRate, earlier } satisfies ToTakeWorker, [samples.buffer]);
+    worker.onerror = (e) => fail(e.message || "the analysis stopped");
   });
 }
 
