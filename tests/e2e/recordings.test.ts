@@ -31,7 +31,14 @@ interface SeatApi {
   stages: Record<
     "coarse" | "fine",
     {
-      strokes: Array<{ clientId: string; startS: number; endS: number; sessionId: string; contrastDb: number; flags: string[] }>;
+      strokes: Array<{
+        clientId: string;
+        startS: number;
+        endS: number;
+        sessionId: string;
+        contrastDb: number;
+        flags: string[];
+      }>;
       sessions: Array<{ id: string; endedAt: string | null; hasRecording: boolean }>;
       verdict: { state: string; judgedStrokes: number; settled?: { atStroke: number } | null };
     }
@@ -44,12 +51,27 @@ beforeAll(() => {
   mic = decayingSession();
 });
 
-async function phone(micFile: FakeMicFile | null, who: string): Promise<{ context: BrowserContext; page: Page }> {
+async function phone(
+  micFile: FakeMicFile | null,
+  who: string,
+): Promise<{ context: BrowserContext; page: Page }> {
   browser = await launchBrowser([
     "--autoplay-policy=no-user-gesture-required",
-    ...(micFile ? ["--use-fake-device-for-media-stream", "--use-fake-ui-for-media-stream", `--use-file-for-fake-audio-capture=${micFile.path}%noloop`] : []),
+    ...(micFile
+      ? [
+          "--use-fake-device-for-media-stream",
+          "--use-fake-ui-for-media-stream",
+          `--use-file-for-fake-audio-capture=${micFile.path}%noloop`,
+        ]
+      : []),
   ]);
-  const context = await browser.newContext({ ...PHONE, permissions: micFile ? ["microphone"] : [] });
+  const context = await browser.newContext({
+    ...PHONE,
+    permissions: micFile ? ["microphone"] : [],
+  });
+  context.on("console", (m) => {
+    if (m.type() === "error") console.log(`[browser] ${m.text()}`);
+  });
   const user = DEMO_USERS.find((u) => u.email.startsWith(who))!;
   const page = await signIn(context, baseURL, user.email, user.password);
   await page.waitForURL((u) => !u.pathname.startsWith("/sign-in"));
@@ -58,9 +80,14 @@ async function phone(micFile: FakeMicFile | null, who: string): Promise<{ contex
 
 /** The seat's bench screen, reached from the job page as a technician does; returns its id. */
 async function openBench(page: Page, seatCode: string, stage?: "coarse" | "fine"): Promise<string> {
-  const { jobs } = (await (await page.request.get(`${baseURL}/api/jobs`)).json()) as { jobs: Array<{ id: string; number: string }> };
+  const { jobs } = (await (await page.request.get(`${baseURL}/api/jobs`)).json()) as {
+    jobs: Array<{ id: string; number: string }>;
+  };
   await page.goto(`${baseURL}/jobs/${jobs.find((j) => j.number === JOB)!.id}`);
-  const href = await page.locator('a[href^="/bench/"]', { hasText: seatCode }).first().getAttribute("href");
+  const href = await page
+    .locator('a[href^="/bench/"]', { hasText: seatCode })
+    .first()
+    .getAttribute("href");
   const seatId = href!.split("/").pop()!.split("?")[0]!;
   await page.goto(`${baseURL}/bench/${seatId}${stage ? `?stage=${stage}` : ""}`);
   await page.getByTestId("start-listening").waitFor();
@@ -74,16 +101,32 @@ async function seatFromServer(page: Page, seatId: string): Promise<SeatApi> {
 }
 
 const allSaved = (page: Page) =>
-  page.waitForFunction(() => document.querySelector("[data-testid=sync-state]")?.textContent?.includes("All strokes saved"), null, { timeout: 60_000 });
+  page.waitForFunction(
+    () =>
+      document
+        .querySelector("[data-testid=sync-state]")
+        ?.textContent?.includes("All strokes saved"),
+    null,
+    { timeout: 60_000 },
+  );
 
 /** Picks `file` with "Use a recording", checks what it found and saves it; returns the strokes it said it found. */
 async function useRecording(page: Page, file: string): Promise<{ found: number; verdict: string }> {
   const panel = page.getByTestId("use-recording");
   await panel.getByTestId("use-recording-file").setInputFiles(file);
-  await panel.getByTestId("use-recording-found").waitFor({ timeout: 60_000 });
+  await panel
+    .getByTestId("use-recording-found")
+    .or(panel.getByTestId("use-recording-error"))
+    .waitFor({ timeout: 60_000 })
+    .catch(async (err: Error) => {
+      throw new Error(`${err.message}\nThe panel said: ${await panel.innerText()}`);
+    });
+  expect(await panel.getByTestId("use-recording-error").count(), await panel.innerText()).toBe(0);
   const found = Number(await panel.getByTestId("use-recording-strokes").innerText());
   const verdict = await panel.getByTestId("use-recording-verdict").innerText();
-  await page.screenshot({ path: path.join(ARTIFACTS, `use-recording-${path.extname(file).slice(1)}.png`) });
+  await page.screenshot({
+    path: path.join(ARTIFACTS, `use-recording-${path.extname(file).slice(1)}.png`),
+  });
   await panel.getByTestId("use-recording-save").tap();
   await panel.getByTestId("use-recording-saved").waitFor({ timeout: 15_000 });
   await allSaved(page);
@@ -93,7 +136,12 @@ async function useRecording(page: Page, file: string): Promise<{ found: number; 
 /** The only session of the stage, once the server has its recording. */
 async function recordedSession(page: Page, seatId: string, stage: "coarse" | "fine" = "coarse") {
   await expect
-    .poll(async () => (await seatFromServer(page, seatId)).stages[stage].sessions.filter((s) => s.hasRecording).length, { timeout: 60_000 })
+    .poll(
+      async () =>
+        (await seatFromServer(page, seatId)).stages[stage].sessions.filter((s) => s.hasRecording)
+          .length,
+      { timeout: 60_000 },
+    )
     .toBe(1);
   return (await seatFromServer(page, seatId)).stages[stage].sessions.find((s) => s.hasRecording)!;
 }
@@ -132,28 +180,48 @@ describe("every phone's recordings", () => {
     await page.getByTestId("recording-upload").getByText("Recording uploaded").waitFor();
 
     const session = await recordedSession(page, seatId);
-    const served = await page.request.get(`${baseURL}/api/sessions/${session.id}/recording`, { headers: { range: "bytes=0-11" } });
+    const served = await page.request.get(`${baseURL}/api/sessions/${session.id}/recording`, {
+      headers: { range: "bytes=0-11" },
+    });
     expect(served.status()).toBe(206);
     expect(served.headers()["content-type"]).toBe("audio/mp4");
-    expect((await served.body()).toString("latin1")).toBe(fs.readFileSync(mp4).subarray(0, 12).toString("latin1"));
-    const strokes = (await seatFromServer(page, seatId)).stages.coarse.strokes.filter((s) => s.sessionId === session.id);
-    expect(strokes).toHaveLength(found);
+    expect((await served.body()).toString("latin1")).toBe(
+      fs.readFileSync(mp4).subarray(0, 12).toString("latin1"),
+    );
+    await expect
+      .poll(
+        async () =>
+          (await seatFromServer(page, seatId)).stages.coarse.strokes.filter(
+            (s) => s.sessionId === session.id,
+          ).length,
+      )
+      .toBe(found);
     await browser!.close();
 
     // The supervisor listens back on a phone.
     const sup = await phone(null, "rhea");
     await sup.page.goto(`${baseURL}/review/${seatId}?session=${session.id}`);
-    await sup.page.waitForFunction(() => document.querySelector('[data-testid="waveform"]')?.getAttribute("data-state") === "ready", undefined, {
-      timeout: 30_000,
-    });
+    await sup.page.waitForFunction(
+      () =>
+        document.querySelector('[data-testid="waveform"]')?.getAttribute("data-state") === "ready",
+      undefined,
+      {
+        timeout: 30_000,
+      },
+    );
     expect(await sup.page.getByTestId("waveform").getAttribute("data-regions")).toBe(String(found));
     const review = sup.page.getByTestId("session-review");
     await sup.page.getByTestId("stroke-table").locator('tbody tr[data-stroke="2"]').tap();
-    await expect.poll(() => review.getAttribute("data-playing"), { timeout: 5_000 }).toBe("stroke-2");
+    await expect
+      .poll(() => review.getAttribute("data-playing"), { timeout: 5_000 })
+      .toBe("stroke-2");
     // The player really moves through the AAC: the waveform's progress passes the stroke's start.
     await expect.poll(() => review.getAttribute("data-playing"), { timeout: 10_000 }).toBe("");
     expect(await sup.page.getByTestId("review-message").count()).toBe(0);
-    await sup.page.screenshot({ path: path.join(ARTIFACTS, "listen-back-mp4-phone.png"), fullPage: true });
+    await sup.page.screenshot({
+      path: path.join(ARTIFACTS, "listen-back-mp4-phone.png"),
+      fullPage: true,
+    });
   });
 
   it("a WAV and an m4a of the same sound give the strokes and verdict of listening live", async () => {
@@ -174,6 +242,17 @@ describe("every phone's recordings", () => {
     const wavUse = await useRecording(page, mic.path);
     const m4aSeat = await openBench(page, "4E1");
     const m4aUse = await useRecording(page, m4a);
+    // Sent from the outbox in the background: read once the server has them all.
+    for (const [seatId, use] of [
+      [wavSeat, wavUse],
+      [m4aSeat, m4aUse],
+    ] as const) {
+      await expect
+        .poll(async () => (await seatFromServer(page, seatId)).stages.coarse.strokes.length, {
+          timeout: 30_000,
+        })
+        .toBe(use.found);
+    }
     const wav = (await seatFromServer(page, wavSeat)).stages.coarse;
     const aac = (await seatFromServer(page, m4aSeat)).stages.coarse;
 
@@ -184,16 +263,36 @@ describe("every phone's recordings", () => {
       expect(stage.strokes, name).toHaveLength(use.found);
       expect(stage.verdict.state, name).toBe(live.verdict.state);
       expect(use.verdict, name).toBe("settled");
-      // Live stops at the settling stroke, and may save the one sounding as it stops.
-      expect(Math.abs(stage.strokes.length - live.strokes.length), name).toBeLessThanOrEqual(1);
-      expect(Math.abs(stage.verdict.settled!.atStroke - live.verdict.settled!.atStroke), name).toBeLessThanOrEqual(1);
+      const counts = `${name}: ${stage.strokes.length} strokes settled at ${stage.verdict.settled?.atStroke}; live ${live.strokes.length} settled at ${live.verdict.settled?.atStroke}; contrasts ${stage.strokes.map((x) => x.contrastDb.toFixed(2)).join(" ")} / live ${live.strokes.map((x) => x.contrastDb.toFixed(2)).join(" ")}`;
+      // Settled at the same stroke, give or take one whose contrast sits at the threshold; AAC
+      // moves the high band's contrasts by up to about 0.8 dB, which can move it by two.
+      const slack = name === "wav" ? 1 : 2;
+      expect(
+        Math.abs(stage.verdict.settled!.atStroke - live.verdict.settled!.atStroke),
+        counts,
+      ).toBeLessThanOrEqual(slack);
+      // Live stops at the settling stroke and may also save the one sounding as it stops.
+      expect(stage.strokes.length - live.strokes.length, counts).toBeLessThanOrEqual(slack);
+      expect(live.strokes.length - stage.strokes.length, counts).toBeLessThanOrEqual(slack + 1);
       const n = Math.min(stage.strokes.length, live.strokes.length);
+      // The live timeline starts when the microphone does, a moment after or before the file's.
+      const shift = stage.strokes[0]!.startS - live.strokes[0]!.startS;
+      expect(Math.abs(shift), name).toBeLessThan(1);
       for (let i = 0; i < n; i++) {
-        // The same strokes, at the same times on the recording's timeline, with contrasts within 1 dB
-        // (the microphone path resamples and buffers the sound; AAC drops some of the highest band).
-        expect(Math.abs(stage.strokes[i]!.startS - live.strokes[i]!.startS), `${name} stroke ${i + 1} start`).toBeLessThan(0.05);
-        expect(Math.abs(stage.strokes[i]!.contrastDb - live.strokes[i]!.contrastDb), `${name} stroke ${i + 1} contrast`).toBeLessThan(1);
-        expect(stage.strokes[i]!.flags, `${name} stroke ${i + 1} flags`).toEqual(live.strokes[i]!.flags);
+        // The same strokes, equally spaced in time (to a few analysis hops: the microphone
+        // delivers blocks late and early), with contrasts within 1 dB (the microphone
+        // path resamples and buffers the sound; AAC drops some of the highest band).
+        expect(
+          Math.abs(stage.strokes[i]!.startS - live.strokes[i]!.startS - shift),
+          `${name} stroke ${i + 1} start`,
+        ).toBeLessThan(0.06);
+        expect(
+          Math.abs(stage.strokes[i]!.contrastDb - live.strokes[i]!.contrastDb),
+          `${name} stroke ${i + 1} contrast`,
+        ).toBeLessThan(1);
+        expect(stage.strokes[i]!.flags, `${name} stroke ${i + 1} flags`).toEqual(
+          live.strokes[i]!.flags,
+        );
       }
     }
     // Each file is kept as its session's recording, under the type its bytes say.
@@ -202,7 +301,9 @@ describe("every phone's recordings", () => {
       [m4aSeat, "audio/mp4"],
     ] as const) {
       const session = await recordedSession(page, seatId);
-      const res = await page.request.get(`${baseURL}/api/sessions/${session.id}/recording`, { headers: { range: "bytes=0-3" } });
+      const res = await page.request.get(`${baseURL}/api/sessions/${session.id}/recording`, {
+        headers: { range: "bytes=0-3" },
+      });
       expect(res.headers()["content-type"]).toBe(type);
     }
   }, 240_000);
@@ -211,13 +312,24 @@ describe("every phone's recordings", () => {
     const { page } = await phone(null, "dov");
     await openBench(page, "4E1", "fine");
     const panel = page.getByTestId("use-recording");
-    const png = Buffer.from("iVBORw0KGgoAAAANSUhEUgAAAAEAAAABCAYAAAAfFcSJAAAADUlEQVR42mNk+M9QDwADhgGAWjR9awAAAABJRU5ErkJggg==", "base64");
-    await panel.getByTestId("use-recording-file").setInputFiles({ name: "memo.m4a", mimeType: "audio/mp4", buffer: png });
-    expect(await panel.getByTestId("use-recording-error").innerText()).toMatch(/“memo\.m4a” is a photo\. Pick the m4a, MP3, Ogg or WAV file/);
+    const png = Buffer.from(
+      "iVBORw0KGgoAAAANSUhEUgAAAAEAAAABCAYAAAAfFcSJAAAADUlEQVR42mNk+M9QDwADhgGAWjR9awAAAABJRU5ErkJggg==",
+      "base64",
+    );
+    await panel
+      .getByTestId("use-recording-file")
+      .setInputFiles({ name: "memo.m4a", mimeType: "audio/mp4", buffer: png });
+    expect(await panel.getByTestId("use-recording-error").innerText()).toMatch(
+      /“memo\.m4a” is a photo\. Pick the m4a, MP3, Ogg or WAV file/,
+    );
     // An M4A cut short after its first kilobytes: the right bytes at the start, nothing playable.
     const cut = fs.readFileSync(encodeWith("m4a", mic.path)).subarray(0, 2000);
-    await panel.getByTestId("use-recording-file").setInputFiles({ name: "cut.m4a", mimeType: "audio/mp4", buffer: cut });
-    await expect.poll(() => panel.getByTestId("use-recording-error").innerText(), { timeout: 20_000 }).toMatch(/could not decode “cut\.m4a”/);
+    await panel
+      .getByTestId("use-recording-file")
+      .setInputFiles({ name: "cut.m4a", mimeType: "audio/mp4", buffer: cut });
+    await expect
+      .poll(() => panel.getByTestId("use-recording-error").innerText(), { timeout: 20_000 })
+      .toMatch(/could not decode “cut\.m4a”/);
     await page.screenshot({ path: path.join(ARTIFACTS, "use-recording-refused.png") });
   });
 
@@ -226,7 +338,11 @@ describe("every phone's recordings", () => {
     const seatId = await openBench(page, "4I1", "fine");
     await page.getByTestId("start-listening").tap();
     const startedAt = Date.now();
-    await page.waitForFunction(() => Number(document.querySelector("[data-testid=stroke-count]")?.textContent) >= 3, null, { timeout: 30_000 });
+    await page.waitForFunction(
+      () => Number(document.querySelector("[data-testid=stroke-count]")?.textContent) >= 3,
+      null,
+      { timeout: 30_000 },
+    );
     const heard = Number(await page.getByTestId("stroke-count").innerText());
     // The recording so far sits in IndexedDB, piece by piece.
     const kept = await page.evaluate(
