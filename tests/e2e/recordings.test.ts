@@ -222,7 +222,7 @@ describe("every phone's recordings", () => {
       path: path.join(ARTIFACTS, "listen-back-mp4-phone.png"),
       fullPage: true,
     });
-  });
+  }, 180_000);
 
   it("a WAV and an m4a of the same sound give the strokes and verdict of listening live", async () => {
     const m4a = encodeWith("m4a", mic.path);
@@ -392,4 +392,54 @@ describe("every phone's recordings", () => {
       )
       .toBe(0);
   });
+
+  it("shows a photo's upload progress on a slow connection", async () => {
+    const { context, page } = await phone(null, "dov");
+    await openBench(page, "4E2");
+    const photos = page.getByTestId("seat-photos");
+    await photos.waitFor();
+    // A 1.5 MB JPEG (SOI and a JFIF marker, then filler) over an upload throttled to 300 kB/s.
+    const jpeg = Buffer.concat([
+      Buffer.from([0xff, 0xd8, 0xff, 0xe0, 0, 16]),
+      Buffer.from("JFIF\0"),
+      Buffer.alloc(1_500_000, 7),
+    ]);
+    const cdp = await context.newCDPSession(page);
+    await cdp.send("Network.enable");
+    await cdp.send("Network.emulateNetworkConditions", {
+      offline: false,
+      latency: 20,
+      downloadThroughput: 1_000_000,
+      uploadThroughput: 300_000,
+    });
+    const seen = page.evaluate(
+      () =>
+        new Promise<number[]>((resolve) => {
+          const percents: number[] = [];
+          const watch = new MutationObserver(() => {
+            const el = document.querySelector("[data-testid=photo-progress]");
+            if (el) percents.push(Number(el.getAttribute("data-percent")));
+            else if (percents.length) {
+              watch.disconnect();
+              resolve(percents);
+            }
+          });
+          watch.observe(document.body, { subtree: true, childList: true, attributes: true });
+        }),
+    );
+    await photos
+      .locator('input[type="file"]')
+      .setInputFiles({ name: "ring.jpg", mimeType: "image/jpeg", buffer: jpeg });
+    const percents = await seen;
+    await photos
+      .getByTestId("photo-message")
+      .getByText("Photo saved.")
+      .waitFor({ timeout: 30_000 });
+    // It moved through the middle, never backwards.
+    expect(
+      percents.some((p) => p > 0 && p < 100),
+      percents.join(" "),
+    ).toBe(true);
+    expect(percents).toEqual([...percents].sort((a, b) => a - b));
+  }, 120_000);
 });
