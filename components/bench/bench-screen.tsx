@@ -15,13 +15,16 @@ import { FadeChart, type ChartStroke } from "./fade-chart";
 import { deviceId } from "./device-id";
 import { keepOfflineCopy } from "./offline-copy";
 import { RecordingUploads } from "./recording-uploads";
-import { UseRecording } from "./use-recording";
 import { useListener } from "./use-listener";
 
 type Stage = "coarse" | "fine";
 
 // Photos come after the lapping, below the curve: loaded once the screen is up, not before.
 // Links on this screen do not prefetch: the phone's bandwidth is for the strokes.
+// "Use a recording" is not needed to listen: loaded once the screen is up, like the photos.
+const UseRecording = dynamic(() => import("./use-recording").then((m) => m.UseRecording), {
+  loading: () => <div className="h-20 animate-pulse rounded-xl bg-stone-200" />,
+});
 const SeatPhotos = dynamic(() => import("@/components/review/seat-photos").then((m) => m.SeatPhotos), {
   loading: () => <div className="h-24 animate-pulse rounded-xl bg-stone-200" />,
 });
