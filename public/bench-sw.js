@@ -196,9 +196,17 @@ async function putAsset(req, res) {
   for (const old of keys.slice(0, Math.max(0, keys.length - MAX_ASSETS))) await cache.delete(old);
 }
 
+/**
+ * A kept response, answered as a new one. A response from the cache carries the URL it was first
+ * fetched with, fragment and all, and a worker takes its own address from the response: the
+ * bundler's worker entry (one file for every worker, told which chunks to load by its
+ * "#params=" fragment) would otherwise start the first worker kept whichever worker asked.
+ */
+const fresh = (hit) => new Response(hit.body, { status: hit.status, statusText: hit.statusText, headers: hit.headers });
+
 async function hashedAsset(event) {
   const hit = await caches.match(event.request, { cacheName: ASSETS, ignoreVary: true });
-  if (hit) return hit;
+  if (hit) return fresh(hit);
   const res = await fetch(event.request);
   if (res.status === 200 && (await fromBench(event))) event.waitUntil(putAsset(event.request, res.clone()));
   return res;

@@ -1,6 +1,6 @@
 #!/usr/bin/env bash
 # `npm test`: everything the tests need, then every test. Installs Debian's chromium, sox,
-# aubio-tools, espeak-ng and postgresql when missing (as root, through apt-get), starts a
+# aubio-tools, espeak-ng, ffmpeg and postgresql when missing (as root, through apt-get), starts a
 # throwaway PostgreSQL server for the server-database tests unless TEST_DATABASE_URL is given,
 # type-checks, and runs the unit, integration and end-to-end suites.
 set -euo pipefail
@@ -11,6 +11,8 @@ command -v chromium >/dev/null 2>&1 || [ -x "${CHROMIUM_PATH:-/nonexistent}" ] |
 command -v sox >/dev/null 2>&1 || need+=(sox)
 command -v aubioonset >/dev/null 2>&1 || need+=(aubio-tools)
 command -v espeak-ng >/dev/null 2>&1 || need+=(espeak-ng)
+# ffmpeg encodes the MP4/AAC, M4A, WebM, Ogg and MP3 recordings the upload and "Use a recording" tests use.
+command -v ffmpeg >/dev/null 2>&1 || need+=(ffmpeg)
 if [ -z "${TEST_DATABASE_URL:-}" ]; then
   ls /usr/lib/postgresql/*/bin/postgres >/dev/null 2>&1 || need+=(postgresql)
 fi

@@ -6,19 +6,26 @@ import type { Stroke } from "@/lib/audio/analyzer";
 import type { RejectedSound } from "@/lib/audio/strokes";
 import { flagText, judgeSeat, leftOutSummary, type SeatVerdict } from "@/lib/audio/verdict";
 import { Outbox, type FlushReport, type PendingStroke } from "@/lib/bench/outbox";
+import { keepRecording, recoverTakes, Takes } from "@/lib/bench/takes";
 import type { SeatReport } from "@/lib/bench/service";
 import type { StrokeInput } from "@/lib/validations/bench";
 import { SEAT_STATE_LABELS, STAGE_LABELS } from "@/lib/labels";
 import dynamic from "next/dynamic";
 import { LazyDoneChecks } from "./done-checks-lazy";
 import { FadeChart, type ChartStroke } from "./fade-chart";
+import { deviceId } from "./device-id";
 import { keepOfflineCopy } from "./offline-copy";
+import { RecordingUploads } from "./recording-uploads";
 import { useListener } from "./use-listener";
 
 type Stage = "coarse" | "fine";
 
 // Photos come after the lapping, below the curve: loaded once the screen is up, not before.
 // Links on this screen do not prefetch: the phone's bandwidth is for the strokes.
+// "Use a recording" is not needed to listen: loaded once the screen is up, like the photos.
+const UseRecording = dynamic(() => import("./use-recording").then((m) => m.UseRecording), {
+  loading: () => <div className="h-20 animate-pulse rounded-xl bg-stone-200" />,
+});
 const SeatPhotos = dynamic(() => import("@/components/review/seat-photos").then((m) => m.SeatPhotos), {
   loading: () => <div className="h-24 animate-pulse rounded-xl bg-stone-200" />,
 });
@@ -30,16 +37,6 @@ const VERDICT_LABELS: Record<SeatVerdict["state"], string> = {
   settled: "Settled",
   "not-settling": "Not settling",
 };
-
-function deviceId(): string {
-  const key = "grindfade-device";
-  let id = localStorage.getItem(key);
-  if (!id) {
-    id = crypto.randomUUID();
-    localStorage.setItem(key, id);
-  }
-  return id;
-}
 
 async function fetchSeat(seatId: string): Promise<SeatReport> {
   const res = await fetch(`/api/seats/${seatId}`, { headers: { accept: "application/json" } });
@@ -104,6 +101,8 @@ export function BenchScreen({ initial, initialStage }: { initial: SeatReport; in
   const unread = useRef(false);
 
   const outbox = useCallback(() => (outboxRef.current ??= new Outbox()), []);
+  const takesRef = useRef<Takes | null>(null);
+  const takes = useCallback(() => (takesRef.current ??= new Takes()), []);
 
   const sync = useCallback(async (): Promise<FlushReport["stoppedBy"] | undefined> => {
     let report: FlushReport;
@@ -150,6 +149,8 @@ export function BenchScreen({ initial, initialStage }: { initial: SeatReport; in
     let cancelled = false;
     void (async () => {
       try {
+        // A recording a reload or crash interrupted goes up with its session.
+        await recoverTakes(takes(), outbox()).catch(() => []);
         const pending = await outbox().pendingStrokes(seatId);
         if (!cancelled && pending.length) setLocal(pending);
         // Reloaded offline (from the offline worker's copy): the seat as this phone last read it,
@@ -169,7 +170,7 @@ export function BenchScreen({ initial, initialStage }: { initial: SeatReport; in
       window.removeEventListener("online", online);
       clearInterval(timer);
     };
-  }, [outbox, refresh, seatId, sync]);
+  }, [outbox, takes, refresh, seatId, sync]);
 
   const listener = useListener({
     onCalibrated: () => {},
@@ -198,12 +199,11 @@ export function BenchScreen({ initial, initialStage }: { initial: SeatReport; in
     onRejected: (sound: RejectedSound) => {
       if (sound.reason === "not-noise-like") setSpeechHeard((n) => n + 1);
     },
-    onRecording: (blob, type) => {
-      const sessionId = sessionRef.current;
+    onRecording: async (blob, type, keptAs) => {
+      const sessionId = keptAs ?? sessionRef.current;
       if (!sessionId) return;
-      void outbox()
-        .add({ kind: "recording", seatId, sessionId, type, blob })
-        .then(sync);
+      await keepRecording(takes(), outbox(), { sessionId, seatId, type, blob });
+      void sync();
     },
   });
 
@@ -301,7 +301,7 @@ export function BenchScreen({ initial, initialStage }: { initial: SeatReport; in
     const sessionId = crypto.randomUUID();
     sessionRef.current = sessionId;
     strokeCounter.current = 0;
-    const ok = await listener.start({ record });
+    const ok = await listener.start({ record, take: { sessionId, seatId } });
     if (!ok) {
       sessionRef.current = null;
       return;
@@ -535,6 +535,7 @@ export function BenchScreen({ initial, initialStage }: { initial: SeatReport; in
           </p>
         )}
         {syncNote ? <p className="rounded-lg bg-amber-100 px-3 py-2 text-sm text-amber-900">{syncNote}</p> : null}
+        <RecordingUploads outbox={outbox} seatId={seatId} />
         {setAside ? (
           <div role="alert" className="flex flex-wrap items-center gap-2 rounded-lg bg-rose-100 px-3 py-2 text-sm text-rose-900" data-testid="set-aside">
             <p className="font-semibold">
@@ -605,6 +606,16 @@ export function BenchScreen({ initial, initialStage }: { initial: SeatReport; in
       </div>
 
       {!listening ? <LazyDoneChecks seatId={seatId} canWork={report.canWork} settled={report.stages.fine.verdict.state === "settled"} /> : null}
+      {!listening && report.canWork ? (
+        <UseRecording
+          seatId={seatId}
+          stage={stage}
+          earlier={combined.all.map((x) => ({ contrastDb: x.contrastDb, flags: x.flags, startS: x.startS }))}
+          disabled={listener.phase !== "idle"}
+          outbox={outbox}
+          sync={sync}
+        />
+      ) : null}
       {!listening ? <SeatPhotos seatId={seatId} canAdd={report.canWork} /> : null}
 
       <details className="rounded-xl border border-stone-300 bg-white p-3 text-sm">

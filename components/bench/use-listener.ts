@@ -5,6 +5,8 @@
 import { useCallback, useEffect, useRef, useState } from "react";
 import type { Stroke } from "@/lib/audio/analyzer";
 import type { RejectedSound } from "@/lib/audio/strokes";
+import { chooseRecordingType, RECORDING_PIECE_MS } from "@/lib/bench/recorder-type";
+import { takeLockName, Takes } from "@/lib/bench/takes";
 import type { FromWorker, ToWorker } from "@/lib/bench/worker-protocol";
 
 export type ListenerPhase = "idle" | "starting" | "calibrating" | "listening" | "stopping";
@@ -19,7 +21,11 @@ export interface ListenerCallbacks {
   onStroke(stroke: Stroke, detectionMs: number): void;
   onRejected(sound: RejectedSound): void;
   onCalibrated(noiseFloorDbfs: number, disturbed: boolean): void;
-  onRecording(blob: Blob, type: string): void;
+  /**
+   * The whole recording once listening stops. Its pieces are also kept in IndexedDB (Takes) as
+   * they are made, under the session's id; the callback turns them into the session's recording.
+   */
+  onRecording(blob: Blob, type: string, sessionId: string | null): Promise<void> | void;
 }
 
 export interface ProcessingWarning {
@@ -76,6 +82,8 @@ export function useListener(callbacks: ListenerCallbacks) {
     worker: Worker;
     recorder: MediaRecorder | null;
     chunks: Blob[];
+    /** Pieces still being written to IndexedDB, and the take's lock's release. */
+    kept: { sessionId: string; writes: Promise<void>; release: () => void } | null;
     wakeLock: WakeLockSentinel | null;
   } | null>(null);
 
@@ -83,7 +91,7 @@ export function useListener(callbacks: ListenerCallbacks) {
     void parts.current?.wakeLock?.release().catch(() => {});
   };
 
-  const start = useCallback(async (options: { record: boolean; noiseFloorDbfs?: number }) => {
+  const start = useCallback(async (options: { record: boolean; noiseFloorDbfs?: number; take?: { sessionId: string; seatId: string } }) => {
     setError(null);
     setCalibrationNote(null);
     retries.current = 0;
@@ -154,11 +162,40 @@ export function useListener(callbacks: ListenerCallbacks) {
 
       let recorder: MediaRecorder | null = null;
       const chunks: Blob[] = [];
+      let kept: { sessionId: string; writes: Promise<void>; release: () => void } | null = null;
       if (options.record && typeof MediaRecorder !== "undefined") {
-        const type = ["audio/webm;codecs=opus", "audio/ogg;codecs=opus", "audio/mp4"].find((t) => MediaRecorder.isTypeSupported(t));
-        recorder = new MediaRecorder(stream, type ? { mimeType: type, audioBitsPerSecond: 64000 } : undefined);
-        recorder.ondataavailable = (e) => e.data.size && chunks.push(e.data);
-        recorder.start(5000);
+        const type = chooseRecordingType((t) => MediaRecorder.isTypeSupported(t));
+        const rec = new MediaRecorder(stream, type ? { mimeType: type, audioBitsPerSecond: 64000 } : undefined);
+        recorder = rec;
+        if (options.take) {
+          const { sessionId, seatId } = options.take;
+          // Held while this page records: a page that finds the lock free knows the take was left behind.
+          let release = () => {};
+          if (navigator.locks) {
+            await new Promise<void>((held) => {
+              void navigator.locks
+                .request(takeLockName(sessionId), () => {
+                  held();
+                  return new Promise<void>((r) => (release = r));
+                })
+                .catch(() => held());
+            });
+          }
+          const takes = new Takes();
+          const keeping = { sessionId, writes: Promise.resolve(), release: () => release() };
+          kept = keeping;
+          let seq = 0;
+          rec.ondataavailable = (e) => {
+            if (!e.data.size) return;
+            chunks.push(e.data);
+            const piece = { sessionId, seatId, seq: seq++, type: rec.mimeType || type || "audio/webm", blob: e.data };
+            // Written at once, one after another: a reload loses at most the piece being made.
+            keeping.writes = keeping.writes.then(() => takes.append(piece)).catch(() => {});
+          };
+        } else {
+          rec.ondataavailable = (e) => e.data.size && chunks.push(e.data);
+        }
+        rec.start(RECORDING_PIECE_MS);
       }
       let wakeLock: WakeLockSentinel | null = null;
       try {
@@ -166,7 +203,7 @@ export function useListener(callbacks: ListenerCallbacks) {
       } catch {
         wakeLock = null;
       }
-      parts.current = { stream, ctx, node, worker, recorder, chunks, wakeLock };
+      parts.current = { stream, ctx, node, worker, recorder, chunks, kept, wakeLock };
       setPhase(options.noiseFloorDbfs !== undefined ? "listening" : "calibrating");
       return true;
     } catch (err) {
@@ -192,8 +229,10 @@ export function useListener(callbacks: ListenerCallbacks) {
         p.recorder!.stop();
       });
       const type = p.recorder.mimeType || "audio/webm";
-      if (p.chunks.length) cb.current.onRecording(new Blob(p.chunks, { type }), type);
+      await p.kept?.writes;
+      if (p.chunks.length) await Promise.resolve(cb.current.onRecording(new Blob(p.chunks, { type }), type, p.kept?.sessionId ?? null)).catch(() => {});
     }
+    p.kept?.release();
     p.stream.getTracks().forEach((t) => t.stop());
     p.worker.terminate();
     await p.ctx.close().catch(() => {});
@@ -231,6 +270,8 @@ export function useListener(callbacks: ListenerCallbacks) {
     () => () => {
       const p = parts.current;
       if (p) {
+        // Leaving the screen while recording: the take stays in IndexedDB for the next visit.
+        p.kept?.release();
         p.stream.getTracks().forEach((t) => t.stop());
         p.worker.terminate();
         void p.ctx.close().catch(() => {});

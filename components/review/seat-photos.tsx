@@ -5,6 +5,7 @@
 import { useCallback, useEffect, useRef, useState } from "react";
 import { useShopTimeZone } from "@/components/shop-time-zone";
 import { formatWhen } from "@/lib/dates";
+import { sendWithProgress } from "@/lib/storage/send-with-progress";
 
 interface Photo {
   id: string;
@@ -17,6 +18,7 @@ export function SeatPhotos({ seatId, canAdd }: { seatId: string; canAdd: boolean
   const [photos, setPhotos] = useState<Photo[] | null>(null);
   const [message, setMessage] = useState<string | null>(null);
   const [busy, setBusy] = useState(false);
+  const [progress, setProgress] = useState<{ sent: number; total: number } | null>(null);
   const input = useRef<HTMLInputElement>(null);
 
   const load = useCallback(async () => {
@@ -45,9 +47,13 @@ export function SeatPhotos({ seatId, canAdd }: { seatId: string; canAdd: boolean
     setBusy(true);
     setMessage(null);
     try {
-      const res = await fetch(`/api/seats/${seatId}/photos`, { method: "POST", headers: { "content-type": file.type || "application/octet-stream" }, body: file });
-      const body = (await res.json().catch(() => ({}))) as { message?: string };
-      if (!res.ok) throw new Error(body.message ?? `HTTP ${res.status}`);
+      setProgress({ sent: 0, total: file.size });
+      const res = await sendWithProgress(
+        `/api/seats/${seatId}/photos`,
+        { method: "POST", headers: { "content-type": file.type || "application/octet-stream" }, body: file },
+        (sent, total) => setProgress({ sent, total }),
+      );
+      if (!res.ok) throw new Error(typeof res.body.message === "string" ? res.body.message : `HTTP ${res.status}`);
       // The message shows once the list holds the new photo.
       await load();
       setMessage("Photo saved.");
@@ -55,6 +61,7 @@ export function SeatPhotos({ seatId, canAdd }: { seatId: string; canAdd: boolean
       setMessage(`Not saved: ${err instanceof Error ? err.message : String(err)}`);
     } finally {
       setBusy(false);
+      setProgress(null);
       if (input.current) input.current.value = "";
     }
   }
@@ -82,6 +89,12 @@ export function SeatPhotos({ seatId, canAdd }: { seatId: string; canAdd: boolean
         ) : null}
       </div>
       <p className="text-sm text-stone-600">An even, dull grey ring all the way round on the face and the seat; photograph both.</p>
+      {progress ? (
+        <p className="mt-1 text-sm" data-testid="photo-progress" data-percent={progress.total ? Math.round((100 * progress.sent) / progress.total) : 0}>
+          Uploading the photo: <span className="figure">{progress.total ? Math.round((100 * progress.sent) / progress.total) : 0} %</span>
+          <progress className="mt-1 block h-2 w-full accent-emerald-700" max={progress.total || 1} value={progress.sent} aria-label="Photo upload" />
+        </p>
+      ) : null}
       {message ? (
         <p aria-live="polite" className="mt-1 text-sm" data-testid="photo-message">
           {message}

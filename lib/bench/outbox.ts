@@ -53,6 +53,18 @@ export interface FlushReport {
 
 type Fetch = (input: string, init?: RequestInit) => Promise<Response>;
 
+/** How far a recording's upload has gone; `done` once the server has it whole, `stopped` when it paused or was refused. */
+export interface UploadProgress {
+  sessionId: string;
+  seatId: string;
+  received: number;
+  total: number;
+  state: "sending" | "done" | "stopped";
+}
+
+/** Bytes per chunk of a recording's upload: small enough that progress moves on a phone's connection. */
+export const RECORDING_CHUNK_BYTES = 256 * 1024;
+
 async function send(fetchFn: Fetch, url: string, init: RequestInit): Promise<SendResult> {
   let res: Response;
   try {
@@ -74,12 +86,19 @@ async function send(fetchFn: Fetch, url: string, init: RequestInit): Promise<Sen
  * halfway through a long session resends only the rest. The outbox's own later runs are the
  * long retry, so the uploader retries only briefly here.
  */
-async function sendRecording(fetchFn: Fetch, sessionId: string, blob: Blob): Promise<SendResult> {
+async function sendRecording(
+  fetchFn: Fetch,
+  sessionId: string,
+  blob: Blob,
+  onProgress: (received: number, total: number) => void = () => {},
+): Promise<SendResult> {
   try {
     await uploadInChunks(`/api/sessions/${sessionId}/recording/chunks`, blob, {
       fetchFn: fetchFn as typeof fetch,
       maxRetries: 2,
       retryDelayMs: () => 250,
+      chunkBytes: RECORDING_CHUNK_BYTES,
+      onProgress,
     });
     return { kind: "sent" };
   } catch (err) {
@@ -94,6 +113,7 @@ export class Outbox {
   private dbp: Promise<IDBPDatabase<OutboxSchema>>;
   private flushing: Promise<FlushReport> | null = null;
   private rerun = false;
+  private readonly uploadListeners = new Set<(p: UploadProgress) => void>();
 
   constructor(
     name = "grindfade-outbox",
@@ -105,6 +125,22 @@ export class Outbox {
         store.createIndex("bySeat", "seatId");
       },
     });
+  }
+
+  /** Calls `listener` as recordings go up; returns the function that stops it. */
+  onUploadProgress(listener: (p: UploadProgress) => void): () => void {
+    this.uploadListeners.add(listener);
+    return () => this.uploadListeners.delete(listener);
+  }
+
+  private reportUpload(p: UploadProgress): void {
+    for (const l of this.uploadListeners) {
+      try {
+        l(p);
+      } catch {
+        /* a listener's failure is not the upload's */
+      }
+    }
   }
 
   async add(op: OutboxOp): Promise<void> {
@@ -253,7 +289,20 @@ export class Outbox {
       } else if (op.kind === "end") {
         result = await send(this.fetchFn, `/api/sessions/${op.sessionId}/end`, { method: "POST" });
       } else {
-        result = await sendRecording(this.fetchFn, op.sessionId, op.blob);
+        const { sessionId, seatId } = op;
+        const total = op.blob.size;
+        let received = 0;
+        result = await sendRecording(this.fetchFn, sessionId, op.blob, (r, t) => {
+          received = r;
+          this.reportUpload({ sessionId, seatId, received: r, total: t, state: "sending" });
+        });
+        this.reportUpload({
+          sessionId,
+          seatId,
+          received: result.kind === "sent" ? total : received,
+          total,
+          state: result.kind === "sent" ? "done" : "stopped",
+        });
       }
       if (result.kind === "sent") {
         const tx = db.transaction("ops", "readwrite");

@@ -6,21 +6,12 @@ import { attachRecording, getSessionForUpload } from "@/lib/bench/service";
 import { BadRequestError, PayloadTooLargeError, UnsupportedMediaTypeError } from "@/lib/errors";
 import { blobStore } from "./index";
 import { NOTHING_DECLARED, storeWhole, type DeclaredBody } from "./intact";
-import { peekStream, sniff, type Sniffed } from "./sniff";
+import { MAX_RECORDING_BYTES } from "./limits";
+import { isKeptRecording, NOT_A_RECORDING, peekStream, sniff, type Sniffed } from "./sniff";
 
-/** 60 minutes of Opus at 64 kbit/s is about 29 MB; anything much larger is not a bench recording. */
-export const MAX_RECORDING_BYTES = 64 * 1024 * 1024;
+export { MAX_RECORDING_BYTES };
 
 export const tooLargeRecording = () => new PayloadTooLargeError(`Recordings are limited to ${MAX_RECORDING_BYTES / 1048576} MB.`);
-
-/**
- * WebM (what Chrome's and Android's recorder writes), Ogg Opus (Firefox's) and WAV (the
- * analyzer's own format). Other Ogg codecs and plain Matroska are refused because the review
- * page's player and decoder are only tested with these.
- */
-function acceptedRecording(s: Sniffed | null): s is Sniffed {
-  return !!s && (s.kind === "webm" || s.kind === "wav" || (s.kind === "ogg" && s.codec === "opus"));
-}
 
 /**
  * The body with its kind read from its first bytes, whatever the declared type says.
@@ -32,9 +23,9 @@ export async function sniffRecording(
   const peeked = await peekStream(body);
   if (!peeked) return null;
   const sniffed = sniff(peeked.head);
-  if (!acceptedRecording(sniffed)) {
+  if (!sniffed || !isKeptRecording(sniffed)) {
     await peeked.stream.cancel().catch(() => {});
-    throw new UnsupportedMediaTypeError("Recordings must be WebM, Ogg Opus or WAV audio; this file is none of them. Record again on the bench screen.");
+    throw new UnsupportedMediaTypeError(NOT_A_RECORDING);
   }
   return { sniffed, stream: peeked.stream };
 }

@@ -1,4 +1,4 @@
-// Shared test plumbing: external reference tools (sox, aubioonset, espeak-ng)
+// Shared test plumbing: external reference tools (sox, aubioonset, espeak-ng, ffmpeg)
 // and a scratch directory for the WAV files the tests generate. A missing tool
 // skips its tests locally, with the reason printed, but fails them in CI.
 
@@ -12,6 +12,7 @@ const probes: Record<string, string[]> = {
   sox: ["--version"],
   aubioonset: ["--help"],
   "espeak-ng": ["--version"],
+  ffmpeg: ["-version"],
 };
 
 export function hasTool(name: keyof typeof probes): boolean {

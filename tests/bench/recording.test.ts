@@ -84,7 +84,7 @@ describe("recording upload", () => {
     signInAs("ines@millrace.example");
     const res = await upload(new TextEncoder().encode("hello"), { "content-type": "text/plain" });
     expect(res.status).toBe(415);
-    expect(await bodyOf(res)).toMatchObject({ error: "unsupported_media_type", message: expect.stringMatching(/WebM, Ogg Opus or WAV/) });
+    expect(await bodyOf(res)).toMatchObject({ error: "unsupported_media_type", message: expect.stringMatching(/MP4\/M4A \(AAC\), WebM, Ogg, MP3 or WAV/) });
   });
 
   it("refuses a declared size over the limit with 413 before reading the body", async () => {

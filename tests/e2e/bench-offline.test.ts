@@ -297,7 +297,9 @@ describe("bench screen offline", () => {
       await page.waitForFunction((n) => Number(document.querySelector("[data-testid=stroke-count]")?.textContent) === n, shownAtReload, {
         timeout: 10_000,
       });
-      expect(await page.getByTestId("sync-state").innerText()).toMatch(new RegExp(`Waiting to sync ${queuedAtReload.length} item`));
+      // Besides the strokes: the recording the reload interrupted (kept in IndexedDB as it was
+      // made) and its session's end, queued by the reloaded screen.
+      expect(await page.getByTestId("sync-state").innerText()).toMatch(new RegExp(`Waiting to sync ${queuedAtReload.length + 2} item`));
 
       // Still offline: listen again. There is no network, so the worklet and the analysis worker
       // start from what this browser kept (the offline worker's cache, or failing that the HTTP

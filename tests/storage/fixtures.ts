@@ -35,6 +35,9 @@ export const oggOpusPage = bytes(
 /** The same page carrying a Vorbis identification header instead ("\x01vorbis"). */
 export const oggVorbisPage = bytes("OggS", [0, 0x02], new Array(20).fill(0), [1, 30], [1], "vorbis", new Array(23).fill(0));
 
+/** The same page carrying a FLAC-in-Ogg mapping header ("\x7fFLAC", RFC 9639 appendix). */
+export const oggFlacPage = bytes("OggS", [0, 0x02], new Array(20).fill(0), [1, 13], [0x7f], "FLAC", [1, 0, 0, 1], "fLaC");
+
 /**
  * An EBML header as MediaRecorder writes it (Matroska/WebM specification): EBMLVersion 1,
  * EBMLReadVersion 1, EBMLMaxIDLength 4, EBMLMaxSizeLength 8, DocType "webm", DocTypeVersion 4,

@@ -9,7 +9,7 @@ import { afterAll, beforeAll, describe, expect, it, vi } from "vitest";
 import { lappingSessions } from "@/db/schema";
 import type { TestDatabase } from "../helpers/db";
 import { BASE_URL, bodyOf, jsonRequest, seatId as findSeat, sessionBody, userIds } from "../bench/helpers";
-import { concat, ebmlHeader, oggOpusPage, oggVorbisPage, pngHead, wavFile } from "./fixtures";
+import { concat, ebmlHeader, heicHead, oggFlacPage, oggOpusPage, pngHead, wavFile } from "./fixtures";
 import { mockAppContext } from "../helpers/app-mocks";
 
 const state = mockAppContext();
@@ -55,16 +55,18 @@ function upload(body: Uint8Array, type: string) {
 const listed = () => (fs.existsSync(recordings) ? fs.readdirSync(recordings).sort() : []);
 
 describe("recording upload sniffing", () => {
-  it("refuses a PNG or text declared as audio with 415 and stores nothing", async () => {
+  it("refuses a PNG, a photo, Ogg FLAC, Matroska or text declared as audio with 415 and stores nothing", async () => {
     for (const [body, type] of [
       [pngHead, "audio/webm"],
       [new TextEncoder().encode("RIFF but not really a wave file"), "audio/wav"],
-      [oggVorbisPage, "audio/ogg"],
+      [oggFlacPage, "audio/ogg"],
       [ebmlHeader("matroska"), "audio/webm"],
+      // An iPhone photo is an ISO base media file too; its brand says it is no sound.
+      [heicHead, "audio/mp4"],
     ] as const) {
       const res = await upload(body, type);
       expect(res.status).toBe(415);
-      expect(await bodyOf(res)).toMatchObject({ error: "unsupported_media_type", message: expect.stringMatching(/WebM, Ogg Opus or WAV/) });
+      expect(await bodyOf(res)).toMatchObject({ error: "unsupported_media_type", message: expect.stringMatching(/MP4\/M4A \(AAC\), WebM, Ogg, MP3 or WAV/) });
     }
     expect(listed()).toEqual([]);
     expect((await sessionRow()).recordingKey).toBeNull();

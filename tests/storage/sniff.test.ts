@@ -1,7 +1,12 @@
 // Content sniffing from the first bytes, against hand-built prefixes of each kind.
-import { describe, expect, it } from "vitest";
-import { peekStream, sniff } from "@/lib/storage/sniff";
-import { concat, ebmlHeader, heicHead, jpegHead, oggOpusPage, oggVorbisPage, pngHead, wavFile, webpHead } from "./fixtures";
+import fs from "node:fs";
+import os from "node:os";
+import path from "node:path";
+import { afterAll, describe, expect, it } from "vitest";
+import { isKeptRecording, peekStream, sniff, SNIFF_BYTES } from "@/lib/storage/sniff";
+import { skipWithout } from "../audio/helpers";
+import { encodeWith, type EncodedKind } from "./encoded";
+import { concat, ebmlHeader, heicHead, jpegHead, oggFlacPage, oggOpusPage, oggVorbisPage, pngHead, wavFile, webpHead } from "./fixtures";
 
 const streamOf = (...chunks: Uint8Array[]) =>
   new ReadableStream<Uint8Array>({
@@ -55,5 +60,56 @@ describe("peekStream", () => {
     expect(await readAll(peeked!.stream)).toEqual(pngHead);
     expect(await peekStream(streamOf(new Uint8Array(0)), 512)).toBeNull();
     expect(await peekStream(streamOf(), 512)).toBeNull();
+  });
+});
+
+// Real files, made at test time by Debian's ffmpeg (tests/storage/encoded.ts names the arguments)
+// from a WAV written by our own encoder: the first bytes each kind really starts with.
+describe.skipIf(skipWithout("ffmpeg"))("sniff on files encoded by ffmpeg (Debian)", () => {
+  const dir = fs.mkdtempSync(path.join(os.tmpdir(), "grindfade-sniff-enc-"));
+  const wav = path.join(dir, "tone.wav");
+  fs.writeFileSync(wav, wavFile);
+  afterAll(() => fs.rmSync(dir, { recursive: true, force: true }));
+  const head = (kind: EncodedKind) => new Uint8Array(fs.readFileSync(encodeWith(kind, wav, dir))).subarray(0, SNIFF_BYTES);
+
+  it.each([
+    ["webkit-mp4", { kind: "mp4", type: "audio/mp4", ext: "m4a", brand: "iso5" }],
+    ["m4a", { kind: "mp4", type: "audio/mp4", ext: "m4a", brand: "M4A " }],
+    ["webm-opus", { kind: "webm", type: "audio/webm", ext: "webm" }],
+    ["ogg-opus", { kind: "ogg", codec: "opus", type: "audio/ogg; codecs=opus", ext: "ogg" }],
+    ["ogg-vorbis", { kind: "ogg", codec: "vorbis", type: "audio/ogg", ext: "ogg" }],
+    ["mp3", { kind: "mp3", type: "audio/mpeg", ext: "mp3" }],
+    ["mp3-bare", { kind: "mp3", type: "audio/mpeg", ext: "mp3" }],
+  ] as const)("%s is recognised and kept as a recording", (kind, expected) => {
+    const sniffed = sniff(head(kind));
+    expect(sniffed).toEqual(expected);
+    expect(isKeptRecording(sniffed)).toBe(true);
+  });
+
+  it("keeps no photo, Matroska, Ogg FLAC or text as a recording", () => {
+    for (const b of [jpegHead, pngHead, webpHead, heicHead, ebmlHeader("matroska"), oggFlacPage, new TextEncoder().encode("ID3 but then nothing useful")]) {
+      expect(isKeptRecording(sniff(b))).toBe(false);
+    }
+  });
+});
+
+describe("sniff: ISO base media and MPEG audio edge cases", () => {
+  it("tells an MP4 of sound from a HEIF photo by its major brand, and refuses unknown brands", () => {
+    expect(sniff(concat([0, 0, 0, 20], "ftypmp42", [0, 0, 0, 0], "isom"))).toMatchObject({ kind: "mp4", brand: "mp42" });
+    expect(sniff(concat([0, 0, 0, 20], "ftypM4A ", [0, 0, 0, 0], "isom"))).toMatchObject({ kind: "mp4", type: "audio/mp4" });
+    expect(sniff(concat([0, 0, 0, 20], "ftypqt  ", [0, 0, 0, 0], "qt  "))).toBeNull();
+    expect(sniff(concat([0, 0, 0, 20], "ftypavif", [0, 0, 0, 0], "mif1"))).toBeNull();
+    expect(sniff(concat([0, 0, 0, 20], "ftyp"))).toBeNull();
+  });
+
+  it("reads an MPEG frame header only when it is layer III with a real bitrate and rate", () => {
+    expect(sniff(Uint8Array.from([0xff, 0xfb, 0x90, 0x64]))).toMatchObject({ kind: "mp3" }); // MPEG-1 layer III, 128 kbit/s, 44.1 kHz
+    expect(sniff(Uint8Array.from([0xff, 0xf3, 0x90, 0x64]))).toMatchObject({ kind: "mp3" }); // MPEG-2 layer III
+    expect(sniff(Uint8Array.from([0xff, 0xfd, 0x90, 0x64]))).toBeNull(); // layer II
+    expect(sniff(Uint8Array.from([0xff, 0xfb, 0xf0, 0x64]))).toBeNull(); // bad bitrate index
+    expect(sniff(Uint8Array.from([0xff, 0xfb, 0x9c, 0x64]))).toBeNull(); // reserved sample rate
+    expect(sniff(Uint8Array.from([0xff, 0xf1, 0x50, 0x80]))).toBeNull(); // an ADTS AAC header (layer 0)
+    expect(sniff(concat("ID3", [4, 0, 0, 0, 0, 0, 0x23]))).toMatchObject({ kind: "mp3" });
+    expect(sniff(concat("ID3", [4, 0, 0, 0, 0x80, 0, 0x23]))).toBeNull(); // size bytes are syncsafe: no high bit
   });
 });
