@@ -84,6 +84,7 @@ export function BenchScreen({ initial, initialStage }: { initial: SeatReport; in
     window.history.replaceState(null, "", `?stage=${s}`);
   }, []);
   const [record, setRecord] = useState(true);
+  const [coarseChosen, setCoarseChosen] = useState(false);
   const [local, setLocal] = useState<PendingStroke[]>([]);
   const [pendingCount, setPendingCount] = useState(0);
   const [syncNote, setSyncNote] = useState<string | null>(null);
@@ -320,7 +321,9 @@ export function BenchScreen({ initial, initialStage }: { initial: SeatReport; in
   }
 
   const listening = listener.phase === "calibrating" || listener.phase === "listening" || listener.phase === "starting";
-  const fineOffered = stage === "coarse" && verdict.state === "settled";
+  // Once coarse has settled, the big button listens with fine compound, unless the technician
+  // chose the coarse stage again on purpose (more coarse lapping).
+  const fineOffered = stage === "coarse" && verdict.state === "settled" && !coarseChosen;
   const seatDone = stage === "fine" && verdict.state === "settled";
   const busyRefusal = refusals.find((r) => /busy/i.test(r));
 
@@ -363,6 +366,7 @@ export function BenchScreen({ initial, initialStage }: { initial: SeatReport; in
             aria-pressed={stage === s}
             onClick={() => {
               setStage(s);
+              setCoarseChosen(s === "coarse");
               setCue(null);
             }}
             className={`min-h-14 rounded-xl border-2 text-lg font-bold disabled:opacity-60 ${

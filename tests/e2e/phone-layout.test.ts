@@ -110,9 +110,13 @@ describe("phone layout", () => {
     await page.getByTestId("next-step").waitFor();
     expect(await page.getByTestId("next-step").innerText()).toMatch(/Seat lapped — next seat/);
     expect(await page.getByTestId("start-listening").count()).toBe(0);
-    expect(await page.getByRole("button", { name: "Fine" }).getAttribute("aria-pressed")).toBe("true");
+    expect(await page.getByRole("button", { name: /^Fine/ }).getAttribute("aria-pressed")).toBe("true");
     expect(await overlaid(page)).toEqual([]);
     expect(await smallTargets(page)).toEqual([]);
+    // Choosing the coarse stage on purpose offers more coarse lapping, not fine.
+    await page.getByRole("button", { name: /^Coarse/ }).tap();
+    expect(await page.getByTestId("start-listening").innerText()).toBe("Listen — coarse compound");
+    await page.getByRole("button", { name: /^Fine/ }).tap();
     const next = await page.getByTestId("next-step").getAttribute("href");
     await page.getByTestId("next-step").tap();
     await page.waitForURL((u) => u.pathname === next);
