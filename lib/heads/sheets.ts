@@ -1,7 +1,7 @@
 // The head's sheets on the server: journal oil clearance readings, cap torque sequences, the
 // other head measurements and valve identity. Every write checks the shop, the role, that the
 // head is not signed off, and lands together with its audit entry.
-import { and, asc, desc, eq, inArray, isNull } from "drizzle-orm";
+import { and, asc, desc, eq, inArray, isNull, sql } from "drizzle-orm";
 import type { Db } from "@/db/client";
 import {
   camshafts,
@@ -588,12 +588,13 @@ export async function recordMeasurements(db: Db, actor: Actor, jobId: string, in
   });
   return db.transaction(async (tx) => {
     await holdOpenJob(tx, job.id, signedOffSheets);
-    // The seats are read again under the hold and locked, so two readings of one seat's figure
-    // at once replace each other rather than both insert.
-    if (seatIds.length) {
-      await openSeatsNow(tx, seatIds);
-      await tx.select({ id: seats.id }).from(seats).where(inArray(seats.id, seatIds)).for("no key update");
-    }
+    // The seats are read again under the hold. Two readings of one figure at once must replace
+    // each other rather than both insert, so each (seat, figure) is taken by a transaction lock of
+    // its own, in one order. Not a lock on the seat rows: a seat decision holds its seat and then
+    // its job, while this write holds the job first, and the two would wait for each other.
+    if (seatIds.length) await openSeatsNow(tx, seatIds);
+    const keys = [...new Set(planned.map((p) => `measurement:${head.id}:${p.seatId ?? "head"}:${p.input.kind}`))].sort();
+    for (const key of keys) await tx.execute(sql`select pg_advisory_xact_lock(hashtextextended(${key}, 0))`);
     const out: SavedMeasurement[] = [];
     for (const p of planned) {
       const [before] = await tx
