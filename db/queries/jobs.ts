@@ -2,6 +2,7 @@
 import { and, asc, eq, sql } from "drizzle-orm";
 import { alias } from "drizzle-orm/pg-core";
 import type { Db } from "@/db/client";
+import { NotFoundError } from "@/lib/errors";
 import {
   camshafts,
   customers,
@@ -202,4 +203,20 @@ export async function seatInShop(db: Db, shopId: string, seatId: string): Promis
     .where(and(eq(seats.id, seatId), eq(jobs.shopId, shopId)))
     .limit(1);
   return rows.length > 0;
+}
+
+/**
+ * A seat of the caller's shop with its job (on a transaction or the database). Another shop's
+ * seat answers exactly like a missing one: NotFoundError.
+ */
+export async function seatWithJob(db: Pick<Db, "select">, shopId: string, seatId: string): Promise<{ seat: Seat; job: typeof jobs.$inferSelect }> {
+  const [row] = await db
+    .select({ seat: seats, job: jobs })
+    .from(seats)
+    .innerJoin(heads, eq(heads.id, seats.headId))
+    .innerJoin(jobs, eq(jobs.id, heads.jobId))
+    .where(and(eq(seats.id, seatId), eq(jobs.shopId, shopId)))
+    .limit(1);
+  if (!row) throw new NotFoundError("That seat does not exist in your shop.");
+  return row;
 }

@@ -9,11 +9,12 @@
 // the job held against sign-off (lib/jobs/hold.ts) and the audit entry in the same transaction.
 import { and, desc, eq, inArray, max } from "drizzle-orm";
 import type { Db } from "@/db/client";
-import { heads, jobs, lappingSessions, measurements, seatChecks, seatPhotos, seats, strokes, users, type Job, type Seat } from "@/db/schema";
+import { seatWithJob } from "@/db/queries/jobs";
+import { heads, jobs, lappingSessions, measurements, seatChecks, seatPhotos, seats, strokes, users, type Seat } from "@/db/schema";
 import type { Actor } from "@/lib/auth/guard";
 import { assertCanWorkOn } from "@/lib/auth/job-access";
 import { recordAudit } from "@/lib/audit";
-import { BadRequestError, ConflictError, NotFoundError } from "@/lib/errors";
+import { BadRequestError, ConflictError } from "@/lib/errors";
 import { seatCode } from "@/lib/heads/layout";
 import { backToBenchForWork } from "@/lib/jobs/hand-in";
 import { assertSeatOpen, holdOpenJob, openSeatsNow, signedOffSeats } from "@/lib/jobs/hold";
@@ -153,18 +154,7 @@ export async function doneChecksOf(db: Reader, jobId: string, seatRows: readonly
   return out;
 }
 
-async function loadSeat(db: Reader, shopId: string, seatId: string): Promise<{ seat: Seat; job: Job }> {
-  const [row] = await db
-    .select({ seat: seats, job: jobs })
-    .from(seats)
-    .innerJoin(heads, eq(heads.id, seats.headId))
-    .innerJoin(jobs, eq(jobs.id, heads.jobId))
-    .where(and(eq(seats.id, seatId), eq(jobs.shopId, shopId)))
-    .limit(1);
-  // Another shop's seat answers exactly like a missing one.
-  if (!row) throw new NotFoundError("That seat does not exist in your shop.");
-  return row;
-}
+const loadSeat = seatWithJob;
 
 /** One seat's done-checks, for anyone of its shop. */
 export async function getSeatDoneChecks(db: Reader, actor: Pick<Actor, "shopId">, seatId: string): Promise<SeatDoneChecks> {

@@ -4,6 +4,7 @@
 import { randomUUID } from "node:crypto";
 import { and, asc, eq } from "drizzle-orm";
 import type { Db } from "@/db/client";
+import { seatWithJob } from "@/db/queries/jobs";
 import { heads, jobs, seatPhotos, seats, users, type Job, type Seat } from "@/db/schema";
 import { recordAudit } from "@/lib/audit";
 import type { Actor } from "@/lib/auth/guard";
@@ -29,18 +30,7 @@ export interface SeatPhoto {
   url: string;
 }
 
-async function loadSeat(db: Db, shopId: string, seatId: string) {
-  const [row] = await db
-    .select({ seat: seats, job: jobs })
-    .from(seats)
-    .innerJoin(heads, eq(heads.id, seats.headId))
-    .innerJoin(jobs, eq(jobs.id, heads.jobId))
-    .where(and(eq(seats.id, seatId), eq(jobs.shopId, shopId)))
-    .limit(1);
-  // Another shop's seat answers exactly like a missing one.
-  if (!row) throw new NotFoundError("That seat does not exist in your shop.");
-  return row;
-}
+const loadSeat = seatWithJob;
 
 function assertPhotoAllowed(seat: Pick<Seat, "state">, job: Pick<Job, "status" | "number">): void {
   if (seat.state === "approved") throw new ConflictError("This seat is signed off. A supervisor must reopen it before photos are added.");
