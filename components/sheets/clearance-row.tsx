@@ -6,7 +6,7 @@ import { CLEARANCE_VERDICT_LABELS, GAUGE_STRIPS, type ClearanceVerdict } from "@
 import type { ClearanceReadingView, ClearanceSheet } from "@/lib/heads/sheets";
 import { formatWhen } from "@/lib/dates";
 import { useShopTimeZone } from "@/components/shop-time-zone";
-import { FieldError, fieldClass, ResultMessage, useKeptForm } from "./form-kit";
+import { DecimalField, FieldError, fieldClass, ResultMessage, useKeptForm } from "./form-kit";
 
 const TONES: Record<ClearanceVerdict, string> = {
   within_spec: "bg-emerald-100 text-emerald-900",
@@ -59,29 +59,9 @@ export function ClearanceRow({
   const r = state.ok && state.saved ? state.saved : journal.reading;
   const [method, setMethod] = useState<"strip" | "diameters">(journal.reading?.method === "diameters" ? "diameters" : "strip");
   const id = `j-${journal.id}`;
-  const input = (name: string, label: string, key: string, defaultValue: string, hint?: string) => {
-    const err = errorFor(key, name);
-    return (
-      <label className="flex flex-col text-sm font-semibold">
-        {label}
-        <input
-          name={name}
-          inputMode="decimal"
-          autoComplete="off"
-          aria-invalid={err ? true : undefined}
-          aria-describedby={err ? `${id}-${name}-err` : hint ? `${id}-${name}-hint` : undefined}
-          defaultValue={defaultValue}
-          className={fieldClass(Boolean(err), "figure")}
-        />
-        {hint && !err ? (
-          <span id={`${id}-${name}-hint`} className="text-xs font-normal text-stone-600">
-            {hint}
-          </span>
-        ) : null}
-        <FieldError id={`${id}-${name}-err`} message={err} />
-      </label>
-    );
-  };
+  const input = (name: string, label: string, key: string, defaultValue: string, hint?: string) => (
+    <DecimalField idBase={id} name={name} label={label} error={errorFor(key, name)} defaultValue={defaultValue} hint={hint} />
+  );
   const saved = journal.reading;
   const specHint =
     spec && spec.min !== null && spec.max !== null

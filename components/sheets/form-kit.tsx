@@ -95,3 +95,31 @@ export function FieldError({ id, message }: { id: string; message: string | unde
     </span>
   ) : null;
 }
+
+/**
+ * A decimal figure with its label, an optional hint, and its own refusal: marked invalid, red,
+ * and described by the refusal while there is one, by the hint otherwise. `idBase` keeps the ids
+ * of one form's fields apart from another's.
+ */
+export function DecimalField({ idBase, name, label, error, defaultValue, hint }: { idBase: string; name: string; label: string; error: string | undefined; defaultValue?: string; hint?: string }) {
+  return (
+    <label className="flex flex-col text-sm font-semibold">
+      {label}
+      <input
+        name={name}
+        inputMode="decimal"
+        autoComplete="off"
+        aria-invalid={error ? true : undefined}
+        aria-describedby={error ? `${idBase}-${name}-err` : hint ? `${idBase}-${name}-hint` : undefined}
+        defaultValue={defaultValue}
+        className={fieldClass(Boolean(error), "figure")}
+      />
+      {hint && !error ? (
+        <span id={`${idBase}-${name}-hint`} className="text-xs font-normal text-stone-600">
+          {hint}
+        </span>
+      ) : null}
+      <FieldError id={`${idBase}-${name}-err`} message={error} />
+    </label>
+  );
+}

@@ -6,7 +6,7 @@ import { saveMeasurement } from "@/lib/actions/sheets";
 import type { SpecInForce } from "@/lib/heads/sheets";
 import { HEAD_KINDS, MEASUREMENT_KINDS, RANGE_VERDICT_LABELS, type MeasurementKind } from "@/lib/measure/results";
 import { FORCE_UNITS, LENGTH_UNITS, UNIT_LABELS } from "@/lib/measure/units";
-import { FieldError, fieldClass, ResultMessage, useKeptForm } from "./form-kit";
+import { DecimalField, FieldError, fieldClass, ResultMessage, useKeptForm } from "./form-kit";
 
 
 export function MeasurementForm({
@@ -25,23 +25,7 @@ export function MeasurementForm({
   const units = info.quantity === "force" ? FORCE_UNITS : LENGTH_UNITS;
   const spec = specs[kind];
   const saved = state.ok && state.saved && state.saved.kind === kind ? state.saved : savedAtOpen[kind];
-  const input = (name: string, key: string, label: string) => {
-    const err = errorFor(key, name);
-    return (
-      <label className="flex flex-col text-sm font-semibold">
-        {label}
-        <input
-          name={name}
-          inputMode="decimal"
-          autoComplete="off"
-          aria-invalid={err ? true : undefined}
-          aria-describedby={err ? `m-${name}-err` : undefined}
-          className={fieldClass(Boolean(err), "figure")}
-        />
-        <FieldError id={`m-${name}-err`} message={err} />
-      </label>
-    );
-  };
+  const input = (name: string, key: string, label: string) => <DecimalField idBase="m" name={name} label={label} error={errorFor(key, name)} />;
   return (
     <form onSubmit={onSubmit} onChange={onChange} className="grid grid-cols-2 gap-2 sm:grid-cols-4" noValidate data-testid="measurement-form">
       <input type="hidden" name="jobId" value={jobId} />
