@@ -78,6 +78,7 @@ export const shops = pgTable("shops", {
   id: uuid("id").primaryKey().defaultRandom(),
   name: text("name").notNull().unique(),
   address: text("address"),
+  phone: text("phone"),
   // The IANA time zone every date of the shop is shown in (lib/dates.ts).
   timeZone: text("time_zone").notNull().default("Europe/London"),
   ...timestamps,
@@ -117,8 +118,11 @@ export const customers = pgTable(
       .notNull()
       .references(() => shops.id, { onDelete: "restrict" }),
     name: text("name").notNull(),
+    // The person to greet and to call at a business customer; null for a private customer.
+    contactName: text("contact_name"),
     email: text("email"),
     phone: text("phone"),
+    address: text("address"),
     ...timestamps,
   },
   (t) => [unique("customers_shop_name_unique").on(t.shopId, t.name)],

@@ -90,9 +90,23 @@ const DEMO_SPECS: Array<{
 ];
 
 const DEMO_CUSTOMERS = [
-  { name: "Corrin Vale Fleet Services", email: "workshop@corrinvale.example", phone: "0161 555 0142" },
-  { name: "Juniper Oyelaran", email: "juniper.o@mail.example", phone: "07700 900 318" },
-  { name: "Saltmarsh Vintage Motor Club", email: "secretary@saltmarsh-vmc.example", phone: null },
+  {
+    name: "Corrin Vale Fleet Services",
+    contactName: "Tamsin Oduya",
+    email: "workshop@corrinvale.example",
+    phone: "0161 555 0142",
+    address: "Depot 2, Corrin Vale Road, Lockbridge",
+  },
+  { name: "Juniper Oyelaran", contactName: null, email: "juniper.o@mail.example", phone: "07700 900 318", address: null },
+  {
+    name: "Saltmarsh Vintage Motor Club",
+    contactName: "Ebbe Marrow",
+    email: "secretary@saltmarsh-vmc.example",
+    phone: null,
+    address: null,
+  },
+  // Booked in at the counter: no way to reach them yet.
+  { name: "Perrin Ashdown", contactName: null, email: null, phone: null, address: null },
 ];
 
 const DEMO_JOBS: DemoJob[] = [
@@ -155,6 +169,44 @@ const DEMO_JOBS: DemoJob[] = [
     },
     seatStates: () => "settled",
   },
+  {
+    number: "MHW-0144",
+    customer: "Corrin Vale Fleet Services",
+    engine: "Tor T14 1.4 inline-4, single cam, 8 valves (delivery van)",
+    status: "awaiting_audit",
+    technician: "ines@millrace.example",
+    promisedInDays: 2,
+    notes: "Every seat settled; waiting for the supervisor's walk-through.",
+    head: {
+      label: "Cylinder head",
+      arrangement: "inline",
+      cylinderCount: 4,
+      intakeValvesPerCylinder: 1,
+      exhaustValvesPerCylinder: 1,
+      camshaftCount: 1,
+      journalsPerCamshaft: 5,
+    },
+    seatStates: () => "settled",
+  },
+  {
+    number: "MHW-0145",
+    customer: "Perrin Ashdown",
+    engine: "Tor T14 1.4 inline-4, single cam, 8 valves (hatchback)",
+    status: "awaiting_audit",
+    technician: "ines@millrace.example",
+    promisedInDays: 4,
+    notes: "Walk-in customer; no e-mail on file yet.",
+    head: {
+      label: "Cylinder head",
+      arrangement: "inline",
+      cylinderCount: 4,
+      intakeValvesPerCylinder: 1,
+      exhaustValvesPerCylinder: 1,
+      camshaftCount: 1,
+      journalsPerCamshaft: 5,
+    },
+    seatStates: () => "settled",
+  },
 ];
 
 /** A decaying curve with a little stroke-to-stroke scatter, reproducible per seat. */
@@ -182,7 +234,7 @@ export async function seedDemoShop(db: Db): Promise<boolean> {
     // A second process racing us would fail on the unique shop name and roll back cleanly.
     const [shop] = await tx
       .insert(shops)
-      .values({ name: DEMO_SHOP_NAME, address: "Unit 4, Weir Yard, Lockbridge" })
+      .values({ name: DEMO_SHOP_NAME, address: "Unit 4, Weir Yard, Lockbridge", phone: "01632 960 414" })
       .returning();
     if (!shop) throw new Error("demo shop insert returned nothing");
 
