@@ -76,7 +76,9 @@ export const AUDIT_WORDS: Readonly<Record<string, Words>> = {
   "job.status_changed": (c) =>
     c.after.status === "awaiting_audit"
       ? [`${c.who} handed in `, c.job, " for audit"]
-      : [`${c.who} moved `, c.job, ` to ${statusWord(c.after.status)}`],
+      : str(c.after.status)
+        ? [`${c.who} moved `, c.job, ` to ${statusWord(c.after.status)}`]
+        : [`${c.who} changed the status of `, c.job],
   "job.taken_back": (c) => [`${c.who} took `, c.job, " back to the bench before its audit"],
   "job.back_to_bench": (c) => [`${c.who} put `, c.job, ` back at the bench${str(c.after.work) ? ` (${c.after.work})` : ""}`],
   "job.signed_off": (c) => [`${c.who} signed off `, c.job],
@@ -88,7 +90,9 @@ export const AUDIT_WORDS: Readonly<Record<string, Words>> = {
   "seat.state_changed": (c) =>
     c.after.state === "lapping"
       ? [`${c.who} started lapping seat `, c.seat, " on ", c.job]
-      : [`Seat `, c.seat, " on ", c.job, ` became ${stateWord(c.after.state)} as ${c.who} lapped it`],
+      : str(c.after.state)
+        ? [`Seat `, c.seat, " on ", c.job, ` became ${stateWord(c.after.state)} as ${c.who} lapped it`]
+        : [`Seat `, c.seat, " on ", c.job, ` changed state as ${c.who} lapped it`],
   "seat.photo_added": (c) => [`${c.who} added a photo of seat `, c.seat, " on ", c.job],
   "seat.check_recorded": (c) => {
     const kind = str(c.after.kind);
@@ -108,24 +112,27 @@ export const AUDIT_WORDS: Readonly<Record<string, Words>> = {
   "torque_sheet.set_up": (c) => [`${c.who} set up a cap torque sheet on `, c.job],
   "torque_sheet.changed": (c) => [`${c.who} changed the cap torque sheet on `, c.job],
   "torque.ticked": (c) => [
-    `${c.who} ticked bolt ${str(c.after.bolt) ?? "?"} at stage ${str(c.after.stage) ?? "?"}${typeof c.after.nm === "number" ? ` (${formatNumber(c.after.nm)} N·m)` : ""} on `,
+    `${c.who} ticked ${named("bolt", c.after.bolt)}${opt(" at stage", c.after.stage)}${typeof c.after.nm === "number" ? ` (${formatNumber(c.after.nm)} N·m)` : ""} on `,
     c.job,
   ],
-  "torque.tick_undone": (c) => [`${c.who} undid the tick of bolt ${str(c.before.bolt) ?? "?"} at stage ${str(c.before.stage) ?? "?"} on `, c.job],
-  "valve.identified": (c) => [`${c.who} updated the tag and numbers of valve ${str(c.after.tag) ?? str(c.before.tag) ?? ""} on `, c.job],
-  "valve.moved": (c) => [`${c.who} moved valve ${str(c.after.valve) ?? ""} into seat ${str(c.after.seat) ?? "?"} on `, c.job],
+  "torque.tick_undone": (c) => [`${c.who} undid the tick of ${named("bolt", c.before.bolt)}${opt(" at stage", c.before.stage)} on `, c.job],
+  "valve.identified": (c) => [`${c.who} updated the tag and numbers of ${named("valve", c.after.tag ?? c.before.tag)} on `, c.job],
+  "valve.moved": (c) => [`${c.who} moved ${named("valve", c.after.valve)} into ${named("seat", c.after.seat)} on `, c.job],
   "valve.swapped": (c) => [
-    `${c.who} swapped valve ${str(c.after.valve) ?? ""} with ${str(c.after.swappedWith) ?? "another valve"} into seat ${str(c.after.seat) ?? "?"} on `,
+    `${c.who} swapped ${named("valve", c.after.valve)} with ${str(c.after.swappedWith) ?? "another valve"} into ${named("seat", c.after.seat)} on `,
     c.job,
   ],
-  "spec.created": (c) => [`${c.who} added engine ${str(c.after.name) ?? ""} to the specifications library`],
-  "spec.figure_saved": (c) => [`${c.who} saved the figure for ${specKeyWords(c.after.key)} in the specifications library`],
-  "spec.job_override": (c) => [`${c.who} set this job's own figure for ${specKeyWords(c.after.key)} on `, c.job],
-  "spec.renamed": (c) => [`${c.who} renamed engine ${str(c.before.name) ?? ""} to ${str(c.after.name) ?? ""}`],
-  "spec.retired": (c) => [`${c.who} retired engine ${str(c.before.name) ?? str(c.after.name) ?? ""}`],
+  "spec.created": (c) => [`${c.who} added ${named("engine", c.after.name)} to the specifications library`],
+  "spec.figure_saved": (c) => [`${c.who} saved ${specKeyWords(c.after.key)} in the specifications library`],
+  "spec.job_override": (c) => [`${c.who} set this job's own ${specKeyWords(c.after.key)} on `, c.job],
+  "spec.renamed": (c) => [`${c.who} renamed ${named("engine", c.before.name)}${opt(" to", c.after.name)}`],
+  "spec.retired": (c) => [`${c.who} retired ${named("engine", c.before.name ?? c.after.name)}`],
   "user.created": (c) => [`${c.who} added ${str(c.after.name) ?? "a person"}${str(c.after.role) ? ` as ${roleWord(c.after.role).toLowerCase()}` : ""}`],
   "user.password_reset": (c) => [`${c.who} reset the password of ${c.person}`],
-  "user.role_changed": (c) => [`${c.who} made ${c.person} ${article(roleWord(c.after.role))} ${roleWord(c.after.role).toLowerCase()}`],
+  "user.role_changed": (c) =>
+    str(c.after.role)
+      ? [`${c.who} made ${c.person} ${article(roleWord(c.after.role))} ${roleWord(c.after.role).toLowerCase()}`]
+      : [`${c.who} changed the role of ${c.person}`],
   "user.deactivated": (c) => [`${c.who} deactivated ${c.person}`],
   "user.reactivated": (c) => [`${c.who} reactivated ${c.person}`],
   "user.sessions_ended": (c) => [`${c.who} signed ${c.person} out everywhere`],
@@ -135,10 +142,21 @@ export const AUDIT_WORDS: Readonly<Record<string, Words>> = {
   "customer_link.created": (c) => [`${c.who} made a report link for the customer of `, c.job],
   "customer_link.opened": (c) => [`${c.who} opened the customer's report link for `, c.job],
   "customer_link.revoked": (c) => [`${c.who} revoked the customer's report link for `, c.job],
-  "customer.created": (c) => [`${c.who} added customer ${str(c.after.name) ?? ""}`.trimEnd()],
-  "customer.updated": (c) => [`${c.who} updated customer ${str(c.after.name) ?? str(c.before.name) ?? ""}`.trimEnd()],
+  "customer.created": (c) => [`${c.who} added ${named("customer", c.after.name)}`],
+  "customer.updated": (c) => [`${c.who} updated the details of ${named("customer", c.after.name ?? c.before.name)}`],
   "shop.updated": (c) => [`${c.who} updated the shop's details`],
 };
+
+/** "valve 2I2" when the payload names it, else "a valve". */
+function named(what: string, v: unknown): string {
+  const s = str(v);
+  return s ? `${what} ${s}` : `${article(what)} ${what}`;
+}
+/** " at stage 2" when the payload has it, else nothing. */
+function opt(prefix: string, v: unknown): string {
+  const s = str(v);
+  return s ? `${prefix} ${s}` : "";
+}
 
 function article(word: string): string {
   return /^[aeiou]/i.test(word) ? "an" : "a";
@@ -149,9 +167,9 @@ function roleWord(v: unknown): string {
 function specKeyWords(v: unknown): string {
   if (typeof v === "string" && v in SPEC_KEYS) {
     const label = SPEC_KEYS[v as keyof typeof SPEC_KEYS].label;
-    return label.charAt(0).toLowerCase() + label.slice(1);
+    return `figures for ${label.charAt(0).toLowerCase() + label.slice(1)}`;
   }
-  return typeof v === "string" ? plainWords(v) : "a figure";
+  return typeof v === "string" ? `figures for ${plainWords(v)}` : "figures";
 }
 
 /** "customer_link" → "customer link", "valueMm" → "value mm". */
@@ -191,7 +209,8 @@ function contextOf(e: AuditEntryFacts, names: Names): Ctx {
     ? e.entityType === "seat"
       ? { seat: { id: e.entityId, code: seatCode, jobId: e.jobId } }
       : seatCode
-    : "?";
+    : // A seat removed with its head's old layout: its entries keep their words.
+      "(code no longer on the head)";
   const person = (e.entityType === "user" && names.get(e.entityId)) || str(after.name) || "a person";
   return { e, who: e.actorName ?? "Someone", before, after, names, job, seat, person };
 }
