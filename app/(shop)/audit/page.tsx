@@ -238,8 +238,8 @@ function AuditBurst({ group, timeZone, names }: { group: AuditGroup<AuditRow>; t
       <details>
         <summary className="flex min-h-11 cursor-pointer flex-wrap items-baseline justify-between gap-2">
           <span>
-            <Sentence parts={describeGroup(group, names)} />
-            <span className="ml-2 text-sm text-stone-600">({group.entries.length} entries — open to see each)</span>
+            <Sentence parts={describeGroup(group, names)} />{" "}
+            <span className="ml-1 text-sm text-stone-600">({group.entries.length} entries — open to see each)</span>
           </span>
           <span className="text-sm text-stone-600">
             <time dateTime={oldest.at}>{formatWhen(oldest.at, timeZone, { seconds: true })}</time>
