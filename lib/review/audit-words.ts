@@ -347,6 +347,9 @@ export function valueWords(key: string, value: unknown, names: Names = new Map()
     if (["comment", "reason", "checksReason", "note", "work"].includes(key)) return `'${shortText(value)}'`;
     return shortText(value);
   }
+  if (key === "stageFractions" && Array.isArray(value) && value.every((v) => typeof v === "number")) {
+    return value.map((v) => `${formatNumber(v * 100)} %`).join(", ");
+  }
   if (Array.isArray(value)) {
     if (value.every((v) => typeof v === "number")) return shortText(value.map((v) => formatNumber(v)).join(", "));
     return shortText(value.map((v) => (typeof v === "string" ? v : typeof v === "number" ? formatNumber(v) : plainWords(Object.keys(obj(v)).join(" ")))).join(", "));
@@ -375,7 +378,8 @@ export function diffEntry(e: Pick<AuditEntryFacts, "before" | "after">, names: N
   const before = obj(e.before);
   const after = obj(e.after);
   const keys = [...new Set([...Object.keys(before), ...Object.keys(after)])];
-  const unit = typeof after.unit === "string" ? after.unit : measurementUnit(after.kind);
+  const specKey = typeof after.key === "string" && after.key in SPEC_KEYS ? SPEC_KEYS[after.key as keyof typeof SPEC_KEYS] : null;
+  const unit = typeof after.unit === "string" ? after.unit : (specKey?.unit ?? measurementUnit(after.kind));
   const out: Change[] = [];
   for (const key of keys) {
     if (HIDDEN_KEYS.has(key) || /(^id$|Id$)/.test(key) && key !== "tickedById") continue;

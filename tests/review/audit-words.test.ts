@@ -171,6 +171,14 @@ describe("before and after as a short diff", () => {
     expect(diffEntry(tick).map(changeText)).toEqual(["stage: — → 2", "torque: — → 10 N·m"]);
   });
 
+  it("a specification figure carries its unit; torque stages read as percentages of the final torque", () => {
+    const fig = entry({ action: "spec.figure_saved", entityType: "engine_spec", jobId: null, jobNumber: null, before: { key: "journal_clearance", min: 0.035, max: 0.072, limit: 0.1, nominal: null }, after: { key: "journal_clearance", min: 0.04, max: 0.072, limit: 0.1, nominal: null } });
+    expect(entryText(fig)).toBe("Rhea Castellan saved figures for camshaft journal oil clearance in the specifications library");
+    expect(diffEntry(fig).map(changeText)).toEqual(["minimum: 0.035 mm → 0.04 mm"]);
+    const sheet = entry({ action: "torque_sheet.changed", entityType: "torque_sheet", before: { finalNm: 10, stageFractions: [0.5, 1] }, after: { finalNm: 12, stageFractions: [0.3, 0.6, 1] } });
+    expect(diffEntry(sheet).map(changeText)).toEqual(["final torque: 10 N·m → 12 N·m", "stages: 50 %, 100 % → 30 %, 60 %, 100 %"]);
+  });
+
   it("leaves out what did not change, ids, and never writes JSON for nested values", () => {
     const e = entry({
       action: "job.status_changed",
