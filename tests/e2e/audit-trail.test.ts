@@ -37,7 +37,7 @@ beforeAll(async () => {
     tags.set(code, (await row.getAttribute("data-valve"))!);
     await row.getByLabel("Serial").fill(serialOf(code));
     await row.getByRole("button", { name: "Save identity" }).click();
-    await expect.poll(() => row.getByText(/saved\.$/).count(), { timeout: 15_000 }).toBe(1);
+    await row.getByText(`Valve ${tags.get(code)} saved.`).waitFor({ timeout: 15_000 });
   }
   await tech.context().close();
 
