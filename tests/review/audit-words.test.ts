@@ -37,7 +37,7 @@ function writtenActions(): Map<string, string> {
   for (const file of files) {
     const lines = readFileSync(file, "utf8").split("\n");
     lines.forEach((line, i) => {
-      if (!/\baction\s*:|toBench\(|recordAudit\(/.test(line)) return;
+      if (!/\baction\s*[:=]|toBench\(|recordAudit\(/.test(line)) return;
       for (const m of line.matchAll(/["'`]([a-z][a-z_]*\.[a-z][a-z_]*)["'`]/g)) found.set(m[1]!, `${file.slice(ROOT.length + 1)}:${i + 1}`);
     });
   }
