@@ -54,3 +54,50 @@ export function formatDay(isoDate: string | null | undefined): string {
   if (!m) return "—";
   return DAY.format(new Date(Date.UTC(Number(m[1]), Number(m[2]) - 1, Number(m[3]))));
 }
+
+const offsetFormats = new Map<string, Intl.DateTimeFormat>();
+
+/** How far the zone's wall clock is ahead of UTC at a moment, in milliseconds. */
+function zoneOffsetMs(t: number, timeZone: string): number {
+  let f = offsetFormats.get(timeZone);
+  if (!f) {
+    f = new Intl.DateTimeFormat("en-US", {
+      timeZone,
+      year: "numeric",
+      month: "2-digit",
+      day: "2-digit",
+      hour: "2-digit",
+      minute: "2-digit",
+      second: "2-digit",
+      hourCycle: "h23",
+    });
+    offsetFormats.set(timeZone, f);
+  }
+  const p = Object.fromEntries(f.formatToParts(new Date(t)).map((x) => [x.type, x.value]));
+  const wall = Date.UTC(Number(p.year), Number(p.month) - 1, Number(p.day), Number(p.hour), Number(p.minute), Number(p.second));
+  return wall - Math.floor(t / 1000) * 1000;
+}
+
+/**
+ * The moment a calendar day ("2026-06-01") begins in a time zone: midnight there, as an instant.
+ * Where a clock change skips midnight, the first moment of the day that exists.
+ */
+export function startOfDayIn(day: string, timeZone: string): Date {
+  const m = /^(\d{4})-(\d{2})-(\d{2})$/.exec(day);
+  if (!m) throw new RangeError(`Not a calendar day: ${day}`);
+  const tz = usableTimeZone(timeZone);
+  const midnightUtc = Date.UTC(Number(m[1]), Number(m[2]) - 1, Number(m[3]));
+  // Twice: the offset at the first guess may differ from the offset at the answer across a change.
+  let t = midnightUtc - zoneOffsetMs(midnightUtc, tz);
+  t = midnightUtc - zoneOffsetMs(t, tz);
+  // A skipped midnight (clocks go forward at 00:00) lands on the previous day: step to the change.
+  if (t + zoneOffsetMs(t, tz) < midnightUtc) t = midnightUtc - zoneOffsetMs(t, tz);
+  return new Date(t);
+}
+
+/** The calendar day after a YYYY-MM-DD day. */
+export function nextDay(day: string): string {
+  const d = new Date(`${day}T00:00:00.000Z`);
+  d.setUTCDate(d.getUTCDate() + 1);
+  return d.toISOString().slice(0, 10);
+}

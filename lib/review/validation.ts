@@ -34,12 +34,13 @@ export const seatReopenSchema = z.object({ seatId: uuidText("Unknown seat."), jo
 export const headReviewSchema = z.object({ jobId: uuidText("Unknown job."), decision, comment });
 export const headReopenSchema = z.object({ jobId: uuidText("Unknown job."), reason });
 
-const optionalUuid = z
-  .string()
-  .trim()
-  .optional()
-  .transform((v) => (v ? v : undefined))
-  .pipe(z.string().uuid("Choose from the list.").optional());
+const optionalUuid = (what: string) =>
+  z
+    .string()
+    .trim()
+    .optional()
+    .transform((v) => (v ? v : undefined))
+    .pipe(z.string().uuid(`That is not a ${what} of this shop: choose one from the list.`).optional());
 
 const optionalDay = z
   .string()
@@ -58,11 +59,23 @@ const optionalDay = z
 /** The audit trail's filters, from a page's searchParams or a route's query string. */
 export const auditFilterSchema = z
   .object({
-    job: optionalUuid,
-    person: optionalUuid,
+    job: optionalUuid("job"),
+    person: optionalUuid("person"),
     from: optionalDay,
     to: optionalDay,
-    page: z.coerce.number({ error: "Page must be a number." }).int().min(1).max(100_000).default(1),
+    // Keyset paging: entries older than this entry's id (the "Older" link gives it).
+    before: z
+      .string()
+      .trim()
+      .optional()
+      .transform((v) => (v ? v : undefined))
+      .pipe(
+        z
+          .string()
+          .regex(/^[1-9]\d{0,14}$/, "Older entries are asked for by an entry number, like before=1200: follow the page's Older link.")
+          .transform(Number)
+          .optional(),
+      ),
   })
   .refine((f) => !f.from || !f.to || f.from <= f.to, { message: "The start date is after the end date.", path: ["to"] });
 

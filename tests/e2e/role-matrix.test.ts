@@ -397,6 +397,13 @@ const PROBES: Record<string, Probe> = {
         entries: expect.any(Array),
       }),
   },
+  "GET /api/audit/csv": {
+    request: () => ({ path: "/api/audit/csv" }),
+    allowed: async (res) => {
+      expect(res.headers.get("content-type")).toBe("text/csv; charset=utf-8");
+      expect((await res.text()).replace(/^\uFEFF/, "").split("\r\n")[0]).toBe("when,person,entry,changes,job,seat,action,at_iso,entry_id");
+    },
+  },
   "GET /api/heads/[headId]/sheets": {
     request: (_p, r) => ({ path: `/api/heads/${r.headId}/sheets` }),
     allowed: async (res, _p, r) => {

@@ -647,6 +647,7 @@ describe("route handlers, for another shop's supervisor", () => {
   > = {
     "GET /api/jobs": () => ({ path: "/api/jobs" }),
     "GET /api/audit": () => ({ path: "/api/audit" }),
+    "GET /api/audit/csv": () => ({ path: "/api/audit/csv" }),
     "GET /api/heads/[headId]/sheets": () => ({ path: `/api/heads/${mine.headId}/sheets` }),
     "GET /api/photos/[photoId]": () => ({ path: `/api/photos/${mine.photoId}` }),
     "GET /api/seats/[seatId]": () => ({ path: `/api/seats/${mine.seatId}` }),

@@ -5,6 +5,7 @@
 import { randomUUID } from "node:crypto";
 import { NextRequest } from "next/server";
 import * as auditRoute from "@/app/api/audit/route";
+import * as auditCsvRoute from "@/app/api/audit/csv/route";
 import * as sheetsRoute from "@/app/api/heads/[headId]/sheets/route";
 import * as jobsRoute from "@/app/api/jobs/route";
 import * as photoRoute from "@/app/api/photos/[photoId]/route";
@@ -147,6 +148,7 @@ const postPhoto = (seatId: string, body: Body, headers: Record<string, string> =
   seatPhotosRoute.POST(request(`/api/seats/${seatId}/photos`, "POST", body, headers), params({ seatId }));
 
 const getAudit = (query: string) => auditRoute.GET(request(`/api/audit?${query}`, "GET"), params({}));
+const getAuditCsv = (query: string) => auditCsvRoute.GET(request(`/api/audit/csv?${query}`, "GET"), params({}));
 
 /** Ids that try to climb out of their path segment or smuggle something in. */
 const TRAVERSAL_ID = "..%2F..%2Fetc%2Fpasswd";
@@ -482,11 +484,12 @@ export const routeCases: RouteCase[] = [
   // GET /api/audit
   ...(
     [
-      ["page=NaN", "page=NaN"],
-      ["page=Infinity", "page=Infinity"],
-      ["page=1e309", "page=1e309"],
-      ["a negative page", "page=-1"],
-      ["a fractional page", "page=1.5"],
+      ["before=NaN", "before=NaN"],
+      ["before=Infinity", "before=Infinity"],
+      ["before=1e309", "before=1e309"],
+      ["a negative cursor", "before=-1"],
+      ["a fractional cursor", "before=1.5"],
+      ["a cursor past what a bigint holds", "before=99999999999999999999"],
       ["a job id that climbs paths", `job=${TRAVERSAL_ID}`],
       ["a person id that is SQL", "person=' or 1=1 --"],
       ["a date that is no date", "from=yesterday"],
@@ -499,7 +502,22 @@ export const routeCases: RouteCase[] = [
       ["year 1", "from=0001-01-01"],
     ] as const
   ).map(([name, query]): RouteCase => ({ group: "audit trail", name, as: RHEA, status: 400, send: () => getAudit(query) })),
-  { group: "audit trail", name: "a technician", as: INES, status: 403, send: () => getAudit("page=1") },
+  { group: "audit trail", name: "a technician", as: INES, status: 403, send: () => getAudit("before=1") },
+
+  // GET /api/audit/csv: the same filters, every page at once.
+  ...(
+    [
+      ["a date that is no date", "from=yesterday", /^The audit trail's filters are not valid: Use a date like 2026-03-14\.$/],
+      ["a day not on the calendar", "to=2026-02-31", /^The audit trail's filters are not valid: That day is not on the calendar\.$/],
+      ["a day outside the years taken", "to=9999-12-31", /^The audit trail's filters are not valid: Use a date between 1900 and 9998\.$/],
+      ["a start after the end", "from=2026-03-14&to=2026-03-01", /start date is after the end date/],
+      ["a job number where the job's id goes", "job=MHW-0141", /^The audit trail's filters are not valid: That is not a job of this shop: choose one from the list\.$/],
+      ["a job id that climbs paths", `job=${TRAVERSAL_ID}`, /not a job of this shop/],
+      ["a person id with a NUL", `person=${encodeURIComponent(NUL_ID)}`, /not a person of this shop/],
+    ] as const
+  ).map(([name, query, message]): RouteCase => ({ group: "audit export", name, as: RHEA, status: 400, message, send: () => getAuditCsv(query) })),
+  { group: "audit export", name: "a technician", as: INES, status: 403, send: () => getAuditCsv("") },
+  { group: "audit export", name: "nobody signed in", as: null, status: 401, send: () => getAuditCsv("") },
 ];
 
 // ------------------------------------------------------------------ server actions

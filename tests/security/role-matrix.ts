@@ -261,6 +261,15 @@ export const ROUTE_MATRIX: Record<string, CrossShopRow<ApiOutcome, CrossShopApi>
     otherShop: "own-shop",
     why: "The audit trail needs jobs:audit; another shop's trail holds none of this shop's entries.",
   },
+  "GET /api/audit/csv": {
+    anonymous: 401,
+    technicianOwnJob: 403,
+    technicianOtherJob: 403,
+    supervisor: 200,
+    admin: 200,
+    otherShop: "own-shop",
+    why: "The audit trail's CSV export needs jobs:audit, as the trail does; another shop's export holds none of this shop's entries.",
+  },
   "GET /api/heads/[headId]/sheets": {
     anonymous: 401,
     technicianOwnJob: 200,

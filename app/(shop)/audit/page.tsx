@@ -1,67 +1,83 @@
 import { forbidden } from "next/navigation";
 import type { Metadata } from "next";
-import { getShopTimeZone } from "@/db/queries/shops";
-import { formatWhen } from "@/lib/dates";
 import Link from "next/link";
 import { getDb } from "@/db/client";
+import { PrintButton } from "@/components/review/print-button";
+import { formatDay, formatWhen } from "@/lib/dates";
 import { currentActor } from "@/lib/auth/guard";
 import { can } from "@/lib/auth/roles";
 import { fieldErrorsOf } from "@/lib/errors";
-import { auditFilterOptions, listAuditEntries, type AuditRow } from "@/lib/review/audit-log";
+import { auditFilterOptions, listAuditEntries, shopNames, type AuditRow } from "@/lib/review/audit-log";
+import { auditQueryString, auditQueryValues } from "@/lib/review/audit-query";
+import { describeEntry, describeGroup, diffEntry, groupBursts, type AuditGroup, type Names, type Part } from "@/lib/review/audit-words";
 import { auditFilterSchema, type AuditFilter } from "@/lib/review/validation";
 
 export const metadata: Metadata = { title: "Audit trail" };
 
 const first = (v: string | string[] | undefined) => (Array.isArray(v) ? v[0] : v);
 
-/** before/after on one line; long values are cut so a row stays readable on a phone. */
-function compact(value: unknown): string {
-  if (value === null || value === undefined) return "—";
-  const text = JSON.stringify(value);
-  return text.length > 240 ? `${text.slice(0, 239)}…` : text;
+// Printed: no navigation, no filter form, every row whole on its page.
+const PRINT_CSS = `
+@page { size: A4; margin: 14mm 12mm; }
+@media print {
+  body > div > header { display: none !important; }
+  main { max-width: none !important; padding: 0 !important; }
+  body { background: white !important; }
+  .audit-row { break-inside: avoid; }
+  a { color: inherit !important; text-decoration: none !important; }
 }
-
-function pageHref(filter: AuditFilter, page: number): string {
-  const q = new URLSearchParams();
-  if (filter.job) q.set("job", filter.job);
-  if (filter.person) q.set("person", filter.person);
-  if (filter.from) q.set("from", filter.from);
-  if (filter.to) q.set("to", filter.to);
-  if (page > 1) q.set("page", String(page));
-  const s = q.toString();
-  return s ? `/audit?${s}` : "/audit";
-}
-
+`;
 
 export default async function AuditPage({ searchParams }: PageProps<"/audit">) {
   const actor = await currentActor();
   if (!actor || !can(actor.role, "jobs:audit")) forbidden();
   const raw = await searchParams;
-  const parsed = auditFilterSchema.safeParse({
-    job: first(raw.job),
-    person: first(raw.person),
-    from: first(raw.from),
-    to: first(raw.to),
-    page: first(raw.page),
-  });
+  const parsed = auditFilterSchema.safeParse(auditQueryValues((k) => first(raw[k])));
   // A bad filter (an edited address) shows its message and the unfiltered trail, not an error page.
-  const filter: AuditFilter = parsed.success ? parsed.data : { page: 1 };
+  const filter: AuditFilter = parsed.success ? parsed.data : {};
   const problems = parsed.success ? [] : Object.values(fieldErrorsOf(parsed.error)).flat();
   const db = await getDb();
-  const timeZone = await getShopTimeZone(db, actor.shopId);
-  const [options, result] = await Promise.all([auditFilterOptions(db, actor.shopId), listAuditEntries(db, actor.shopId, filter)]);
+  const [options, result, names] = await Promise.all([
+    auditFilterOptions(db, actor.shopId),
+    listAuditEntries(db, actor.shopId, filter),
+    shopNames(db, actor.shopId),
+  ]);
+  const { timeZone } = result;
   const filtered = Boolean(filter.job || filter.person || filter.from || filter.to);
+  const groups = groupBursts(result.entries);
+  const jobNumber = filter.job ? options.jobs.find((j) => j.id === filter.job)?.number : undefined;
+  const personName = filter.person ? names.get(filter.person) : undefined;
+  const heading = [
+    jobNumber ? `job ${jobNumber}` : filter.job ? "a job of another shop" : "every job",
+    personName ? `by ${personName}` : filter.person ? "by nobody of this shop" : "by everyone",
+    filter.from && filter.to
+      ? `from ${formatDay(filter.from)} to ${formatDay(filter.to)}`
+      : filter.from
+        ? `from ${formatDay(filter.from)}`
+        : filter.to
+          ? `up to ${formatDay(filter.to)}`
+          : "all dates",
+  ].join(", ");
+  const query = auditQueryString(filter);
 
   return (
-    <div className="flex flex-col gap-6">
+    <div className="flex flex-col gap-6 print:gap-3">
+      <style>{PRINT_CSS}</style>
       <div>
         <h1 className="text-2xl font-bold tracking-tight">Audit trail</h1>
-        <p className="text-stone-600">
-          Every change of state, sign-off, reopening and measurement, newest first. Entries cannot be edited or deleted. Times are UTC.
+        <p className="text-stone-600 print:hidden">
+          Every change of state, sign-off, reopening and measurement, newest first. Entries cannot be edited or deleted. Times and dates are the
+          shop&apos;s ({timeZone}).
+        </p>
+        <h2 className="mt-1 text-lg font-semibold" data-testid="audit-filters-heading">
+          Showing {heading}
+        </h2>
+        <p className="hidden text-sm print:block">
+          Printed {formatWhen(new Date(), timeZone)} · {result.total} {result.total === 1 ? "entry" : "entries"} · times in {timeZone}
         </p>
       </div>
 
-      <form method="get" action="/audit" className="grid gap-3 rounded-xl border border-stone-300 bg-white p-4 sm:grid-cols-5" aria-label="Filter the audit trail">
+      <form method="get" action="/audit" className="grid gap-3 rounded-xl border border-stone-300 bg-white p-4 sm:grid-cols-5 print:hidden" aria-label="Filter the audit trail">
         <label className="flex flex-col gap-1 text-sm font-semibold">
           Job
           <select name="job" defaultValue={filter.job ?? ""} className="min-h-12 rounded-lg border border-stone-400 px-2 font-normal">
@@ -104,8 +120,20 @@ export default async function AuditPage({ searchParams }: PageProps<"/audit">) {
         </div>
       </form>
 
+      <div className="flex flex-wrap items-center gap-3 print:hidden">
+        <a
+          href={`/api/audit/csv${query ? `?${query}` : ""}`}
+          download
+          className="inline-flex min-h-12 items-center rounded-lg border-2 border-ink px-4 font-semibold"
+          data-testid="audit-csv"
+        >
+          Download CSV
+        </a>
+        <PrintButton label="Print" />
+      </div>
+
       {problems.length ? (
-        <p role="alert" className="rounded-lg border border-rose-300 bg-rose-50 p-3 text-rose-900">
+        <p role="alert" className="rounded-lg border border-rose-300 bg-rose-50 p-3 text-rose-900 print:hidden">
           {problems.join(" ")} Showing the whole trail instead.
         </p>
       ) : null}
@@ -116,24 +144,33 @@ export default async function AuditPage({ searchParams }: PageProps<"/audit">) {
         </p>
       ) : (
         <ol className="flex flex-col gap-2" data-testid="audit-list">
-          {result.entries.map((e) => (
-            <AuditItem key={e.id} entry={e} timeZone={timeZone} />
-          ))}
+          {groups.map((g) =>
+            g.entries.length === 1 ? (
+              <AuditItem key={g.entries[0]!.id} entry={g.entries[0]!} timeZone={timeZone} names={names} />
+            ) : (
+              <AuditBurst key={g.entries[0]!.id} group={g} timeZone={timeZone} names={names} />
+            ),
+          )}
         </ol>
       )}
 
-      <nav aria-label="Pages" className="flex items-center justify-between gap-2 text-sm">
+      <nav aria-label="Pages" className="flex items-center justify-between gap-2 text-sm print:hidden">
         <span>
-          {result.total} {result.total === 1 ? "entry" : "entries"} · page {result.page} of {result.pageCount}
+          {result.total} {result.total === 1 ? "entry" : "entries"} {filtered ? "match" : "in all"}
+          {filter.before ? " · older entries" : ""}
         </span>
         <span className="flex gap-2">
-          {result.page > 1 ? (
-            <Link href={pageHref(filter, result.page - 1)} className="inline-flex min-h-12 items-center rounded-lg border-2 border-ink px-4 font-semibold">
-              Newer
+          {filter.before ? (
+            <Link href={`/audit${query ? `?${query}` : ""}`} className="inline-flex min-h-12 items-center rounded-lg border-2 border-ink px-4 font-semibold">
+              Newest
             </Link>
           ) : null}
-          {result.page < result.pageCount ? (
-            <Link href={pageHref(filter, result.page + 1)} className="inline-flex min-h-12 items-center rounded-lg border-2 border-ink px-4 font-semibold">
+          {result.nextBefore ? (
+            <Link
+              href={`/audit?${auditQueryString(filter, { before: result.nextBefore })}`}
+              className="inline-flex min-h-12 items-center rounded-lg border-2 border-ink px-4 font-semibold"
+              data-testid="audit-older"
+            >
               Older
             </Link>
           ) : null}
@@ -143,32 +180,79 @@ export default async function AuditPage({ searchParams }: PageProps<"/audit">) {
   );
 }
 
-function AuditItem({ entry, timeZone }: { entry: AuditRow; timeZone: string }) {
+function Sentence({ parts }: { parts: Part[] }) {
   return (
-    <li className="rounded-xl border border-stone-300 bg-white p-3">
+    <>
+      {parts.map((p, i) =>
+        typeof p === "string" ? (
+          <span key={i}>{p}</span>
+        ) : "job" in p ? (
+          <Link key={i} href={`/jobs/${p.job.id}`} className="font-semibold text-brass-dark underline underline-offset-2">
+            {p.job.number}
+          </Link>
+        ) : (
+          <Link key={i} href={`/review/${p.seat.id}`} className="font-mono font-semibold text-brass-dark underline underline-offset-2" title="Listen back to this seat">
+            {p.seat.code}
+          </Link>
+        ),
+      )}
+    </>
+  );
+}
+
+function Changes({ entry, names }: { entry: AuditRow; names: Names }) {
+  const changes = diffEntry(entry, names);
+  if (changes.length === 0) return null;
+  return (
+    <ul className="mt-1 flex flex-col gap-0.5 text-sm text-stone-700" data-testid="audit-changes">
+      {changes.map((c) => (
+        <li key={c.key} className="break-words">
+          <span className="font-semibold">{c.label}:</span> {c.from} → {c.to}
+        </li>
+      ))}
+    </ul>
+  );
+}
+
+function AuditItem({ entry, timeZone, names }: { entry: AuditRow; timeZone: string; names: Names }) {
+  return (
+    <li className="audit-row rounded-xl border border-stone-300 bg-white p-3 print:rounded-none print:border-0 print:border-b print:p-1" data-testid="audit-entry" data-action={entry.action}>
       <div className="flex flex-wrap items-baseline justify-between gap-2">
-        <span className="font-semibold">
-          {entry.action}{" "}
-          <span className="font-normal text-stone-600">
-            on {entry.entityType}
-            {entry.jobNumber ? ` · ${entry.jobNumber}` : ""}
-          </span>
-        </span>
+        <p>
+          <Sentence parts={describeEntry(entry, names)} />
+        </p>
         <time dateTime={entry.at} className="text-sm text-stone-600">
           {formatWhen(entry.at, timeZone, { seconds: true })}
         </time>
       </div>
-      <p className="text-sm">{entry.actorName ?? "The system"}</p>
-      <dl className="mt-1 grid gap-1 text-xs sm:grid-cols-2">
-        <div className="min-w-0">
-          <dt className="font-semibold">Before</dt>
-          <dd className="break-all font-mono">{compact(entry.before)}</dd>
-        </div>
-        <div className="min-w-0">
-          <dt className="font-semibold">After</dt>
-          <dd className="break-all font-mono">{compact(entry.after)}</dd>
-        </div>
-      </dl>
+      <Changes entry={entry} names={names} />
+    </li>
+  );
+}
+
+function AuditBurst({ group, timeZone, names }: { group: AuditGroup<AuditRow>; timeZone: string; names: Names }) {
+  const newest = group.entries[0]!;
+  const oldest = group.entries.at(-1)!;
+  return (
+    <li className="audit-row rounded-xl border border-stone-300 bg-white p-3 print:rounded-none print:border-0 print:border-b print:p-1" data-testid="audit-burst" data-action={newest.action}>
+      <details>
+        <summary className="flex min-h-11 cursor-pointer flex-wrap items-baseline justify-between gap-2">
+          <span>
+            <Sentence parts={describeGroup(group, names)} />{" "}
+            <span className="ml-1 text-sm text-stone-600">({group.entries.length} entries — open to see each)</span>
+          </span>
+          <span className="text-sm text-stone-600">
+            <time dateTime={oldest.at}>{formatWhen(oldest.at, timeZone, { seconds: true })}</time>
+            {" – "}
+            <time dateTime={newest.at}>{formatWhen(newest.at, timeZone, { seconds: true }).replace(/^.*, /, "")}</time>
+          </span>
+        </summary>
+        <ol className="mt-2 flex flex-col gap-2 border-l-2 border-stone-200 pl-3">
+          {group.entries.map((e) => (
+            <AuditItem key={e.id} entry={e} timeZone={timeZone} names={names} />
+          ))}
+        </ol>
+      </details>
     </li>
   );
 }
