@@ -140,7 +140,7 @@ export default async function JobPage({ params }: PageProps<"/jobs/[jobId]">) {
                     valveTag: s.valve?.tag ?? null,
                     sentBack: (() => {
                       const latest = reviews.find((r) => r.seatId === s.id);
-                      return s.state === "sent_back" && latest?.decision === "sent_back" ? { comment: latest.comment, by: latest.reviewerName } : null;
+                      return s.state === "sent_back" && latest?.decision === "sent_back" ? { comment: latest.comment ?? "", by: latest.reviewerName } : null;
                     })(),
                   }))}
                 />
