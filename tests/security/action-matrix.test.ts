@@ -352,6 +352,15 @@ const CASES: Record<string, Case> = {
         }),
       );
   },
+  "lib/actions/review.ts#submitApproveSettled": async (c) => {
+    const seatId = seatOf(c, "3E1");
+    await setSeat(seatId, "settled");
+    return () => {
+      const f = form({ jobId: c.job.jobId, comment: "", checksReason: "Checked with the head assembled." });
+      f.append("seatIds", seatId);
+      return action("lib/actions/review.ts#submitApproveSettled")(prev, f);
+    };
+  },
   "lib/actions/review.ts#submitSeatReopen": async (c) => {
     const seatId = seatOf(c, "1E1");
     await setSeat(seatId, "approved");
