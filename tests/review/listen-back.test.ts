@@ -52,11 +52,9 @@ async function seatsOf(number: string) {
     .orderBy(asc(seats.cylinder), asc(seats.kind), asc(seats.position));
   return rows.map((r) => ({ ...r.seat, code: seatCode(r.seat) }));
 }
-/** Every done-check of a seat recorded as passed, as the bench records them. */
-async function passAllChecks(seatId: string) {
-  for (const kind of ["contact_ring", "marking_compound", "leak_test"] as const) {
-    await recordDoneCheck(db(), rhea, { seatId, kind, result: "pass" });
-  }
+/** A failed leak test recorded on a seat, as the bench records it (the demo's settled seats have all three passed). */
+async function failLeakTest(seatId: string) {
+  await recordDoneCheck(db(), rhea, { seatId, kind: "leak_test", result: "fail", note: "Solvent through in ten seconds." });
 }
 async function failure(p: Promise<unknown>): Promise<Error> {
   return p.then(
@@ -71,7 +69,6 @@ describe("one seat, decided on the listen-back page", () => {
   it("is approved with no comment at all: the review stores no comment, the audit entry says so", async () => {
     const job = await jobOf("MHW-0144");
     const [first] = await seatsOf("MHW-0144");
-    await passAllChecks(first!.id);
     const r = await actions.submitSeatReview(
       initialActionState,
       h.form({ seatId: first!.id, jobId: job.id, decision: "approved", comment: "", expectedState: "settled" }),
@@ -87,10 +84,11 @@ describe("one seat, decided on the listen-back page", () => {
   it("an approval without a comment still needs the checks reason when the done-checks are not all passed", async () => {
     const job = await jobOf("MHW-0144");
     const seat = (await seatsOf("MHW-0144"))[2]!;
+    await failLeakTest(seat.id);
     const before = { reviews: await count(reviews), audit: await count(auditEntries) };
     const r = await actions.submitSeatReview(initialActionState, h.form({ seatId: seat.id, jobId: job.id, decision: "approved", comment: "" }));
     expect(r.ok).toBe(false);
-    expect(r.fieldErrors.checksReason?.[0]).toMatch(/done-checks are not all passed/);
+    expect(r.fieldErrors.checksReason?.[0]).toBe(`Seat ${seat.code}'s done-checks are not all passed (leak test failed). Give a reason for approving it without them, or send it back.`);
     expect({ reviews: await count(reviews), audit: await count(auditEntries) }).toEqual(before);
     expect((await b.seatRow(db(), seat.id)).state).toBe("settled");
   });
@@ -174,8 +172,8 @@ describe("Approve every settled seat", () => {
   it("approves the seats with passed done-checks, each with its own review and audit entry, and lists the others with why", async () => {
     const job = await jobOf("MHW-0145");
     const all = await seatsOf("MHW-0145");
-    await passAllChecks(all[0]!.id);
-    await passAllChecks(all[3]!.id);
+    // 1I1 and 2E1 keep the three passed checks the bench recorded; the others' leak tests failed.
+    for (const [i, s] of all.entries()) if (i !== 0 && i !== 3) await failLeakTest(s.id);
     const before = { reviews: await count(reviews), audit: await count(auditEntries) };
     const f = h.form({ jobId: job.id, comment: "" });
     for (const s of all) f.append("seatIds", s.id);
@@ -184,10 +182,10 @@ describe("Approve every settled seat", () => {
     expect(r.saved!.approved).toEqual([all[0]!.code, all[3]!.code]);
     expect(r.saved!.skipped.map((s) => s.code)).toEqual(all.filter((_, i) => i !== 0 && i !== 3).map((s) => s.code));
     expect(r.saved!.skipped[0]!.why).toBe(
-      "done-checks not all passed (contact ring not recorded; marking-compound test not recorded; leak test not recorded); approving it needs a reason",
+      "done-checks not all passed (leak test failed); approving it needs a reason",
     );
     expect(r.message).toBe(`2 seats approved: ${all[0]!.code}, ${all[3]!.code}. 6 seats left as they were (listed below).`);
-    // Two reviews, two audit entries (plus the six done-check entries recorded before the count).
+    // Two reviews, two audit entries: one of each per seat approved.
     expect({ reviews: await count(reviews), audit: await count(auditEntries) }).toEqual({ reviews: before.reviews + 2, audit: before.audit + 2 });
     const entries = await db()
       .select()
@@ -227,7 +225,7 @@ describe("Approve every settled seat", () => {
     expect(entries).toHaveLength(6);
     expect(entries[0]!.after).toMatchObject({
       checksReason: "Leak test done on the whole head at assembly.",
-      checksShortfall: "contact ring not recorded; marking-compound test not recorded; leak test not recorded",
+      checksShortfall: "leak test failed",
     });
   });
 
