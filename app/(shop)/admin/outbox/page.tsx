@@ -163,8 +163,8 @@ function OpenedMessage({ mail, timeZone }: { mail: OpenedMail; timeZone: string 
         </dd>
         <dt className="font-semibold">Status</dt>
         <dd data-testid="outbox-message-status">
-          <span className={`mr-2 rounded-full px-2.5 py-0.5 font-semibold ${status.className}`}>{status.label}</span>
-          {statusSentence(mail, timeZone)}
+          <span className={`mr-2 rounded-full px-2.5 py-0.5 font-semibold ${status.className}`}>{status.label}</span>{" "}
+          <span>{statusSentence(mail, timeZone)}</span>
         </dd>
         {mail.lastError ? (
           <>
