@@ -250,7 +250,7 @@ async function failedMail(c: CaseContext): Promise<string> {
     html: "<p>x</p>",
     text: "x",
   });
-  await db().update(mailOutbox).set({ status: "failed", attempts: 5 }).where(eq(mailOutbox.id, id));
+  await db().update(mailOutbox).set({ status: "failed", attempts: 5, failures: 5 }).where(eq(mailOutbox.id, id));
   return id;
 }
 
