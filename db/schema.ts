@@ -551,7 +551,8 @@ export const reviews = pgTable(
       .references(() => jobs.id, { onDelete: "cascade" }),
     seatId: uuid("seat_id").references(() => seats.id, { onDelete: "cascade" }),
     decision: reviewDecision("decision").notNull(),
-    comment: text("comment").notNull(),
+    // Null when a seat was approved without a comment; a send-back or reopening always has one.
+    comment: text("comment"),
     // Why a seat was approved without all its done-checks recorded as passed; null otherwise.
     checksReason: text("checks_reason"),
     reviewerId: uuid("reviewer_id")
@@ -561,7 +562,7 @@ export const reviews = pgTable(
   },
   (t) => [
     index("reviews_job_idx").on(t.jobId, t.createdAt),
-    check("reviews_comment_length", sql`length(${t.comment}) between 1 and 2000`),
+    check("reviews_comment_length", sql`${t.comment} is null or length(${t.comment}) between 1 and 2000`),
     check("reviews_checks_reason_length", sql`${t.checksReason} is null or length(${t.checksReason}) between 1 and 2000`),
   ],
 );
@@ -578,7 +579,10 @@ export const mailOutbox = pgTable(
     html: text("html").notNull(),
     text: text("text").notNull(),
     status: mailStatus("status").notNull().default("queued"),
+    // Every send tried, the one that went out included; never reset.
     attempts: integer("attempts").notNull().default(0),
+    // Failed sends since the message was queued or sent again: the back-off and giving up count these.
+    failures: integer("failures").notNull().default(0),
     lastError: text("last_error"),
     nextAttemptAt: timestamp("next_attempt_at", { withTimezone: true }).notNull().defaultNow(),
     sentAt: timestamp("sent_at", { withTimezone: true }),

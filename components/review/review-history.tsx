@@ -29,7 +29,7 @@ export function ReviewHistory({ reviews, emptyText }: { reviews: ReviewRow[]; em
               {formatWhen(r.createdAt, timeZone)}
             </time>
           </div>
-          <p className="mt-1 whitespace-pre-wrap">{r.comment}</p>
+          {r.comment !== null ? <p className="mt-1 whitespace-pre-wrap">{r.comment}</p> : <p className="mt-1 text-stone-600">No comment.</p>}
           {r.checksReason ? (
             <p className="mt-1 whitespace-pre-wrap rounded bg-amber-50 px-2 py-1 text-amber-950" data-testid="checks-reason">
               <span className="font-semibold">Approved without all done-checks:</span> {r.checksReason}

@@ -4,6 +4,7 @@ import { useActionState } from "react";
 import type { ReviewRow } from "@/db/queries/reviews";
 import type { SeatState } from "@/db/schema";
 import { DoneChecksSummary } from "@/components/bench/done-checks-summary";
+import { Sparkline } from "@/components/report/sparkline";
 import type { SeatDoneChecks } from "@/lib/bench/done-checks";
 import { submitSeatReopen, submitSeatReview } from "@/lib/actions/review";
 import { initialActionState } from "@/lib/actions/state";
@@ -21,6 +22,12 @@ export interface SeatReviewPanelProps {
   headClosed: boolean;
   /** The seat's done-checks (contact ring, marking compound, leak test). */
   doneChecks?: SeatDoneChecks;
+  /** The seat's fade curve (the fine stage's contrasts, or the coarse stage's before any fine) and the settled band. */
+  curve?: { contrastsDb: number[]; thresholdDb: number };
+  /** The verdicts in words, e.g. "Coarse: settled at stroke 14 · Fine: settled at stroke 9". */
+  verdict?: string;
+  /** False where the page shows the done-checks already (listen-back); they still decide the reason field. */
+  showDoneChecks?: boolean;
 }
 
 const STATE_LABELS: Record<SeatState, string> = {
@@ -32,8 +39,12 @@ const STATE_LABELS: Record<SeatState, string> = {
   sent_back: "Sent back",
 };
 
-/** Approve or send back one seat with a comment, or reopen an approved one with a reason. */
-export function SeatReviewPanel({ jobId, seat, reviews, canReview, headClosed, doneChecks }: SeatReviewPanelProps) {
+/**
+ * Approve one seat (a comment is optional) or send it back (a comment says what to redo), or
+ * reopen an approved one with a reason. The seat's state as shown goes with the decision, so a
+ * seat that changed meanwhile answers a conflict instead of a decision on what was not seen.
+ */
+export function SeatReviewPanel({ jobId, seat, reviews, canReview, headClosed, doneChecks, curve, verdict, showDoneChecks = true }: SeatReviewPanelProps) {
   const [reviewState, reviewAction, reviewing] = useActionState(submitSeatReview, initialActionState);
   const canApprove = seat.state === "settled";
   const canSendBack = seat.state === "settled" || seat.state === "stalled" || seat.state === "lapping";
@@ -45,7 +56,18 @@ export function SeatReviewPanel({ jobId, seat, reviews, canReview, headClosed, d
         Seat {seat.code} · <span className="font-normal">{STATE_LABELS[seat.state]}</span>
       </h3>
 
-      {doneChecks ? (
+      {curve || verdict ? (
+        <div className="flex flex-wrap items-center gap-3" data-testid="seat-review-curve">
+          {curve ? <Sparkline values={curve.contrastsDb} thresholdDb={curve.thresholdDb} width={160} height={40} /> : null}
+          {verdict ? (
+            <p className="text-sm" data-testid="seat-review-verdict">
+              {verdict}
+            </p>
+          ) : null}
+        </div>
+      ) : null}
+
+      {doneChecks && showDoneChecks ? (
         <div className="rounded-lg bg-stone-50 p-2" data-testid="seat-done-checks">
           <h4 className="text-sm font-semibold text-stone-600">Done-checks</h4>
           <DoneChecksSummary checks={doneChecks} />
@@ -56,12 +78,12 @@ export function SeatReviewPanel({ jobId, seat, reviews, canReview, headClosed, d
         <form action={reviewAction} className="flex flex-col gap-2">
           <input type="hidden" name="jobId" value={jobId} />
           <input type="hidden" name="seatId" value={seat.id} />
+          <input type="hidden" name="expectedState" value={seat.state} />
           <label className="flex flex-col gap-1 text-sm font-semibold">
             Comment
+            <span className="font-normal text-stone-600">Optional to approve; needed to send back.</span>
             <textarea
               name="comment"
-              required
-              minLength={3}
               maxLength={2000}
               rows={3}
               aria-invalid={Boolean(reviewState.fieldErrors.comment)}

@@ -11,7 +11,8 @@ export interface ReviewRow {
   seatId: string | null;
   seatCode: string | null;
   decision: "approved" | "sent_back" | "reopened";
-  comment: string;
+  /** Null when a seat was approved without a comment. */
+  comment: string | null;
   /** Why the seat was approved without all its done-checks passed; null otherwise. */
   checksReason: string | null;
   reviewerId: string;

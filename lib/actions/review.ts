@@ -6,8 +6,8 @@
 import { revalidatePath } from "next/cache";
 import { getDb } from "@/db/client";
 import { requireActor } from "@/lib/auth/guard";
-import { reopenHead, reopenSeat, reviewHead, reviewSeat } from "@/lib/review/service";
-import { headReopenSchema, headReviewSchema, seatReopenSchema, seatReviewSchema } from "@/lib/review/validation";
+import { approveSettledSeats, reopenHead, reopenSeat, reviewHead, reviewSeat } from "@/lib/review/service";
+import { approveSettledSchema, headReopenSchema, headReviewSchema, seatReopenSchema, seatReviewSchema } from "@/lib/review/validation";
 import { actionFailure, type ActionState } from "./state";
 
 const text = (f: FormData, k: string) => {
@@ -25,9 +25,45 @@ function done(jobId: string, message: string): ActionState {
 export async function submitSeatReview(_prev: ActionState, f: FormData): Promise<ActionState> {
   try {
     const actor = await requireActor("jobs:audit");
-    const v = seatReviewSchema.parse({ seatId: text(f, "seatId"), jobId: text(f, "jobId"), decision: text(f, "decision"), comment: text(f, "comment"), checksReason: text(f, "checksReason") });
+    const v = seatReviewSchema.parse({
+      seatId: text(f, "seatId"),
+      jobId: text(f, "jobId"),
+      decision: text(f, "decision"),
+      comment: text(f, "comment"),
+      checksReason: text(f, "checksReason"),
+      expectedState: text(f, "expectedState"),
+    });
     const r = await reviewSeat(await getDb(), actor, v);
+    // The listen-back page shows the decision too.
+    revalidatePath(`/review/${r.seatId}`);
     return done(v.jobId, r.state === "approved" ? `Seat ${r.code} approved; it is read-only now.` : `Seat ${r.code} sent back to the bench.`);
+  } catch (err) {
+    return actionFailure(err);
+  }
+}
+
+/** What "Approve every settled seat" saved: the seats approved and the ones skipped, with why. */
+export interface ApproveSettledSaved {
+  approved: string[];
+  skipped: Array<{ code: string; why: string }>;
+}
+
+export async function submitApproveSettled(_prev: ActionState<ApproveSettledSaved>, f: FormData): Promise<ActionState<ApproveSettledSaved>> {
+  try {
+    const actor = await requireActor("jobs:audit");
+    const v = approveSettledSchema.parse({
+      jobId: text(f, "jobId"),
+      seatIds: f.getAll("seatIds").filter((x) => typeof x === "string"),
+      comment: text(f, "comment"),
+      checksReason: text(f, "checksReason"),
+    });
+    const r = await approveSettledSeats(await getDb(), actor, v);
+    const words =
+      r.approved.length === 0
+        ? "No seat approved."
+        : `${r.approved.length === 1 ? "Seat" : `${r.approved.length} seats`} approved: ${r.approved.join(", ")}.`;
+    const skippedWords = r.skipped.length ? ` ${r.skipped.length === 1 ? "One seat" : `${r.skipped.length} seats`} left as they were (listed below).` : "";
+    return { ...done(v.jobId, words + skippedWords), saved: { approved: r.approved, skipped: r.skipped.map(({ code, why }) => ({ code, why })) } };
   } catch (err) {
     return actionFailure(err);
   }

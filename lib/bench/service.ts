@@ -119,7 +119,7 @@ export async function sentBackReason(db: Db, seatId: string): Promise<SeatReport
     .where(eq(reviews.seatId, seatId))
     .orderBy(desc(reviews.createdAt))
     .limit(1);
-  return latest?.decision === "sent_back" ? { comment: latest.comment, by: latest.by, at: latest.at.toISOString() } : null;
+  return latest?.decision === "sent_back" ? { comment: latest.comment ?? "", by: latest.by, at: latest.at.toISOString() } : null;
 }
 
 

@@ -7,7 +7,7 @@ import { z } from "zod";
 import type { Db } from "@/db/client";
 import { jobs, mailOutbox, users, type MailOutboxRow } from "@/db/schema";
 
-/** After this many failed attempts a message stops being retried and shows as failed. */
+/** After this many failed sends in a row a message stops being retried and shows as failed. */
 export const MAX_ATTEMPTS = 5;
 /**
  * While a worker sends a message, the row's next attempt is pushed this far ahead. If the worker
@@ -54,9 +54,9 @@ export async function enqueueMail(db: Writer, input: EnqueueMailInput): Promise<
   return row!.id;
 }
 
-/** Minutes until the next try after the given number of failed attempts: 1, 5, 25, 125… */
-export function backoffMs(attempts: number): number {
-  return 5 ** Math.max(0, attempts - 1) * 60_000;
+/** Minutes until the next try after the given number of failed sends: 1, 5, 25, 125… */
+export function backoffMs(failures: number): number {
+  return 5 ** Math.max(0, failures - 1) * 60_000;
 }
 
 export type MailSender = Pick<Transporter, "sendMail">;
@@ -72,7 +72,8 @@ const due = (now: Date) =>
 
 /**
  * Claims one due message. The claim is a single UPDATE whose WHERE repeats the due condition, so
- * when two workers pick the same row only one of them gets it back.
+ * when two workers pick the same row only one of them gets it back. A claim is a send tried, so it
+ * counts an attempt whatever comes of it (a worker that dies mid-send still tried).
  */
 async function claimNext(db: Db, now: Date): Promise<MailOutboxRow | null> {
   for (;;) {
@@ -85,7 +86,7 @@ async function claimNext(db: Db, now: Date): Promise<MailOutboxRow | null> {
     if (!candidate) return null;
     const [claimed] = await db
       .update(mailOutbox)
-      .set({ status: "sending", nextAttemptAt: new Date(now.getTime() + SENDING_LEASE_MS) })
+      .set({ status: "sending", attempts: sql`${mailOutbox.attempts} + 1`, nextAttemptAt: new Date(now.getTime() + SENDING_LEASE_MS) })
       .where(and(eq(mailOutbox.id, candidate.id), due(now)))
       .returning();
     if (claimed) return claimed;
@@ -119,15 +120,15 @@ export async function processDueMail(
         .where(and(eq(mailOutbox.id, row.id), eq(mailOutbox.status, "sending")));
       result.sent++;
     } catch (err) {
-      const attempts = row.attempts + 1;
-      const failed = attempts >= MAX_ATTEMPTS;
+      const failures = row.failures + 1;
+      const failed = failures >= MAX_ATTEMPTS;
       await db
         .update(mailOutbox)
         .set({
           status: failed ? "failed" : "queued",
-          attempts,
+          failures,
           lastError: describeError(err),
-          nextAttemptAt: new Date(now.getTime() + backoffMs(attempts)),
+          nextAttemptAt: new Date(now.getTime() + backoffMs(failures)),
         })
         .where(and(eq(mailOutbox.id, row.id), eq(mailOutbox.status, "sending")));
       if (failed) result.failed++;
@@ -137,11 +138,14 @@ export async function processDueMail(
   return result;
 }
 
-/** An admin's "send again": a failed message goes back to the queue, due now, with fresh attempts. */
+/**
+ * An admin's "send again": a failed message goes back to the queue, due now, with its failures
+ * cleared for the back-off; its attempts keep counting every send tried.
+ */
 export async function retryMail(db: Pick<Db, "update">, id: string, now: Date = new Date()): Promise<boolean> {
   const [row] = await db
     .update(mailOutbox)
-    .set({ status: "queued", attempts: 0, nextAttemptAt: now })
+    .set({ status: "queued", failures: 0, nextAttemptAt: now })
     .where(and(eq(mailOutbox.id, id), eq(mailOutbox.status, "failed")))
     .returning({ id: mailOutbox.id });
   return Boolean(row);
@@ -160,6 +164,7 @@ export async function listShopMail(db: Db, shopId: string, limit = 200) {
       subject: mailOutbox.subject,
       status: mailOutbox.status,
       attempts: mailOutbox.attempts,
+      failures: mailOutbox.failures,
       lastError: mailOutbox.lastError,
       nextAttemptAt: mailOutbox.nextAttemptAt,
       sentAt: mailOutbox.sentAt,
@@ -182,4 +187,37 @@ export async function mailBelongsToShop(db: Db, id: string, shopId: string): Pro
     .where(and(eq(mailOutbox.id, id), sql`coalesce(${jobs.shopId}, ${users.shopId}) = ${shopId}`))
     .limit(1);
   return Boolean(row);
+}
+
+/** One message of the shop's outbox as it was sent (or will be): null when it is not the shop's. */
+export async function getShopMail(db: Db, shopId: string, id: string) {
+  const [row] = await db
+    .select({ mail: mailOutbox, jobNumber: jobs.number, createdByName: users.name })
+    .from(mailOutbox)
+    .leftJoin(jobs, eq(jobs.id, mailOutbox.jobId))
+    .leftJoin(users, eq(users.id, mailOutbox.createdById))
+    .where(and(eq(mailOutbox.id, id), sql`coalesce(${jobs.shopId}, ${users.shopId}) = ${shopId}`))
+    .limit(1);
+  return row ? { ...row.mail, jobNumber: row.jobNumber, createdByName: row.createdByName } : null;
+}
+
+/** The kinds of mail Grindfade sends, by name; a kind not listed here reads as itself, made readable. */
+export const MAIL_KIND_NAMES: Record<string, string> = {
+  head_report: "Head report to customer",
+};
+
+export function mailKindName(kind: string): string {
+  const named = MAIL_KIND_NAMES[kind];
+  if (named) return named;
+  const words = kind.replace(/[_.-]+/g, " ").trim();
+  return words ? words[0]!.toUpperCase() + words.slice(1) : "Message";
+}
+
+/** The web links in a message's HTML (href) and text, in order, each once: what the recipient can open. */
+export function linksInMail(mail: { html: string; text: string }): string[] {
+  const found: string[] = [];
+  const decode = (v: string) => v.replace(/&amp;/g, "&").replace(/&quot;/g, '"').replace(/&#39;/g, "'").replace(/&lt;/g, "<").replace(/&gt;/g, ">");
+  for (const m of mail.html.matchAll(/href\s*=\s*("([^"]*)"|'([^']*)')/gi)) found.push(decode(m[2] ?? m[3] ?? ""));
+  for (const m of mail.text.matchAll(/https?:\/\/[^\s<>"']+/gi)) found.push(m[0]);
+  return [...new Set(found.filter((l) => /^https?:\/\//i.test(l)))];
 }

@@ -100,19 +100,44 @@ export interface SeatReviewResult {
   state: SeatState;
 }
 
+/**
+ * A comment is needed to send a seat back (the technician must know what to redo); approving may
+ * go without one, and is then stored as null rather than a made-up text.
+ */
+function seatComment(value: string | null | undefined, decision: ReviewVerdict): string | null {
+  if (decision === "approved" && !value?.trim()) return null;
+  if (!value?.trim()) {
+    const message = "Write what to redo: a seat is sent back with a comment.";
+    throw new BadRequestError(message, { comment: [message] });
+  }
+  return requiredText(value, "comment", 3);
+}
+
 export async function reviewSeat(
   db: Db,
   actor: Actor,
-  input: { seatId: string; decision: ReviewVerdict; comment: string; checksReason?: string | null },
+  input: {
+    seatId: string;
+    decision: ReviewVerdict;
+    comment?: string | null;
+    checksReason?: string | null;
+    /** The seat's state as the supervisor saw it; a different state now answers a conflict. */
+    expectedState?: SeatState | null;
+  },
 ): Promise<SeatReviewResult> {
   assertSupervisor(actor);
-  const comment = requiredText(input.comment, "comment", 3);
+  const comment = seatComment(input.comment, input.decision);
   const givenReason = input.checksReason?.trim() ? requiredText(input.checksReason, "checksReason", 3) : null;
   return db.transaction(async (tx) => {
     const { seat, job } = await lockSeat(tx, actor.shopId, input.seatId);
     const code = seatCode(seat);
     if (isClosed(job.status)) {
       throw new ConflictError(`Job ${job.number} is ${STATUS_WORDS[job.status]}; reopen the head before changing a seat's review.`);
+    }
+    if (input.expectedState && input.expectedState !== seat.state) {
+      throw new ConflictError(
+        `Seat ${code} changed while you were looking at it: it was ${STATE_WORDS[input.expectedState]} and is ${STATE_WORDS[seat.state]} now. Look at it again before deciding.`,
+      );
     }
     if (input.decision === "approved" && seat.state !== "settled") {
       // Only the server's settled verdict is approved: a stalled seat needs more lapping or a send-back.
@@ -154,6 +179,114 @@ export async function reviewSeat(
     });
     return { seatId: seat.id, code, state: next };
   });
+}
+
+export interface ApproveSettledResult {
+  jobId: string;
+  number: string;
+  /** Codes of the seats approved, in head order. */
+  approved: string[];
+  /** Seats left as they were, with why in words. */
+  skipped: Array<{ seatId: string; code: string; why: string }>;
+}
+
+/**
+ * "Approve every settled seat": approves, in one transaction, the settled seats the supervisor
+ * was shown (seatIds), each with its own reviews row and audit entry, all with the one optional
+ * comment. A seat whose done-checks are not all passed is approved only when a checks reason is
+ * given (it goes on each such seat's record); without one it is skipped and listed. A shown seat
+ * that is no longer settled (approved, sent back or reopened meanwhile) refuses the whole batch,
+ * so nothing is approved on a picture of the head that is out of date.
+ */
+export async function approveSettledSeats(
+  db: Db,
+  actor: Actor,
+  input: { jobId: string; seatIds: readonly string[]; comment?: string | null; checksReason?: string | null },
+): Promise<ApproveSettledResult> {
+  assertSupervisor(actor);
+  const comment = seatComment(input.comment, "approved");
+  const givenReason = input.checksReason?.trim() ? requiredText(input.checksReason, "checksReason", 3) : null;
+  const wanted = [...new Set(input.seatIds)];
+  if (wanted.length === 0) throw new BadRequestError("There is no settled seat to approve on this head.", { seatIds: ["No seat chosen."] });
+  return db.transaction(async (tx) => {
+    // The job and all its seats locked together, as a single seat's decision locks them.
+    const rows = await tx
+      .select({ seat: seats, job: jobs })
+      .from(seats)
+      .innerJoin(heads, eq(heads.id, seats.headId))
+      .innerJoin(jobs, eq(jobs.id, heads.jobId))
+      .where(and(eq(jobs.id, input.jobId), eq(jobs.shopId, actor.shopId)))
+      .orderBy(asc(heads.id), asc(seats.cylinder), asc(seats.kind), asc(seats.position))
+      .for("no key update", { of: [seats, jobs] });
+    const job = rows[0]?.job ?? (await lockJob(tx, actor.shopId, input.jobId));
+    if (isClosed(job.status)) {
+      throw new ConflictError(`Job ${job.number} is ${STATUS_WORDS[job.status]}; reopen the head before approving seats.`);
+    }
+    const shown = rows.map((r) => r.seat).filter((s) => wanted.includes(s.id));
+    if (shown.length !== wanted.length) throw new NotFoundError(`Some of those seats are not on job ${job.number}.`);
+    const changed = shown.filter((s) => s.state !== "settled");
+    if (changed.length > 0) {
+      const list = changed.map((s) => `${seatCode(s)} (now ${STATE_WORDS[s.state]})`).join(", ");
+      throw new ConflictError(
+        `${changed.length === 1 ? "Seat" : "Seats"} ${list} changed since the page was loaded; nothing was approved. Look at the head again.`,
+      );
+    }
+    const checks = await doneChecksOf(tx, job.id, shown);
+    const approved: string[] = [];
+    const skipped: ApproveSettledResult["skipped"] = [];
+    for (const seat of shown) {
+      const code = seatCode(seat);
+      const c = checks.get(seat.id)!;
+      const shortfall = c.complete ? null : shortfallText(c);
+      if (shortfall && !givenReason) {
+        skipped.push({ seatId: seat.id, code, why: `done-checks not all passed (${shortfall}); approving it needs a reason` });
+        continue;
+      }
+      const checksReason = shortfall ? givenReason : null;
+      await tx.update(seats).set({ state: "approved", updatedAt: new Date() }).where(eq(seats.id, seat.id));
+      await tx.insert(reviews).values({ jobId: job.id, seatId: seat.id, decision: "approved", comment, checksReason, reviewerId: actor.id });
+      await recordAudit(tx, {
+        actorId: actor.id,
+        action: "seat.approved",
+        entityType: "seat",
+        entityId: seat.id,
+        jobId: job.id,
+        before: { seat: code, state: seat.state },
+        after: { seat: code, state: "approved", comment, ...(checksReason ? { checksReason, checksShortfall: shortfall } : {}) },
+      });
+      approved.push(code);
+    }
+    return { jobId: job.id, number: job.number, approved, skipped };
+  });
+}
+
+/**
+ * The seat to look at after this one: the next seat of the same head, in head order (cylinder,
+ * intake before exhaust, position), that still awaits a decision (settled or stalled), wrapping
+ * round to the first; null when no other seat of the head awaits one.
+ */
+export async function nextSeatToReview(
+  db: Db,
+  shopId: string,
+  seatId: string,
+): Promise<{ seatId: string; code: string; state: SeatState } | null> {
+  const [current] = await db
+    .select({ headId: seats.headId })
+    .from(seats)
+    .innerJoin(heads, eq(heads.id, seats.headId))
+    .innerJoin(jobs, eq(jobs.id, heads.jobId))
+    .where(and(eq(seats.id, seatId), eq(jobs.shopId, shopId)))
+    .limit(1);
+  if (!current) return null;
+  const all = await db
+    .select()
+    .from(seats)
+    .where(eq(seats.headId, current.headId))
+    .orderBy(asc(seats.cylinder), asc(seats.kind), asc(seats.position));
+  const at = all.findIndex((s) => s.id === seatId);
+  const after = [...all.slice(at + 1), ...all.slice(0, at)];
+  const next = after.find((s) => s.state === "settled" || s.state === "stalled");
+  return next ? { seatId: next.id, code: seatCode(next), state: next.state } : null;
 }
 
 export async function reopenSeat(db: Db, actor: Actor, input: { seatId: string; reason: string }): Promise<SeatReviewResult> {

@@ -22,12 +22,38 @@ const reason = storableText(
 
 const decision = z.enum(["approved", "sent_back"], { error: "Choose approve or send back." });
 
-export const seatReviewSchema = z.object({
-  seatId: uuidText("Unknown seat."),
+/** An empty field is no value at all. */
+const blankToUndefined = (v: unknown) => (typeof v === "string" && v.trim() === "" ? undefined : v);
+
+/** A seat's comment: optional to approve, required to send back (checked on the whole form). */
+const seatCommentField = z.preprocess(blankToUndefined, comment.optional());
+
+const SEND_BACK_NEEDS_COMMENT = "Write what to redo: a seat is sent back with a comment.";
+
+export const seatReviewSchema = z
+  .object({
+    seatId: uuidText("Unknown seat."),
+    jobId: uuidText("Unknown job."),
+    decision,
+    comment: seatCommentField,
+    // Required by the service when the seat's done-checks are not all passed.
+    checksReason: checksReasonSchema,
+    // The seat's state as the page showed it; a seat changed meanwhile answers a conflict.
+    expectedState: z.preprocess(
+      blankToUndefined,
+      z.enum(["waiting", "lapping", "settled", "stalled", "approved", "sent_back"], { error: "Unknown seat state." }).optional(),
+    ),
+  })
+  .refine((v) => v.decision !== "sent_back" || Boolean(v.comment), { message: SEND_BACK_NEEDS_COMMENT, path: ["comment"] });
+
+/** "Approve every settled seat" on the job page: the seats shown, one optional comment, an optional checks reason. */
+export const approveSettledSchema = z.object({
   jobId: uuidText("Unknown job."),
-  decision,
-  comment,
-  // Required by the service when the seat's done-checks are not all passed.
+  seatIds: z
+    .array(uuidText("Unknown seat."), { error: "Choose the seats to approve." })
+    .min(1, "There is no settled seat to approve on this head.")
+    .max(64, "A head has at most 64 seats."),
+  comment: seatCommentField,
   checksReason: checksReasonSchema,
 });
 export const seatReopenSchema = z.object({ seatId: uuidText("Unknown seat."), jobId: uuidText("Unknown job."), reason });

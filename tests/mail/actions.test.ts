@@ -56,7 +56,7 @@ async function failedMail(createdById: string): Promise<string> {
     text: "Ready",
     createdById,
   });
-  await state.t!.db.update(mailOutbox).set({ status: "failed", attempts: 5, lastError: "refused" }).where(eq(mailOutbox.id, id));
+  await state.t!.db.update(mailOutbox).set({ status: "failed", attempts: 5, failures: 5, lastError: "refused" }).where(eq(mailOutbox.id, id));
   return id;
 }
 

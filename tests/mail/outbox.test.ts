@@ -1,12 +1,13 @@
 // The outbox sends through a real SMTP conversation with the local catcher, retries with growing
-// delays, gives up after five failures, and never sends one message twice.
+// delays, gives up after five failures in a row, and never sends one message twice. Its attempts
+// count every send tried, the one that went out included; its failures drive the back-off.
 import net from "node:net";
 import { eq } from "drizzle-orm";
 import nodemailer from "nodemailer";
 import { afterAll, afterEach, beforeAll, beforeEach, describe, expect, it } from "vitest";
 import { mailOutbox } from "@/db/schema";
 import { startFakeSmtp, type FakeSmtp } from "@/lib/mail/fake-smtp";
-import { enqueueMail, MAX_ATTEMPTS, processDueMail, retryMail } from "@/lib/mail/outbox";
+import { enqueueMail, MAX_ATTEMPTS, processDueMail, retryMail, SENDING_LEASE_MS } from "@/lib/mail/outbox";
 import { freshPglite, type TestDatabase } from "../helpers/db";
 
 let t: TestDatabase;
@@ -77,7 +78,9 @@ describe("mail outbox", () => {
     const after = await rowOf(id);
     expect(after.status).toBe("sent");
     expect(after.sentAt).toBeInstanceOf(Date);
-    expect(after.attempts).toBe(0);
+    // One send tried, and it went out: one attempt, no failure.
+    expect(after.attempts).toBe(1);
+    expect(after.failures).toBe(0);
     expect(after.lastError).toBeNull();
   });
 
@@ -99,6 +102,7 @@ describe("mail outbox", () => {
     let row = await rowOf(id);
     expect(row.status).toBe("queued");
     expect(row.attempts).toBe(1);
+    expect(row.failures).toBe(1);
     expect(row.lastError).toMatch(/ECONNREFUSED|connect/i);
     expect(row.nextAttemptAt.getTime()).toBe(now.getTime() + 60_000);
 
@@ -111,6 +115,7 @@ describe("mail outbox", () => {
       await processDueMail(t.db, dead, now);
       row = await rowOf(id);
       expect(row.attempts).toBe(attempt);
+      expect(row.failures).toBe(attempt);
       delays.push((row.nextAttemptAt.getTime() - now.getTime()) / 60_000);
     }
     expect(delays.slice(0, 3)).toEqual([5, 25, 125]);
@@ -128,11 +133,20 @@ describe("mail outbox", () => {
     expect(await retryMail(t.db, id, retryAt)).toBe(true);
     row = await rowOf(id);
     expect(row.status).toBe("queued");
-    expect(row.attempts).toBe(0);
+    // Send again clears the failures for the back-off; the sends already tried still count.
+    expect(row.failures).toBe(0);
+    expect(row.attempts).toBe(MAX_ATTEMPTS);
     expect(row.nextAttemptAt.getTime()).toBe(retryAt.getTime());
 
-    expect(await processDueMail(t.db, transportTo(fake.port), retryAt)).toEqual({ sent: 1, retrying: 0, failed: 0 });
-    expect((await rowOf(id)).status).toBe("sent");
+    // After send again, one more failure waits one minute again, as a new message would.
+    await processDueMail(t.db, dead, retryAt);
+    row = await rowOf(id);
+    expect(row).toMatchObject({ status: "queued", attempts: MAX_ATTEMPTS + 1, failures: 1 });
+    expect(row.nextAttemptAt.getTime()).toBe(retryAt.getTime() + 60_000);
+
+    expect(await processDueMail(t.db, transportTo(fake.port), row.nextAttemptAt)).toEqual({ sent: 1, retrying: 0, failed: 0 });
+    row = await rowOf(id);
+    expect(row).toMatchObject({ status: "sent", attempts: MAX_ATTEMPTS + 2, failures: 1 });
     expect(fake.messages()).toHaveLength(1);
   });
 
@@ -156,7 +170,22 @@ describe("mail outbox", () => {
     const subjects = fake.messages().map((m) => header(m.raw, "Subject"));
     expect(subjects).toHaveLength(6);
     expect(new Set(subjects).size).toBe(6);
-    for (const id of ids) expect((await rowOf(id)).status).toBe("sent");
+    // Each went out once, and each counts exactly that one send.
+    for (const id of ids) expect(await rowOf(id)).toMatchObject({ status: "sent", attempts: 1, failures: 0 });
+  });
+
+  it("counts a send whose worker died mid-way: picked up again after the lease, it shows two attempts", async () => {
+    const id = await enqueueMail(t.db, report);
+    const start = new Date(Date.now() + 1000);
+    // A worker claims it and dies before recording anything (as a killed process would).
+    const hung = { sendMail: () => new Promise<never>(() => {}) };
+    void processDueMail(t.db, hung, start);
+    await expect.poll(async () => (await rowOf(id)).status).toBe("sending");
+    expect((await rowOf(id)).attempts).toBe(1);
+    // Not due while the lease runs; due again once it has passed.
+    expect((await processDueMail(t.db, transportTo(fake.port), new Date(start.getTime() + SENDING_LEASE_MS - 1000))).sent).toBe(0);
+    expect((await processDueMail(t.db, transportTo(fake.port), new Date(start.getTime() + SENDING_LEASE_MS + 1000))).sent).toBe(1);
+    expect(await rowOf(id)).toMatchObject({ status: "sent", attempts: 2, failures: 0 });
   });
 
   it("refuses bad addresses, no recipients and over-long subjects, and writes nothing", async () => {

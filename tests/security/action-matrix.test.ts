@@ -250,7 +250,7 @@ async function failedMail(c: CaseContext): Promise<string> {
     html: "<p>x</p>",
     text: "x",
   });
-  await db().update(mailOutbox).set({ status: "failed", attempts: 5 }).where(eq(mailOutbox.id, id));
+  await db().update(mailOutbox).set({ status: "failed", attempts: 5, failures: 5 }).where(eq(mailOutbox.id, id));
   return id;
 }
 
@@ -351,6 +351,15 @@ const CASES: Record<string, Case> = {
           checksReason: "Checked with the head assembled.",
         }),
       );
+  },
+  "lib/actions/review.ts#submitApproveSettled": async (c) => {
+    const seatId = seatOf(c, "3E1");
+    await setSeat(seatId, "settled");
+    return () => {
+      const f = form({ jobId: c.job.jobId, comment: "", checksReason: "Checked with the head assembled." });
+      f.append("seatIds", seatId);
+      return action("lib/actions/review.ts#submitApproveSettled")(prev, f);
+    };
   },
   "lib/actions/review.ts#submitSeatReopen": async (c) => {
     const seatId = seatOf(c, "1E1");

@@ -578,6 +578,12 @@ const specFigure = (f: Fixtures, o: Record<string, string>) =>
 const seatReview = (f: Fixtures, o: Record<string, string>) =>
   reviewActions.submitSeatReview(initialActionState, form({ seatId: f.audit.seats.get("1I1")!, jobId: f.audit.jobId, decision: "approved", comment: "Even grey ring, leak test dry.", ...o }));
 
+const approveSettled = (f: Fixtures, seatIds: string[], o: Record<string, string> = {}) => {
+  const data = form({ jobId: f.audit.jobId, comment: "", ...o });
+  for (const id of seatIds) data.append("seatIds", id);
+  return reviewActions.submitApproveSettled(initialActionState, data);
+};
+
 const doneCheck = (f: Fixtures, o: Record<string, string>) =>
   doneCheckActions.saveDoneCheck(initialActionState, form({ seatId: f.own.seats.get("3E1")!, kind: "leak_test", result: "pass", note: "", ...o }));
 
@@ -648,6 +654,14 @@ export const actionCases: ActionCase[] = [
   { group: "review actions", name: "signing off another shop's head", as: RHEA, message: /your shop/, run: (f) => reviewActions.submitHeadReview(initialActionState, form({ jobId: f.other.jobId, decision: "approved", comment: "All seats approved." })) },
   { group: "review actions", name: "reopening a head that is not signed off", as: RHEA, run: (f) => reviewActions.submitHeadReopen(initialActionState, form({ jobId: f.audit.jobId, reason: "Customer asked again." })) },
   { group: "review actions", name: "a technician signing off", as: INES, message: /supervisor/, run: (f) => seatReview(f, {}) },
+  { group: "review actions", name: "sending back with no comment", as: RHEA, field: "comment", message: /Check the highlighted/, run: (f) => seatReview(f, { decision: "sent_back", comment: "" }) },
+  { group: "review actions", name: "an unknown seat state as seen", as: RHEA, field: "expectedState", run: (f) => seatReview(f, { expectedState: "shiny" }) },
+  { group: "review actions", name: "approving every settled seat with no seat", as: RHEA, field: "seatIds", run: (f) => approveSettled(f, []) },
+  { group: "review actions", name: "approving every settled seat with a seat id that is not one", as: RHEA, field: "seatIds.0", run: (f) => approveSettled(f, ["1I1"]) },
+  { group: "review actions", name: "approving every settled seat with a 1 MB comment", as: RHEA, field: "comment", run: (f) => approveSettled(f, [f.audit.seats.get("1I1")!], { comment: HUGE(MB) }) },
+  { group: "review actions", name: "approving every settled seat with a NUL byte in the reason", as: RHEA, field: "checksReason", run: (f) => approveSettled(f, [f.audit.seats.get("1I1")!], { checksReason: NUL_TEXT }) },
+  { group: "review actions", name: "approving every settled seat with another shop's seat", as: RHEA, message: /not on job/, run: (f) => approveSettled(f, [f.other.seats.get("1I1")!]) },
+  { group: "review actions", name: "approving every settled seat of another shop's head", as: RHEA, message: /your shop/, run: (f) => approveSettled(f, [f.other.seats.get("1I1")!], { jobId: f.other.jobId }) },
 
   // saveDoneCheck, and approving without the done-checks
   { group: "done-check actions", name: "an unknown check", as: INES, field: "kind", run: (f) => doneCheck(f, { kind: "sniff_test" }) },

@@ -132,6 +132,7 @@ export async function buildFixtures(db: Db): Promise<Fixtures> {
       text: "report",
       status: "failed",
       attempts: 5,
+      failures: 5,
       lastError: "connection refused",
       createdById: quill.id,
     })

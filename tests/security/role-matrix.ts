@@ -459,6 +459,15 @@ export const ACTION_MATRIX: Record<string, CrossShopRow<ActionOutcome, CrossShop
     otherShop: "not-found",
     why: "Sending failed mail again is an admin's job, for their own shop's outbox.",
   },
+  "lib/actions/review.ts#submitApproveSettled": {
+    anonymous: "unauthorized",
+    technicianOwnJob: "forbidden",
+    technicianOtherJob: "forbidden",
+    supervisor: "ok",
+    admin: "forbidden",
+    otherShop: "not-found",
+    why: "Approving a head's settled seats at once is a supervisor's alone, as approving one is.",
+  },
   "lib/actions/review.ts#submitSeatReview": {
     anonymous: "unauthorized",
     technicianOwnJob: "forbidden",

@@ -5,7 +5,11 @@ import { notFound } from "next/navigation";
 import { z } from "zod";
 import { getDb } from "@/db/client";
 import { getJob, headSummary, seatCurves } from "@/db/queries/jobs";
-import { SeatMap } from "@/components/heads/seat-map";
+import { SeatMap, DEFAULT_SETTLED_THRESHOLD_DB } from "@/components/heads/seat-map";
+import { ApproveSettledForm } from "@/components/review/approve-settled-form";
+import { seatVerdicts } from "./report/seat-verdicts";
+import type { SeatVerdict } from "@/lib/audio";
+import { shortfallText } from "@/lib/bench/done-checks";
 import { JobStatusActions } from "@/components/jobs/job-status-actions";
 import { ValveList, type ValveRow } from "@/components/jobs/valve-list";
 import { Cautions } from "@/components/sheets/cautions";
@@ -50,6 +54,13 @@ export default async function JobPage({ params }: PageProps<"/jobs/[jobId]">) {
       .join(", ");
   const curves = new Map<string, number[]>();
   for (const h of job.heads) for (const [k, v] of await seatCurves(db, h.id)) curves.set(k, v);
+  // Each seat's verdicts for its sign-off card, judged as the report judges them.
+  const verdicts = new Map<string, string>();
+  for (const h of job.heads) {
+    for (const [seatId, v] of await seatVerdicts(db, h.id)) {
+      verdicts.set(seatId, `Coarse: ${verdictWords(v.coarse.verdict)} · Fine: ${verdictWords(v.fine.verdict)}`);
+    }
+  }
 
   return (
     <article className="flex flex-col gap-6">
@@ -140,7 +151,7 @@ export default async function JobPage({ params }: PageProps<"/jobs/[jobId]">) {
                     valveTag: s.valve?.tag ?? null,
                     sentBack: (() => {
                       const latest = reviews.find((r) => r.seatId === s.id);
-                      return s.state === "sent_back" && latest?.decision === "sent_back" ? { comment: latest.comment, by: latest.reviewerName } : null;
+                      return s.state === "sent_back" && latest?.decision === "sent_back" ? { comment: latest.comment ?? "", by: latest.reviewerName } : null;
                     })(),
                   }))}
                 />
@@ -181,6 +192,18 @@ export default async function JobPage({ params }: PageProps<"/jobs/[jobId]">) {
                     reviews={reviews.filter((r) => r.seatId === null)}
                     canReview={canReview}
                   />
+                  {canReview && !closed ? (
+                    <ApproveSettledForm
+                      jobId={job.id}
+                      headLabel={head.label}
+                      seats={head.seats
+                        .filter((s) => s.state === "settled")
+                        .map((s) => {
+                          const c = doneChecks.get(s.id);
+                          return { id: s.id, code: seatCode(s), shortfall: c && !c.complete ? shortfallText(c) : null };
+                        })}
+                    />
+                  ) : null}
                   <ul className="grid grid-cols-1 gap-2 md:grid-cols-2">
                     {head.seats.map((s) => (
                       <li key={s.id} className="rounded-lg border border-stone-200 p-2">
@@ -197,6 +220,8 @@ export default async function JobPage({ params }: PageProps<"/jobs/[jobId]">) {
                           canReview={canReview}
                           headClosed={closed}
                           doneChecks={doneChecks.get(s.id)}
+                          curve={{ contrastsDb: curves.get(s.id) ?? [], thresholdDb: DEFAULT_SETTLED_THRESHOLD_DB }}
+                          verdict={verdicts.get(s.id) ?? "Not lapped yet"}
                         />
                       </li>
                     ))}
@@ -238,4 +263,11 @@ export default async function JobPage({ params }: PageProps<"/jobs/[jobId]">) {
       <Cautions />
     </article>
   );
+}
+
+function verdictWords(v: SeatVerdict): string {
+  if (v.state === "no-strokes") return "not lapped";
+  if (v.state === "settled") return `settled at stroke ${v.settled?.atStroke ?? "?"}`;
+  if (v.state === "not-settling") return "not settling";
+  return v.strokesRemaining !== null ? `fading (about ${v.strokesRemaining} to go)` : "fading";
 }

@@ -13,6 +13,10 @@ import { leftOutSummary } from "@/lib/audio/verdict";
 import { requireActor } from "@/lib/auth/guard";
 import { getSeatReport, type StageRecord } from "@/lib/bench/service";
 import { NotFoundError } from "@/lib/errors";
+import { SeatReviewPanel } from "@/components/review/seat-review-panel";
+import { getReviews } from "@/db/queries/reviews";
+import { nextSeatToReview } from "@/lib/review/service";
+import { isClosed } from "@/lib/jobs/lifecycle";
 
 export const metadata: Metadata = { title: "Session review" };
 
@@ -33,6 +37,9 @@ export default async function ReviewPage({ params, searchParams }: PageProps<"/r
     throw err;
   });
   const doneChecks = await getSeatDoneChecks(await getDb(), actor, seatId);
+  const canReview = actor.role === "supervisor";
+  const seatReviews = (await getReviews(await getDb(), actor.shopId, report.job.id)).filter((r) => r.seatId === report.seat.id);
+  const next = await nextSeatToReview(await getDb(), actor.shopId, report.seat.id);
   const all: Listed[] = [
     ...report.stages.coarse.sessions.map((s) => ({ ...s, stage: "coarse" as const })),
     ...report.stages.fine.sessions.map((s) => ({ ...s, stage: "fine" as const })),
@@ -47,9 +54,12 @@ export default async function ReviewPage({ params, searchParams }: PageProps<"/r
 
   return (
     <div className="flex flex-col gap-4">
-      <Link href={`/jobs/${report.job.id}`} className="inline-flex min-h-11 items-center self-start text-sm font-semibold text-brass-dark underline-offset-2 hover:underline">
-        ← {report.job.number}
-      </Link>
+      <nav aria-label="Walk the head" className="flex flex-wrap items-center justify-between gap-2">
+        <Link href={`/jobs/${report.job.id}`} className="inline-flex min-h-11 items-center text-sm font-semibold text-brass-dark underline-offset-2 hover:underline">
+          ← {report.job.number}
+        </Link>
+        <NextSeat next={next} jobId={report.job.id} />
+      </nav>
       <div>
         <h1 className="text-2xl font-bold tracking-tight">
           Seat {report.seat.code} <span className="font-normal text-stone-600">· {report.seat.label}</span>
@@ -125,6 +135,18 @@ export default async function ReviewPage({ params, searchParams }: PageProps<"/r
         </h2>
         <DoneChecksSummary checks={doneChecks} testId="review-done-checks" />
       </section>
+      <div id="decision" className="flex flex-col gap-2">
+        <SeatReviewPanel
+          jobId={report.job.id}
+          seat={{ id: report.seat.id, code: report.seat.code, state: report.seat.state }}
+          reviews={seatReviews}
+          canReview={canReview}
+          headClosed={isClosed(report.job.status)}
+          doneChecks={doneChecks}
+          showDoneChecks={false}
+        />
+        <NextSeat next={next} jobId={report.job.id} />
+      </div>
       <SeatPhotos seatId={seatId} canAdd={report.canWork} />
     </div>
   );
@@ -146,4 +168,27 @@ function verdictText(stage: StageRecord): string {
     }
   })();
   return leftOut ? `${base} (${leftOut})` : base;
+}
+
+/** "Next seat →": the next seat of the head awaiting a decision, or a plain word that none is left. */
+function NextSeat({ next, jobId }: { next: { seatId: string; code: string } | null; jobId: string }) {
+  if (!next) {
+    return (
+      <p className="text-sm text-stone-700" data-testid="next-seat-none">
+        No other seat of this head awaits a decision.{" "}
+        <Link href={`/jobs/${jobId}`} className="inline-flex min-h-11 items-center font-semibold text-brass-dark underline underline-offset-2">
+          Back to the job
+        </Link>
+      </p>
+    );
+  }
+  return (
+    <Link
+      href={`/review/${next.seatId}`}
+      className="inline-flex min-h-12 items-center justify-center rounded-lg bg-ink px-4 font-semibold text-white"
+      data-testid="next-seat"
+    >
+      Next seat <span className="figure mx-1">{next.code}</span> →
+    </Link>
+  );
 }
