@@ -51,16 +51,16 @@ export default async function CustomersPage() {
                     <td className="px-3 py-3">{c.contactName ?? <span className="text-stone-500">—</span>}</td>
                     <td className="px-3 py-3">
                       {c.email ? (
-                        <a href={`mailto:${c.email}`} className="underline underline-offset-2">
+                        <a href={`mailto:${c.email}`} className="inline-flex min-h-11 items-center underline underline-offset-2">
                           {c.email}
                         </a>
                       ) : (
-                        <span className="font-semibold text-amber-800">No e-mail: reports cannot be sent</span>
+                        <span className="font-semibold text-amber-800">No e-mail: the report cannot be sent to them</span>
                       )}
                     </td>
                     <td className="px-3 py-3">
                       {c.phone ? (
-                        <a href={`tel:${c.phone.replace(/[^0-9+]/g, "")}`} className="figure underline underline-offset-2">
+                        <a href={`tel:${c.phone.replace(/[^0-9+]/g, "")}`} className="figure inline-flex min-h-11 items-center underline underline-offset-2">
                           {c.phone}
                         </a>
                       ) : (
