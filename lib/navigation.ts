@@ -14,9 +14,11 @@ const PEOPLE: NavItem = { href: "/admin/people", label: "People" };
 const SPECS: NavItem = { href: "/specs", label: "Specifications" };
 const TRAIL: NavItem = { href: "/audit", label: "Audit trail" };
 const OUTBOX: NavItem = { href: "/admin/outbox", label: "Outbox" };
+const CUSTOMERS: NavItem = { href: "/customers", label: "Customers" };
+const SHOP: NavItem = { href: "/admin/shop", label: "Shop details" };
 
 export const NAVIGATION: Record<UserRole, readonly NavItem[]> = {
   technician: [BOARD, MY_WORK],
-  supervisor: [BOARD, AUDIT, MY_WORK, SPECS, TRAIL],
-  admin: [BOARD, AUDIT, SPECS, TRAIL, PEOPLE, OUTBOX],
+  supervisor: [BOARD, AUDIT, MY_WORK, CUSTOMERS, SPECS, TRAIL],
+  admin: [BOARD, AUDIT, CUSTOMERS, SPECS, TRAIL, PEOPLE, SHOP, OUTBOX],
 };

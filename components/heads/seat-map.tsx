@@ -466,7 +466,7 @@ export function SeatMapLegend({
         Cylinders are numbered from the timing end. Beside each seat with strokes: its onset
         contrast stroke by stroke in the latest stage, a dashed line at the settled threshold (
         <span className="figure">{formatDb(thresholdDb)}</span>) and the latest stroke&apos;s
-        figure. Tap a seat to open it at the bench.
+        figure. <span className="print:hidden">Tap a seat to open it at the bench.</span>
       </p>
     </div>
   );

@@ -78,12 +78,37 @@ export function JobForm({
         {!customerId ? (
           <label className="flex flex-col gap-1 font-semibold">
             New customer&apos;s name
-            <input className={field} {...register("newCustomerName")} {...described("newCustomerName")} />
+            <input className={field} autoComplete="organization" {...register("newCustomerName")} {...described("newCustomerName")} />
             {err("newCustomerName")}
           </label>
         ) : (
           <div />
         )}
+        {!customerId ? (
+          <fieldset className="grid grid-cols-1 gap-3 rounded-lg border border-dashed border-stone-400 p-3 sm:col-span-2 sm:grid-cols-2" data-testid="new-customer-contact">
+            <legend className="px-1 text-sm font-semibold">How to reach the new customer (optional; the report is e-mailed)</legend>
+            <label className="flex flex-col gap-1 font-semibold">
+              Contact person
+              <input className={field} autoComplete="name" {...register("newCustomerContactName")} {...described("newCustomerContactName")} />
+              {err("newCustomerContactName")}
+            </label>
+            <label className="flex flex-col gap-1 font-semibold">
+              Customer&apos;s e-mail
+              <input type="email" className={field} autoComplete="email" {...register("newCustomerEmail")} {...described("newCustomerEmail")} />
+              {err("newCustomerEmail")}
+            </label>
+            <label className="flex flex-col gap-1 font-semibold">
+              Customer&apos;s phone
+              <input type="tel" className={field} autoComplete="tel" {...register("newCustomerPhone")} {...described("newCustomerPhone")} />
+              {err("newCustomerPhone")}
+            </label>
+            <label className="flex flex-col gap-1 font-semibold sm:col-span-2">
+              Customer&apos;s address
+              <textarea rows={2} className={`${field} py-2`} autoComplete="street-address" {...register("newCustomerAddress")} {...described("newCustomerAddress")} />
+              {err("newCustomerAddress")}
+            </label>
+          </fieldset>
+        ) : null}
         <label className="flex flex-col gap-1 font-semibold sm:col-span-2">
           Engine
           <input className={field} placeholder="Make, model, size, valves" {...register("engineDescription")} {...described("engineDescription")} />

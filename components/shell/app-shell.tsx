@@ -9,7 +9,7 @@ import { SignOutButton } from "./sign-out-button";
 export function AppShell({ actor, shopName, children }: { actor: Actor; shopName: string; children: React.ReactNode }) {
   return (
     <div className="flex min-h-dvh flex-col">
-      <header className="relative bg-ink text-white">
+      <header className="relative bg-ink text-white print:hidden">
         <div className="mx-auto flex max-w-7xl items-center gap-3 px-3 py-2 sm:px-6">
           <Link href="/jobs" className="mr-2 flex min-h-12 items-center gap-2 font-bold tracking-tight">
             <span aria-hidden className="inline-block h-6 w-6 rounded-full border-4 border-amber-400" />

@@ -35,12 +35,12 @@ export function NavLinks({ items }: { items: readonly NavItem[] }) {
   });
   return (
     <>
-      <nav aria-label="Main" className="hidden items-center gap-1 md:flex">
+      <nav aria-label="Main" className="hidden items-center gap-1 xl:flex">
         {links}
       </nav>
       <button
         type="button"
-        className="min-h-12 min-w-12 rounded-lg border border-stone-600 px-3 text-base font-semibold text-white md:hidden"
+        className="min-h-12 min-w-12 rounded-lg border border-stone-600 px-3 text-base font-semibold text-white xl:hidden"
         aria-expanded={open}
         aria-controls="mobile-nav"
         onClick={() => setOpen((v) => !v)}
@@ -51,7 +51,7 @@ export function NavLinks({ items }: { items: readonly NavItem[] }) {
         <nav
           id="mobile-nav"
           aria-label="Main"
-          className="absolute inset-x-0 top-full z-20 flex flex-col gap-1 border-t border-stone-700 bg-ink p-3 shadow-lg md:hidden"
+          className="absolute inset-x-0 top-full z-20 flex flex-col gap-1 border-t border-stone-700 bg-ink p-3 shadow-lg xl:hidden"
         >
           {links}
         </nav>

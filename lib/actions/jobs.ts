@@ -8,6 +8,7 @@ import { requireActor } from "@/lib/auth/guard";
 import { assertCanWorkOn } from "@/lib/auth/job-access";
 import { recordAudit } from "@/lib/audit";
 import { BadRequestError, ConflictError, NotFoundError } from "@/lib/errors";
+import { insertCustomer, updateCustomerRecord } from "@/lib/customers/write";
 import { createHeadWithSeats } from "@/lib/heads/create";
 import { parseId } from "@/lib/http";
 import { canMove, isClosed, isReviewDecision } from "@/lib/jobs/lifecycle";
@@ -29,7 +30,7 @@ function initials(name: string): string {
 
 type Tx = Parameters<Parameters<Awaited<ReturnType<typeof getDb>>["transaction"]>[0]>[0];
 
-async function checkRefs(tx: Tx, shopId: string, v: JobFormValues): Promise<string> {
+async function checkRefs(tx: Tx, actorId: string, shopId: string, v: JobFormValues): Promise<string> {
   if (v.assignedTechnicianId) {
     const [tech] = await tx
       .select({ role: users.role })
@@ -51,13 +52,34 @@ async function checkRefs(tx: Tx, shopId: string, v: JobFormValues): Promise<stri
     if (!c) throw new BadRequestError("That customer is not in your shop.", { customerId: ["Choose from the list."] });
     return c.id;
   }
+  return newCustomer(tx, actorId, shopId, v);
+}
+
+/**
+ * The customer typed in the job form: a new record with its contact details, or the shop's
+ * customer of that name, whose blank details are filled in from what was typed.
+ */
+async function newCustomer(tx: Tx, actorId: string, shopId: string, v: JobFormValues): Promise<string> {
+  const typed = {
+    name: v.newCustomerName,
+    contactName: v.newCustomerContactName,
+    email: v.newCustomerEmail,
+    phone: v.newCustomerPhone,
+    address: v.newCustomerAddress,
+  };
   const [existing] = await tx
-    .select({ id: customers.id })
+    .select()
     .from(customers)
     .where(and(eq(customers.shopId, shopId), eq(customers.name, v.newCustomerName)));
-  if (existing) return existing.id;
-  const [created] = await tx.insert(customers).values({ shopId, name: v.newCustomerName }).returning({ id: customers.id });
-  return created!.id;
+  if (!existing) return insertCustomer(tx, actorId, shopId, typed);
+  await updateCustomerRecord(tx, actorId, shopId, existing.id, {
+    name: existing.name,
+    contactName: existing.contactName ?? typed.contactName,
+    email: existing.email ?? typed.email,
+    phone: existing.phone ?? typed.phone,
+    address: existing.address ?? typed.address,
+  });
+  return existing.id;
 }
 
 export async function createJob(input: unknown): Promise<JobActionState> {
@@ -66,7 +88,7 @@ export async function createJob(input: unknown): Promise<JobActionState> {
     const v = jobFormSchema.parse(input);
     const db = await getDb();
     const jobId = await db.transaction(async (tx) => {
-      const customerId = await checkRefs(tx, actor.shopId, v);
+      const customerId = await checkRefs(tx, actor.id, actor.shopId, v);
       const [shop] = await tx.select({ name: shops.name }).from(shops).where(eq(shops.id, actor.shopId));
       const prefix = initials(shop?.name ?? "");
       const [{ n }] = (await tx.select({ n: count() }).from(jobs).where(eq(jobs.shopId, actor.shopId))) as [{ n: number }];
@@ -115,7 +137,7 @@ export async function updateJob(jobId: string, input: unknown): Promise<JobActio
       const [before] = await tx.select().from(jobs).where(and(eq(jobs.id, jobId), eq(jobs.shopId, actor.shopId))).for("update");
       if (!before) throw new NotFoundError("That job does not exist in your shop.");
       if (isClosed(before.status)) throw new ConflictError(`Job ${before.number} is signed off; a supervisor must reopen it before it is edited.`);
-      const customerId = await checkRefs(tx, actor.shopId, v);
+      const customerId = await checkRefs(tx, actor.id, actor.shopId, v);
       await tx
         .update(jobs)
         .set({

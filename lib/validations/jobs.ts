@@ -1,5 +1,6 @@
 // One schema for the job form and its server action.
 import { z } from "zod";
+import { customerContactFields } from "./customers";
 import { DATE_RANGE_MESSAGE, isCalendarDate, isDateInRange, storableText } from "./text";
 
 const optionalUuid = z
@@ -20,6 +21,11 @@ export const jobFormSchema = z
   .object({
     customerId: optionalUuid,
     newCustomerName: storableText(z.string().trim().max(120, "Keep the name under 120 characters.")).default(""),
+    // How to reach a new customer; all optional, and ignored when an existing customer is chosen.
+    newCustomerContactName: customerContactFields.contactName,
+    newCustomerEmail: customerContactFields.email,
+    newCustomerPhone: customerContactFields.phone,
+    newCustomerAddress: customerContactFields.address,
     engineDescription: storableText(
       z
         .string({ error: "Describe the engine." })

@@ -21,9 +21,9 @@ function demo(role: "technician" | "supervisor" | "admin") {
 }
 
 const EXPECTED_NAV: Record<string, { has: string[]; lacks: string[] }> = {
-  technician: { has: ["Jobs board", "My work"], lacks: ["People", "Awaiting audit"] },
-  supervisor: { has: ["Jobs board", "Awaiting audit", "My work"], lacks: ["People"] },
-  admin: { has: ["Jobs board", "Awaiting audit", "People"], lacks: ["My work"] },
+  technician: { has: ["Jobs board", "My work"], lacks: ["People", "Awaiting audit", "Customers", "Shop details"] },
+  supervisor: { has: ["Jobs board", "Awaiting audit", "My work", "Customers"], lacks: ["People", "Shop details"] },
+  admin: { has: ["Jobs board", "Awaiting audit", "People", "Customers", "Shop details"], lacks: ["My work"] },
 };
 
 describe("sign-in per role", () => {

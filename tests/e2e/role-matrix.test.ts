@@ -108,6 +108,8 @@ interface JobRecords {
   /** A session kept for ending. */
   endSessionId: string;
   photoId: string;
+  /** A customer of the shop, for the customer's page. */
+  customerId: string;
 }
 
 type JobNumber = (typeof TARGET_JOB)[Persona];
@@ -191,6 +193,10 @@ async function prepare(
   expect(photo.status).toBe(201);
   const { id: photoId } = (await photo.json()) as { id: string };
   const seat = await rhea.json<{ head: { id: string } }>(`/api/seats/${seatId}`);
+  // The job's customer, as the customers screen links to it.
+  const customersHtml = await (await rhea.send({ path: "/customers" })).text();
+  const customerName = (await rhea.json<{ jobs: Array<{ number: string; customerName: string }> }>("/api/jobs")).jobs.find((j) => j.number === number)!.customerName;
+  const customerId = new RegExp(`href="/customers/([0-9a-f-]{36})"[^>]*>${customerName.replace(/[.*+?^${}()|[\]\\]/g, "\\$&")}<`).exec(customersHtml)![1]!;
   return {
     number,
     jobId,
@@ -200,6 +206,7 @@ async function prepare(
     sessionId,
     endSessionId,
     photoId,
+    customerId,
   };
 }
 
@@ -239,7 +246,7 @@ const recordingBytes = async (sessionId: string) => {
 // ---------------------------------------------------------------- pages
 
 function fill(pattern: string, r: JobRecords): string {
-  return pattern.replace("[jobId]", r.jobId).replace("[seatId]", r.seatId);
+  return pattern.replace("[jobId]", r.jobId).replace("[seatId]", r.seatId).replace("[customerId]", r.customerId);
 }
 
 const READ_ONLY = "This seat is read-only for you";
@@ -604,6 +611,7 @@ describe("an id that names nothing in the caller's shop", () => {
     sessionId: randomUUID(),
     endSessionId: randomUUID(),
     photoId: randomUUID(),
+    customerId: randomUUID(),
   });
 
   for (const { pattern } of listPages().filter((x) => x.pattern.includes("Id]"))) {
@@ -615,7 +623,7 @@ describe("an id that names nothing in the caller's shop", () => {
       expect(html).toMatch(/<meta name="robots" content="noindex"/);
       expect(html).not.toContain('data-testid="forbidden"');
       // An id that is not even one answers the same.
-      const odd = await rhea.send({ path: pattern.replace("[jobId]", "not-an-id").replace("[seatId]", "2I1") });
+      const odd = await rhea.send({ path: pattern.replace("[jobId]", "not-an-id").replace("[seatId]", "2I1").replace("[customerId]", "not-an-id") });
       expect(odd.status).toBe(404);
     });
   }

@@ -12,7 +12,7 @@ import { eq, sql } from "drizzle-orm";
 import { NextRequest } from "next/server";
 import { afterAll, beforeAll, beforeEach, describe, expect, it, vi } from "vitest";
 import type { Db } from "@/db/client";
-import { engineSpecs, heads, jobs, mailOutbox, seats, shops, users } from "@/db/schema";
+import { customers, engineSpecs, heads, jobs, mailOutbox, seats, shops, users } from "@/db/schema";
 import type { TestDatabase } from "../helpers/db";
 import {
   ACTION_MATRIX,
@@ -508,6 +508,33 @@ const CASES: Record<string, Case> = {
         }),
       );
   },
+  "lib/actions/customers.ts#createCustomer": async (c) => {
+    return () =>
+      action("lib/actions/customers.ts#createCustomer")(
+        prev,
+        form({ name: `Matrix Customer ${c.n}`, contactName: "Oda Brink", email: `orders-${c.n}@matrix.example`, phone: "01632 960 777", address: "" }),
+      );
+  },
+  "lib/actions/customers.ts#updateCustomer": async (c) => {
+    // The customer of the persona's job, with a phone number of this call's own.
+    const [job] = await db().select({ customerId: jobs.customerId }).from(jobs).where(eq(jobs.id, c.job.jobId));
+    const [customer] = await db().select().from(customers).where(eq(customers.id, job!.customerId));
+    return () =>
+      action("lib/actions/customers.ts#updateCustomer")(
+        prev,
+        form({ id: customer!.id, name: customer!.name, contactName: customer!.contactName ?? "", email: customer!.email ?? "", phone: `01632 960 ${String(c.n).padStart(3, "0")}`, address: customer!.address ?? "" }),
+      );
+  },
+  "lib/actions/shop.ts#updateShopSettings": async (c) => {
+    // The caller's own shop, its name kept and its phone changed: the action only ever writes the caller's shop.
+    const shopName = c.caller.startsWith("otherShop") ? "Ferrule Lane Engines" : "Millrace Head Works";
+    const [shop] = await db().select().from(shops).where(eq(shops.name, shopName));
+    return () =>
+      action("lib/actions/shop.ts#updateShopSettings")(
+        prev,
+        form({ name: shop!.name, address: shop!.address ?? "", phone: `01632 961 ${String(c.n).padStart(3, "0")}`, timeZone: shop!.timeZone }),
+      );
+  },
   "lib/actions/users.ts#createUser": async (c) => {
     return () =>
       action("lib/actions/users.ts#createUser")({
@@ -584,7 +611,7 @@ describe("server actions × personas", () => {
       }
       // The other shop's caller is the one its own shop would let act: an admin for people and
       // mail, a supervisor for everything else.
-      const other: Caller = /users\.ts|mail\.ts/.test(file)
+      const other: Caller = /users\.ts|mail\.ts|shop\.ts/.test(file)
         ? "otherShopAdmin"
         : "otherShopSupervisor";
       it(`another shop's ${other === "otherShopAdmin" ? "admin" : "supervisor"}: ${row.otherShop}`, async () => {
@@ -594,7 +621,17 @@ describe("server actions × personas", () => {
           expect(after, "a refused call changes nothing").toEqual(before);
         } else {
           // What it made belongs to its own shop.
-          const made = key.endsWith("#createUser")
+          const made = key.endsWith("#createCustomer")
+            ? await db()
+                .select({ shopId: customers.shopId })
+                .from(customers)
+                .where(eq(customers.name, `Matrix Customer ${calls}`))
+            : key.endsWith("#updateShopSettings")
+            ? await db()
+                .select({ shopId: shops.id })
+                .from(shops)
+                .where(eq(shops.phone, `01632 961 ${String(calls).padStart(3, "0")}`))
+            : key.endsWith("#createUser")
             ? await db()
                 .select({ shopId: users.shopId })
                 .from(users)

@@ -17,10 +17,12 @@ import * as endRoute from "@/app/api/sessions/[sessionId]/end/route";
 import * as chunksRoute from "@/app/api/sessions/[sessionId]/recording/chunks/route";
 import * as recordingRoute from "@/app/api/sessions/[sessionId]/recording/route";
 import * as strokesRoute from "@/app/api/sessions/[sessionId]/strokes/route";
+import * as customerActions from "@/lib/actions/customers";
 import * as doneCheckActions from "@/lib/actions/done-checks";
 import * as jobActions from "@/lib/actions/jobs";
 import * as mailActions from "@/lib/actions/mail";
 import * as reviewActions from "@/lib/actions/review";
+import * as shopActions from "@/lib/actions/shop";
 import * as sheetActions from "@/lib/actions/sheets";
 import * as specActions from "@/lib/actions/specs";
 import { initialActionState, type ActionState } from "@/lib/actions/state";
@@ -548,6 +550,12 @@ const jobForm = (o: Record<string, unknown> = {}) => ({
 
 const createJob = (o: Record<string, unknown>) => jobActions.createJob(jobForm(o));
 
+const customerForm = (o: Record<string, string> = {}) =>
+  form({ name: "Larchfield Taxis", contactName: "Mo Haskett", email: "office@larchfield.example", phone: "01632 960 222", address: "2 Yard Lane, Lockbridge", ...o });
+const createCustomer = (o: Record<string, string>) => customerActions.createCustomer(initialActionState, customerForm(o));
+const shopSettings = (o: Record<string, string>) =>
+  shopActions.updateShopSettings(initialActionState, form({ name: "Millrace Head Works", address: "Unit 4, Weir Yard, Lockbridge", phone: "01632 960 414", timeZone: "Europe/London", ...o }));
+
 const clearance = (f: Fixtures, o: Record<string, string>) =>
   sheetActions.saveClearanceReading(
     initialActionState,
@@ -626,6 +634,27 @@ export const actionCases: ActionCase[] = [
   { group: "job actions", name: "taking back with a job id that is not one", as: INES, field: "jobId", run: () => jobActions.takeHeadBack(initialActionState, form({ jobId: "MHW-0141" })) },
   { group: "job actions", name: "taking back another shop's job", as: RHEA, message: /your shop/, run: (f) => jobActions.takeHeadBack(initialActionState, form({ jobId: f.other.jobId })) },
   { group: "job actions", name: "a technician moving another's job", as: DOV, run: (f) => jobActions.changeJobStatus(initialActionState, form({ jobId: f.own.jobId, to: "awaiting_audit" })) },
+
+  // createCustomer, updateCustomer, and a new customer's details when booking in
+  { group: "customer actions", name: "an e-mail address without an @", as: RHEA, field: "email", message: /highlighted/, run: () => createCustomer({ email: "office.larchfield.example" }) },
+  { group: "customer actions", name: "a phone number with letters", as: RHEA, field: "phone", run: () => createCustomer({ phone: "call the yard" }) },
+  { group: "customer actions", name: "a phone number of 40 digits", as: RHEA, field: "phone", run: () => createCustomer({ phone: "1".repeat(40) }) },
+  { group: "customer actions", name: "a NUL byte in the name", as: RHEA, field: "name", run: () => createCustomer({ name: NUL_TEXT }) },
+  { group: "customer actions", name: "a blank name", as: RHEA, field: "name", run: () => createCustomer({ name: "   " }) },
+  { group: "customer actions", name: "a 1 MB address", as: RHEA, field: "address", run: () => createCustomer({ address: HUGE(MB) }) },
+  { group: "customer actions", name: "a technician adding a customer", as: INES, message: /supervisor or an admin/, run: () => createCustomer({}) },
+  { group: "customer actions", name: "editing a customer id that climbs paths", as: RHEA, field: "id", run: () => customerActions.updateCustomer(initialActionState, customerForm({ id: TRAVERSAL_ID })) },
+  { group: "customer actions", name: "editing another shop's customer", as: RHEA, message: /your shop/, run: (f) => customerActions.updateCustomer(initialActionState, customerForm({ id: f.other.customerId })) },
+  { group: "customer actions", name: "booking in a new customer with a bad e-mail", as: RHEA, field: "newCustomerEmail", run: () => createJob({ newCustomerEmail: "not-an-address" }) },
+  { group: "customer actions", name: "booking in a new customer with a phone of letters", as: RHEA, field: "newCustomerPhone", run: () => createJob({ newCustomerPhone: "ring me" }) },
+
+  // updateShopSettings
+  { group: "shop actions", name: "a time zone that does not exist", as: ADMIN, field: "timeZone", run: () => shopSettings({ timeZone: "Europe/Lockbridge" }) },
+  { group: "shop actions", name: "an offset instead of a time zone name", as: ADMIN, field: "timeZone", run: () => shopSettings({ timeZone: "+01:00" }) },
+  { group: "shop actions", name: "a NUL byte in the address", as: ADMIN, field: "address", run: () => shopSettings({ address: NUL_TEXT }) },
+  { group: "shop actions", name: "a phone number with letters", as: ADMIN, field: "phone", run: () => shopSettings({ phone: "ask at the gate" }) },
+  { group: "shop actions", name: "another shop's name", as: ADMIN, field: "name", run: () => shopSettings({ name: "Ferrule Lane Engines" }) },
+  { group: "shop actions", name: "a supervisor changing the shop", as: RHEA, message: /admin/, run: () => shopSettings({ phone: "01632 960 999" }) },
 
   // createUser, resetPassword, changeRole
   { group: "people actions", name: "an unknown role", as: ADMIN, field: "role", run: () => userActions.createUser({ name: "Tam Ashby", email: "tam@millrace.example", role: "root", password: "long-enough-pw" }) },

@@ -11,7 +11,8 @@
 // - booking in and editing jobs, and the specifications library: supervisors and admins;
 // - sign-off, send-back and reopening: supervisors only (admins read the audit trail, they do
 //   not judge lapping work);
-// - people and the mail outbox: admins only;
+// - customers (their contact details and editing them): supervisors and admins;
+// - people, the shop's own details and the mail outbox: admins only;
 // - nothing crosses shops: another shop's id answers like one that does not exist.
 
 /**
@@ -198,6 +199,30 @@ export const PAGE_MATRIX: Record<string, Row<PageOutcome>> = {
     supervisor: "forbidden",
     admin: "page",
     why: "The outbox is an admin's to watch.",
+  },
+  "/customers": {
+    anonymous: "redirect:/sign-in",
+    technicianOwnJob: "forbidden",
+    technicianOtherJob: "forbidden",
+    supervisor: "page",
+    admin: "page",
+    why: "Customers' contact details are for those who book in and sign off (jobs:manage); technicians do not need them at the bench.",
+  },
+  "/customers/[customerId]": {
+    anonymous: "redirect:/sign-in",
+    technicianOwnJob: "forbidden",
+    technicianOtherJob: "forbidden",
+    supervisor: "page",
+    admin: "page",
+    why: "Reading and editing a customer needs jobs:manage.",
+  },
+  "/admin/shop": {
+    anonymous: "redirect:/sign-in",
+    technicianOwnJob: "forbidden",
+    technicianOtherJob: "forbidden",
+    supervisor: "forbidden",
+    admin: "page",
+    why: "The shop's own details (printed on every report) are the admin's to change.",
   },
   "/specs": {
     anonymous: "redirect:/sign-in",
@@ -602,6 +627,33 @@ export const ACTION_MATRIX: Record<string, CrossShopRow<ActionOutcome, CrossShop
     admin: "ok",
     otherShop: "not-found",
     why: "Overriding a job's figure needs specs:manage, even for the assigned technician.",
+  },
+  "lib/actions/customers.ts#createCustomer": {
+    anonymous: "unauthorized",
+    technicianOwnJob: "forbidden",
+    technicianOtherJob: "forbidden",
+    supervisor: "ok",
+    admin: "ok",
+    otherShop: "own-shop",
+    why: "Customers are added by those who book in (jobs:manage); a new customer joins the caller's own shop.",
+  },
+  "lib/actions/customers.ts#updateCustomer": {
+    anonymous: "unauthorized",
+    technicianOwnJob: "forbidden",
+    technicianOtherJob: "forbidden",
+    supervisor: "ok",
+    admin: "ok",
+    otherShop: "not-found",
+    why: "Editing a customer needs jobs:manage; another shop's customer answers as one that does not exist.",
+  },
+  "lib/actions/shop.ts#updateShopSettings": {
+    anonymous: "unauthorized",
+    technicianOwnJob: "forbidden",
+    technicianOtherJob: "forbidden",
+    supervisor: "forbidden",
+    admin: "ok",
+    otherShop: "own-shop",
+    why: "The shop's details are the admin's; an admin only ever changes their own shop.",
   },
   "lib/actions/users.ts#createUser": {
     anonymous: "unauthorized",

@@ -29,6 +29,10 @@ export default async function NewJobPage() {
         defaults={{
           customerId: "",
           newCustomerName: "",
+          newCustomerContactName: "",
+          newCustomerEmail: "",
+          newCustomerPhone: "",
+          newCustomerAddress: "",
           engineDescription: "",
           engineSpecId: "",
           promisedOn: "",

@@ -39,6 +39,10 @@ export default async function EditJobPage({ params }: PageProps<"/jobs/[jobId]/e
         defaults={{
           customerId: job.customer.id,
           newCustomerName: "",
+          newCustomerContactName: "",
+          newCustomerEmail: "",
+          newCustomerPhone: "",
+          newCustomerAddress: "",
           engineDescription: job.engineDescription,
           engineSpecId: job.engineSpecId ?? "",
           promisedOn: job.promisedOn ?? "",

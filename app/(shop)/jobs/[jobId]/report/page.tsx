@@ -1,5 +1,10 @@
 import type { Metadata } from "next";
-import { getShopTimeZone } from "@/db/queries/shops";
+import { getShop } from "@/db/queries/shops";
+import { getCustomer } from "@/db/queries/customers";
+import { CustomerBlock, ShopLetterhead } from "@/components/report/document-header";
+import { reportPrintCss } from "@/components/report/print-css";
+import { SignatureBlock } from "@/components/report/signature-block";
+import { usableTimeZone } from "@/lib/dates";
 import { formatWhen } from "@/lib/dates";
 import Link from "next/link";
 import { notFound } from "next/navigation";
@@ -58,27 +63,16 @@ function verdictLine(v: SeatVerdict | undefined): string {
 
 const mm = (v: number | null) => (v === null ? "…" : v.toFixed(3));
 
-// Paper layout: no shell, no buttons, sections kept whole where they fit.
-const PRINT_CSS = `
-@page { size: A4; margin: 14mm 12mm; }
-@media print {
-  body > div > header { display: none !important; }
-  main { max-width: none !important; padding: 0 !important; }
-  body { background: white !important; }
-  .report-section { break-inside: avoid; }
-  .report-seats tr { break-inside: avoid; }
-  a { color: inherit !important; text-decoration: none !important; }
-}
-`;
-
 export default async function HeadReportPage({ params }: PageProps<"/jobs/[jobId]/report">) {
   const actor = await requireActor("jobs:read");
   const { jobId } = await params;
   if (!z.string().uuid().safeParse(jobId).success) notFound();
   const db = await getDb();
-  const timeZone = await getShopTimeZone(db, actor.shopId);
+  const shop = await getShop(db, actor.shopId);
+  const timeZone = usableTimeZone(shop?.timeZone);
   const job = await getJob(db, actor.shopId, jobId);
   if (!job) notFound();
+  const customer = (await getCustomer(db, actor.shopId, job.customer.id)) ?? { ...job.customer, contactName: null, address: null };
   const [clearance, torque, measurements, reviews] = await Promise.all([
     orNull(getClearanceSheet(db, actor.shopId, jobId)),
     orNull(getTorqueSheets(db, actor.shopId, jobId)),
@@ -91,10 +85,14 @@ export default async function HeadReportPage({ params }: PageProps<"/jobs/[jobId
   const photos = (await listJobPhotos(db, actor.shopId, job.id)).map((p) => ({ code: seatCode(p.seat), id: p.id, createdAt: p.createdAt }));
   const threshold = DEFAULT_SETTLED_THRESHOLD_DB;
   const doneChecks = await getJobDoneChecks(db, actor.shopId, job.id);
+  // The head's latest decision (reviews come newest first): its sign-off, if that is what it was.
+  const headDecision = reviews.find((r) => r.seatCode === null);
+  const signedOff = headDecision?.decision === "approved" ? { by: headDecision.reviewerName, when: formatWhen(headDecision.createdAt, timeZone) } : null;
+  const shopName = shop?.name ?? "Shop";
 
   return (
-    <article className="flex flex-col gap-6 print:gap-4 print:text-[11pt]" data-testid="head-report">
-      <style>{PRINT_CSS}</style>
+    <article className="report flex flex-col gap-6 print:gap-4 print:text-[10.5pt]" data-testid="head-report">
+      <style>{reportPrintCss(`${shopName} · head report ${job.number}`)}</style>
       <div className="flex flex-wrap items-center gap-3 print:hidden">
         <Link href={`/jobs/${job.id}`} className="inline-flex min-h-11 items-center self-start text-sm font-semibold text-brass-dark underline-offset-2 hover:underline">
           ← {job.number}
@@ -104,23 +102,23 @@ export default async function HeadReportPage({ params }: PageProps<"/jobs/[jobId
         </div>
       </div>
 
-      <header className="report-section rounded-xl border border-stone-300 bg-white p-4 print:rounded-none print:border-0 print:border-b-2 print:border-ink print:p-0 print:pb-3">
-        <p className="text-sm font-semibold uppercase tracking-wide text-stone-500">Head report</p>
-        <h1 className="figure text-3xl font-bold">{job.number}</h1>
-        <dl className="mt-2 grid grid-cols-1 gap-x-6 gap-y-1 text-sm sm:grid-cols-2 print:grid-cols-2">
-          <Fact label="Customer">
-            {job.customer.name}
-            {job.customer.phone || job.customer.email ? (
-              <span className="font-normal text-stone-600"> · {job.customer.phone ?? job.customer.email}</span>
-            ) : null}
-          </Fact>
+      <header className="keep-whole flex flex-col gap-3 rounded-xl border border-stone-300 bg-white p-4 print:rounded-none print:border-0 print:p-0">
+        <ShopLetterhead shop={{ name: shopName, address: shop?.address ?? null, phone: shop?.phone ?? null }} />
+        <div className="flex flex-wrap items-start justify-between gap-x-8 gap-y-3">
+          <div>
+            <p className="text-sm font-semibold uppercase tracking-wide text-stone-500">Head report</p>
+            <h1 className="figure text-3xl font-bold">{job.number}</h1>
+          </div>
+          <CustomerBlock customer={customer} />
+        </div>
+        <dl className="grid grid-cols-1 gap-x-6 gap-y-1 text-sm sm:grid-cols-2 print:grid-cols-3">
           <Fact label="Engine">{job.engineDescription}</Fact>
           <Fact label="Status">{JOB_STATUS_LABELS[job.status]}</Fact>
           <Fact label="Technician">{job.technician?.name ?? "Unassigned"}</Fact>
           <Fact label="Promised" figure>{job.promisedOn ?? "—"}</Fact>
           <Fact label="Printed" figure>{formatWhen(new Date(), timeZone)}</Fact>
         </dl>
-        {job.notes ? <p className="mt-2 text-sm">{job.notes}</p> : null}
+        {job.notes ? <p className="text-sm">{job.notes}</p> : null}
       </header>
 
       {job.heads.length === 0 ? (
@@ -128,7 +126,7 @@ export default async function HeadReportPage({ params }: PageProps<"/jobs/[jobId
       ) : (
         job.heads.map((head) => (
           <section key={head.id} aria-labelledby={`report-head-${head.id}`} className="flex flex-col gap-4">
-            <div className="report-section">
+            <div className="keep-whole">
               <h2 id={`report-head-${head.id}`} className="text-xl font-bold">
                 {head.label}
               </h2>
@@ -204,7 +202,7 @@ export default async function HeadReportPage({ params }: PageProps<"/jobs/[jobId
         ))
       )}
 
-      <section aria-labelledby="report-clearance" className="report-section flex flex-col gap-2">
+      <section aria-labelledby="report-clearance" className="flex flex-col gap-2">
         <h2 id="report-clearance" className="text-xl font-bold">
           Journal oil clearance
         </h2>
@@ -218,7 +216,7 @@ export default async function HeadReportPage({ params }: PageProps<"/jobs/[jobId
         {!clearance || clearance.camshafts.length === 0 ? (
           <p className="text-stone-600">No camshaft journals on this head.</p>
         ) : (
-          <div className="overflow-x-auto rounded-xl border border-stone-300 bg-white print:border-0">
+          <div className="overflow-x-auto rounded-xl border border-stone-300 bg-white print:overflow-visible print:border-0">
             <table className="w-full text-left text-sm" data-testid="report-clearance">
               <thead className="bg-stone-100 print:bg-transparent">
                 <tr>
@@ -249,7 +247,7 @@ export default async function HeadReportPage({ params }: PageProps<"/jobs/[jobId
         )}
       </section>
 
-      <section aria-labelledby="report-torque" className="report-section flex flex-col gap-2">
+      <section aria-labelledby="report-torque" className="flex flex-col gap-2">
         <h2 id="report-torque" className="text-xl font-bold">
           Cap torque
         </h2>
@@ -286,14 +284,14 @@ export default async function HeadReportPage({ params }: PageProps<"/jobs/[jobId
         )}
       </section>
 
-      <section aria-labelledby="report-measurements" className="report-section flex flex-col gap-2">
+      <section aria-labelledby="report-measurements" className="flex flex-col gap-2">
         <h2 id="report-measurements" className="text-xl font-bold">
           Other measurements
         </h2>
         {others.length === 0 ? (
           <p className="text-stone-600">No other measurements recorded.</p>
         ) : (
-          <div className="overflow-x-auto rounded-xl border border-stone-300 bg-white print:border-0">
+          <div className="overflow-x-auto rounded-xl border border-stone-300 bg-white print:overflow-visible print:border-0">
             <table className="w-full text-left text-sm" data-testid="report-measurements">
               <thead className="bg-stone-100 print:bg-transparent">
                 <tr>
@@ -329,7 +327,7 @@ export default async function HeadReportPage({ params }: PageProps<"/jobs/[jobId
         )}
       </section>
 
-      <section aria-labelledby="report-done-checks" className="report-section flex flex-col gap-2">
+      <section aria-labelledby="report-done-checks" className="flex flex-col gap-2">
         <h2 id="report-done-checks" className="text-xl font-bold">
           Done-checks
         </h2>
@@ -395,7 +393,7 @@ export default async function HeadReportPage({ params }: PageProps<"/jobs/[jobId
         ))}
       </section>
 
-      <section aria-labelledby="report-photos" className="report-section flex flex-col gap-2">
+      <section aria-labelledby="report-photos" className="flex flex-col gap-2">
         <h2 id="report-photos" className="text-xl font-bold">
           Contact ring photos
         </h2>
@@ -414,7 +412,7 @@ export default async function HeadReportPage({ params }: PageProps<"/jobs/[jobId
         )}
       </section>
 
-      <section aria-labelledby="report-signoffs" className="report-section flex flex-col gap-2">
+      <section aria-labelledby="report-signoffs" className="flex flex-col gap-2">
         <h2 id="report-signoffs" className="text-xl font-bold">
           Sign-offs
         </h2>
@@ -442,9 +440,11 @@ export default async function HeadReportPage({ params }: PageProps<"/jobs/[jobId
         )}
       </section>
 
-      <div className="report-section">
+      <div className="keep-whole">
         <Cautions extra={["Torque caps and head bolts to the maker's figures and sequence; loosen in reverse."]} />
       </div>
+
+      <SignatureBlock signedOff={signedOff} />
     </article>
   );
 }
