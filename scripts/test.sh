@@ -1,6 +1,6 @@
 #!/usr/bin/env bash
 # `npm test`: everything the tests need, then every test. Installs Debian's chromium, sox,
-# aubio-tools, espeak-ng, ffmpeg and postgresql when missing (as root, through apt-get), starts a
+# aubio-tools, espeak-ng, ffmpeg, poppler-utils and postgresql when missing (as root, through apt-get), starts a
 # throwaway PostgreSQL server for the server-database tests unless TEST_DATABASE_URL is given,
 # type-checks, and runs the unit, integration and end-to-end suites.
 set -euo pipefail
@@ -13,6 +13,8 @@ command -v aubioonset >/dev/null 2>&1 || need+=(aubio-tools)
 command -v espeak-ng >/dev/null 2>&1 || need+=(espeak-ng)
 # ffmpeg encodes the MP4/AAC, M4A, WebM, Ogg and MP3 recordings the upload and "Use a recording" tests use.
 command -v ffmpeg >/dev/null 2>&1 || need+=(ffmpeg)
+# poppler-utils (pdftoppm, pdftotext) turns the head report's PDF into pages and text for its tests.
+command -v pdftoppm >/dev/null 2>&1 && command -v pdftotext >/dev/null 2>&1 || need+=(poppler-utils)
 if [ -z "${TEST_DATABASE_URL:-}" ]; then
   ls /usr/lib/postgresql/*/bin/postgres >/dev/null 2>&1 || need+=(postgresql)
 fi
