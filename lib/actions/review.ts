@@ -24,7 +24,7 @@ function done(jobId: string, message: string): ActionState {
 }
 
 /** What the supervisor is told after a sign-off: where the report went. */
-export function signedOffMessage(r: HeadReviewResult): string {
+function signedOffMessage(r: HeadReviewResult): string {
   const report = r.report;
   if (!report) return `Job ${r.number} signed off.`;
   if (report.customerEmail) return `Job ${r.number} signed off. Report sent to ${report.customerEmail}.`;

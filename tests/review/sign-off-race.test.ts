@@ -127,7 +127,7 @@ describe.each(backends)("writes racing a sign-off on %s", (_name, open) => {
       await new Promise((r) => setTimeout(r, 30));
       // Only the marking-compound test is recorded in the race, so the approval gives its reason.
       await review.reviewSeat(db, rhea, { seatId: last, decision: "approved", comment: "Even grey ring.", checksReason: "Leak test done with the head assembled." });
-      await review.reviewHead(db, rhea, { jobId: head.jobId, decision: "approved", comment: "Head signed off." });
+      await review.reviewHead(db, rhea, { jobId: head.jobId, decision: "approved", comment: "Head signed off.", incompleteReason: "Sheets finished at refit." });
       signedOff = true;
     };
     await Promise.all([burst(), burst(), signOff()]);

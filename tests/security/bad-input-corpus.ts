@@ -630,6 +630,12 @@ export const actionCases: ActionCase[] = [
   { group: "review actions", name: "signing off another shop's head", as: RHEA, message: /your shop/, run: (f) => reviewActions.submitHeadReview(initialActionState, form({ jobId: f.other.jobId, decision: "approved", comment: "All seats approved." })) },
   { group: "review actions", name: "reopening a head that is not signed off", as: RHEA, run: (f) => reviewActions.submitHeadReopen(initialActionState, form({ jobId: f.audit.jobId, reason: "Customer asked again." })) },
   { group: "review actions", name: "a technician signing off", as: INES, message: /supervisor/, run: (f) => seatReview(f, {}) },
+  // submitHeadReview's reason for signing off an incomplete record, and submitCustomerLinkRevoke
+  { group: "review actions", name: "a NUL byte in the sign-off reason", as: RHEA, field: "incompleteReason", run: (f) => reviewActions.submitHeadReview(initialActionState, form({ jobId: f.audit.jobId, decision: "approved", comment: "All seats approved.", incompleteReason: NUL_TEXT })) },
+  { group: "review actions", name: "a 1 MB sign-off reason", as: RHEA, field: "incompleteReason", run: (f) => reviewActions.submitHeadReview(initialActionState, form({ jobId: f.audit.jobId, decision: "approved", comment: "All seats approved.", incompleteReason: HUGE(MB) })) },
+  { group: "review actions", name: "a sign-off reason that is one letter", as: RHEA, field: "incompleteReason", run: (f) => reviewActions.submitHeadReview(initialActionState, form({ jobId: f.audit.jobId, decision: "approved", comment: "All seats approved.", incompleteReason: "x" })) },
+  { group: "review actions", name: "a report link id that climbs paths", as: RHEA, field: "linkId", run: (f) => reviewActions.submitCustomerLinkRevoke(initialActionState, form({ jobId: f.audit.jobId, linkId: TRAVERSAL_ID })) },
+  { group: "review actions", name: "a report link that is not in the shop", as: RHEA, message: /your shop/, run: (f) => reviewActions.submitCustomerLinkRevoke(initialActionState, form({ jobId: f.audit.jobId, linkId: randomUUID() })) },
 
   // saveDoneCheck, and approving without the done-checks
   { group: "done-check actions", name: "an unknown check", as: INES, field: "kind", run: (f) => doneCheck(f, { kind: "sniff_test" }) },
