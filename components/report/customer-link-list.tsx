@@ -20,25 +20,21 @@ export interface CustomerLinkRow {
 
 const STATUS_TEXT = { live: "Opens", expired: "Expired", revoked: "Revoked" } as const;
 
-function RevokeButton({ jobId, linkId }: { jobId: string; linkId: string }) {
-  const [state, action, pending] = useActionState(submitCustomerLinkRevoke, initialActionState);
+function RevokeButton({ jobId, linkId, action, pending }: { jobId: string; linkId: string; action: (f: FormData) => void; pending: boolean }) {
   return (
-    <form action={action} className="flex flex-col gap-1">
+    <form action={action}>
       <input type="hidden" name="jobId" value={jobId} />
       <input type="hidden" name="linkId" value={linkId} />
-      <button type="submit" disabled={pending} className="min-h-11 self-start rounded-lg border-2 border-rose-800 bg-white px-3 text-sm font-semibold text-rose-800 disabled:opacity-60">
+      <button type="submit" disabled={pending} className="min-h-11 rounded-lg border-2 border-rose-800 bg-white px-3 text-sm font-semibold text-rose-800 disabled:opacity-60">
         Revoke link
       </button>
-      {state.message ? (
-        <p aria-live="polite" className={`text-sm ${state.ok ? "text-emerald-800" : "text-rose-700"}`}>
-          {state.message}
-        </p>
-      ) : null}
     </form>
   );
 }
 
 export function CustomerLinkList({ jobId, links, canRevoke }: { jobId: string; links: CustomerLinkRow[]; canRevoke: boolean }) {
+  // One result for the list, so the message stays once the revoked link's button is gone.
+  const [state, action, pending] = useActionState(submitCustomerLinkRevoke, initialActionState);
   return (
     <section aria-labelledby="customer-links" className="flex flex-col gap-2 rounded-xl border border-stone-300 bg-white p-4" data-testid="customer-links">
       <h2 id="customer-links" className="text-lg font-semibold">
@@ -58,11 +54,14 @@ export function CustomerLinkList({ jobId, links, canRevoke }: { jobId: string; l
                 Opened {l.openings === 0 ? "never" : l.openings === 1 ? "once" : `${l.openings} times`}
                 {l.lastOpened ? `, last ${l.lastOpened}` : ""}.
               </p>
-              {canRevoke && l.status === "live" ? <RevokeButton jobId={jobId} linkId={l.id} /> : null}
+              {canRevoke && l.status === "live" ? <RevokeButton jobId={jobId} linkId={l.id} action={action} pending={pending} /> : null}
             </li>
           ))}
         </ul>
       )}
+      <p aria-live="polite" className={`text-sm ${state.ok ? "text-emerald-800" : "text-rose-700"}`}>
+        {state.message}
+      </p>
     </section>
   );
 }

@@ -184,7 +184,8 @@ export default async function JobPage({ params }: PageProps<"/jobs/[jobId]">) {
                 </p>
                 <ValveList jobId={job.id} valves={valves} seats={head.seats.map((s) => ({ id: s.id, code: seatCode(s), kind: s.kind }))} closed={closed} />
               </details>
-              <details className="rounded-xl border border-stone-300 bg-white p-3" open={job.status === "awaiting_audit" && canReview}>
+              {/* Kept open once signed off, so the supervisor sees where the report went and its link. */}
+              <details className="rounded-xl border border-stone-300 bg-white p-3" open={(job.status === "awaiting_audit" || job.status === "signed_off") && canReview}>
                 <summary className="min-h-11 py-2.5 cursor-pointer font-semibold">Audit and sign-off</summary>
                 <div className="mt-2 flex flex-col gap-3">
                   <div className="flex flex-wrap gap-2 text-sm">
