@@ -33,6 +33,15 @@ thead th { background: #f5f5f4; border-top: 0; }
 .warn { background: #fffbeb; border: 1px solid #f59e0b; border-radius: .5rem; padding: .75rem; }
 .scroll { overflow-x: auto; }
 svg.curve { display: block; }
+th .muted { font-weight: 400; }
+@media (max-width: 40rem) {
+  table.seats thead { display: none; }
+  table.seats tr { display: block; border-top: 1px solid #d6d3d1; padding: .5rem 0; }
+  table.seats th, table.seats td { display: block; border: 0; padding: .1rem 0; }
+  table.seats td[data-label]::before { content: attr(data-label) ": "; font-weight: 600; }
+  table.seats td br { display: none; }
+  table.seats td .muted::before { content: " · "; }
+}
 footer { color: #57534e; font-size: .9rem; margin: 2rem 0 1rem; }
 @media print { body { background: #fff; } section.card { border: 0; padding: 0; } }
 `;
@@ -78,9 +87,9 @@ function seatRow(s: ReportSeat): string {
   const last = s.contrastsDb[s.contrastsDb.length - 1];
   return `<tr data-seat="${esc(s.code)}">
 <th scope="row"><span class="code">${esc(s.code)}</span><br><span class="muted">${esc(seatWords(s))}</span></th>
-<td>${esc(SEAT_STATE_WORDS[s.state])}</td>
-<td>${stage(s.coarse)}</td>
-<td>${stage(s.fine)}</td>
+<td data-label="Where it stands">${esc(SEAT_STATE_WORDS[s.state])}</td>
+<td data-label="Coarse paste">${stage(s.coarse)}</td>
+<td data-label="Fine paste">${stage(s.fine)}</td>
 <td>${curve(s.contrastsDb, `Fade curve of seat ${s.code}: ${s.contrastsDb.length} strokes${first !== undefined && last !== undefined ? `, from ${first.toFixed(1)} dB to ${last.toFixed(1)} dB` : ""}`)}</td>
 </tr>`;
 }
@@ -112,7 +121,7 @@ ${REPORT_EXPLAINED.map((e) => `<dt>${esc(e.term)}</dt><dd>${esc(e.text)}</dd>`).
       (h) => `<section class="card" aria-label="${esc(h.label)}">
 <h2 style="margin-top:0">${esc(h.label)}: the valve seats</h2>
 <p class="muted">${esc(h.summary)}. Seats are numbered from the timing end of the head: <span class="code">2I1</span> is cylinder 2, intake valve 1; <span class="code">E</span> is exhaust.</p>
-<div class="scroll"><table data-testid="customer-report-seats">
+<div class="scroll"><table class="seats" data-testid="customer-report-seats">
 <thead><tr><th scope="col">Seat</th><th scope="col">Where it stands</th><th scope="col">Coarse paste</th><th scope="col">Fine paste</th><th scope="col">Fade curve</th></tr></thead>
 <tbody>
 ${h.seats.map(seatRow).join("\n")}
