@@ -3,12 +3,11 @@
 // account, and the report itself as a PDF; a copy goes to the supervisor who signed off.
 import { eq } from "drizzle-orm";
 import type { Db } from "@/db/client";
-import { users } from "@/db/schema";
+import { customers, jobs, users } from "@/db/schema";
 import { createCustomerLink } from "@/lib/report/customer-links";
 import { loadCustomerReport } from "@/lib/report/customer-report-data";
 import { renderReportPdf, reportPdfName } from "@/lib/report/pdf";
 import { formatWhen } from "@/lib/dates";
-import { customers, jobs } from "@/db/schema";
 import { enqueueMail } from "./outbox";
 
 const escape = (s: string) => s.replace(/[&<>"']/g, (c) => ({ "&": "&amp;", "<": "&lt;", ">": "&gt;", '"': "&quot;", "'": "&#39;" })[c]!);

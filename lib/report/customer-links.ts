@@ -40,7 +40,7 @@ export async function createCustomerLink(
     .insert(customerLinks)
     .values({ jobId: input.jobId, tokenHash: hashLinkToken(token), expiresAt, createdById: input.createdById, createdAt: now })
     .returning({ id: customerLinks.id });
-  await recordAudit(tx as Pick<Db, "insert">, {
+  await recordAudit(tx, {
     actorId: input.createdById,
     action: "customer_link.created",
     entityType: "customer_link",
