@@ -3,7 +3,8 @@ import { COMMON_HEADERS } from "./lib/security/headers";
 
 const nextConfig: NextConfig = {
   // PGlite ships WebAssembly and data files that must be loaded from node_modules at run time.
-  serverExternalPackages: ["@electric-sql/pglite", "pg", "pino"],
+  // pdfkit reads its built-in fonts' metrics from its own folder at run time.
+  serverExternalPackages: ["@electric-sql/pglite", "pg", "pino", "pdfkit"],
   // No X-Powered-By header.
   poweredByHeader: false,
   typedRoutes: false,

@@ -15,6 +15,8 @@ function isPublic(pathname: string): boolean {
     pathname === "/sign-in" ||
     pathname.startsWith("/api/auth/") ||
     pathname === "/api/health" ||
+    // A customer's report link: the token in it is the key (app/r/[token]/route.ts).
+    pathname.startsWith("/r/") ||
     pathname.startsWith("/worklets/") ||
     pathname === "/bench-sw.js"
   );

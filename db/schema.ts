@@ -6,6 +6,7 @@ import {
   bigserial,
   boolean,
   check,
+  customType,
   date,
   index,
   integer,
@@ -68,6 +69,13 @@ export const measurementKind = pgEnum("measurement_kind", [
   "spring_load",
   "deck_flatness",
 ]);
+
+/** Raw bytes (PostgreSQL bytea), read and written as a Node Buffer. */
+const bytea = customType<{ data: Buffer; driverData: Buffer | Uint8Array }>({
+  dataType: () => "bytea",
+  toDriver: (value) => value,
+  fromDriver: (value) => (Buffer.isBuffer(value) ? value : Buffer.from(value)),
+});
 
 const timestamps = {
   createdAt: timestamp("created_at", { withTimezone: true }).notNull().defaultNow(),
@@ -555,6 +563,10 @@ export const reviews = pgTable(
     comment: text("comment"),
     // Why a seat was approved without all its done-checks recorded as passed; null otherwise.
     checksReason: text("checks_reason"),
+    // A head signed off with parts of its record incomplete: what was incomplete (in words, as the
+    // sign-off panel listed it) and the supervisor's reason for signing off anyway; null otherwise.
+    incompleteItems: text("incomplete_items").array(),
+    incompleteReason: text("incomplete_reason"),
     reviewerId: uuid("reviewer_id")
       .notNull()
       .references(() => users.id, { onDelete: "restrict" }),
@@ -564,6 +576,11 @@ export const reviews = pgTable(
     index("reviews_job_idx").on(t.jobId, t.createdAt),
     check("reviews_comment_length", sql`${t.comment} is null or length(${t.comment}) between 1 and 2000`),
     check("reviews_checks_reason_length", sql`${t.checksReason} is null or length(${t.checksReason}) between 1 and 2000`),
+    check(
+      "reviews_incomplete_reason_length",
+      sql`${t.incompleteReason} is null or length(${t.incompleteReason}) between 1 and 2000`,
+    ),
+    check("reviews_incomplete_reason_with_items", sql`(${t.incompleteReason} is null) = (${t.incompleteItems} is null)`),
   ],
 );
 
@@ -587,12 +604,47 @@ export const mailOutbox = pgTable(
     nextAttemptAt: timestamp("next_attempt_at", { withTimezone: true }).notNull().defaultNow(),
     sentAt: timestamp("sent_at", { withTimezone: true }),
     createdById: uuid("created_by_id").references(() => users.id, { onDelete: "set null" }),
+    // One file sent with the message (the head report's PDF), kept as it was made so a retry
+    // sends the same bytes; null for a message without one.
+    attachmentName: text("attachment_name"),
+    attachmentType: text("attachment_type"),
+    attachment: bytea("attachment"),
     createdAt: timestamp("created_at", { withTimezone: true }).notNull().defaultNow(),
   },
   (t) => [
+    check(
+      "mail_outbox_attachment_whole",
+      sql`(${t.attachment} is null) = (${t.attachmentName} is null) and (${t.attachment} is null) = (${t.attachmentType} is null)`,
+    ),
     index("mail_outbox_due_idx").on(t.status, t.nextAttemptAt),
     check("mail_outbox_attempts_range", sql`${t.attempts} >= 0`),
     check("mail_outbox_has_recipients", sql`cardinality(${t.recipients}) >= 1`),
+  ],
+);
+
+// A link that opens one job's report without an account, sent to the customer at sign-off. Only
+// the SHA-256 of its random token is kept; the token itself is in the mail alone.
+export const customerLinks = pgTable(
+  "customer_links",
+  {
+    id: uuid("id").primaryKey().defaultRandom(),
+    jobId: uuid("job_id")
+      .notNull()
+      .references(() => jobs.id, { onDelete: "cascade" }),
+    tokenHash: text("token_hash").notNull(),
+    expiresAt: timestamp("expires_at", { withTimezone: true }).notNull(),
+    revokedAt: timestamp("revoked_at", { withTimezone: true }),
+    revokedById: uuid("revoked_by_id").references(() => users.id, { onDelete: "restrict" }),
+    createdById: uuid("created_by_id")
+      .notNull()
+      .references(() => users.id, { onDelete: "restrict" }),
+    createdAt: timestamp("created_at", { withTimezone: true }).notNull().defaultNow(),
+  },
+  (t) => [
+    unique("customer_links_token_hash_unique").on(t.tokenHash),
+    index("customer_links_job_idx").on(t.jobId, t.createdAt),
+    check("customer_links_expiry_after_creation", sql`${t.expiresAt} > ${t.createdAt}`),
+    check("customer_links_revoked_by", sql`(${t.revokedAt} is null) = (${t.revokedById} is null)`),
   ],
 );
 
@@ -644,6 +696,7 @@ export type TorqueSheet = typeof torqueSheets.$inferSelect;
 export type TorqueTick = typeof torqueTicks.$inferSelect;
 export type Review = typeof reviews.$inferSelect;
 export type MailOutboxRow = typeof mailOutbox.$inferSelect;
+export type CustomerLink = typeof customerLinks.$inferSelect;
 export type UserRole = (typeof userRole.enumValues)[number];
 export type JobStatus = (typeof jobStatus.enumValues)[number];
 export type SeatState = (typeof seatState.enumValues)[number];

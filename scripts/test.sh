@@ -13,8 +13,8 @@ command -v aubioonset >/dev/null 2>&1 || need+=(aubio-tools)
 command -v espeak-ng >/dev/null 2>&1 || need+=(espeak-ng)
 # ffmpeg encodes the MP4/AAC, M4A, WebM, Ogg and MP3 recordings the upload and "Use a recording" tests use.
 command -v ffmpeg >/dev/null 2>&1 || need+=(ffmpeg)
-# poppler-utils (pdfinfo, pdftotext) reads printed reports back page by page (tests/e2e/report-print.test.ts).
-command -v pdftotext >/dev/null 2>&1 || need+=(poppler-utils)
+# poppler-utils (pdfinfo, pdftoppm, pdftotext) reads printed reports and the report PDF back page by page.
+{ command -v pdftoppm >/dev/null 2>&1 && command -v pdftotext >/dev/null 2>&1 && command -v pdfinfo >/dev/null 2>&1; } || need+=(poppler-utils)
 if [ -z "${TEST_DATABASE_URL:-}" ]; then
   ls /usr/lib/postgresql/*/bin/postgres >/dev/null 2>&1 || need+=(postgresql)
 fi

@@ -5,6 +5,7 @@ import type { ReviewRow } from "@/db/queries/reviews";
 import type { JobStatus } from "@/db/schema";
 import { submitHeadReopen, submitHeadReview } from "@/lib/actions/review";
 import { initialActionState } from "@/lib/actions/state";
+import type { SignOffGap } from "@/lib/review/completeness";
 import { ReopenForm } from "./reopen-form";
 import { ReviewHistory } from "./review-history";
 
@@ -18,10 +19,30 @@ export interface HeadReviewPanelProps {
   reviews: ReviewRow[];
   /** Whether the signed-in person is a supervisor; others see the history only. */
   canReview: boolean;
+  /** What the record lacks (lib/review/completeness.ts); anything but seats needs a reason to sign off. */
+  gaps?: SignOffGap[];
+  needsReason?: boolean;
+  /** Who the report goes to: the customer's address, if any, and the supervisor's own. */
+  customer?: { name: string; email: string | null };
+  supervisorEmail?: string | null;
+  /** The photo rule, in words, as the server checks it. */
+  photoRule?: string;
 }
 
 /** Sign off or send back the head as a whole with a comment, or reopen a signed-off head with a reason. */
-export function HeadReviewPanel({ jobId, jobNumber, status, unapprovedSeatCodes, reviews, canReview }: HeadReviewPanelProps) {
+export function HeadReviewPanel({
+  jobId,
+  jobNumber,
+  status,
+  unapprovedSeatCodes,
+  reviews,
+  canReview,
+  gaps = [],
+  needsReason = false,
+  customer,
+  supervisorEmail,
+  photoRule,
+}: HeadReviewPanelProps) {
   const [reviewState, reviewAction, reviewing] = useActionState(submitHeadReview, initialActionState);
   const ready = unapprovedSeatCodes.length === 0;
 
@@ -34,10 +55,70 @@ export function HeadReviewPanel({ jobId, jobNumber, status, unapprovedSeatCodes,
       {canReview && status === "awaiting_audit" ? (
         <form action={reviewAction} className="flex flex-col gap-2">
           <input type="hidden" name="jobId" value={jobId} />
-          {!ready ? (
-            <p className="text-sm text-amber-900">
-              Not approved yet: {unapprovedSeatCodes.join(", ")}. Approve every seat before signing off the head.
-            </p>
+          <div className="flex flex-col gap-1 text-sm" data-testid="sign-off-record">
+            <p className="font-semibold">Before signing off</p>
+            {gaps.length === 0 ? (
+              <p className="text-emerald-800">
+                The record is complete: every seat approved, every journal clearance measured, the cap torque sheets finished, every seat&apos;s
+                done-checks passed and photographed.
+              </p>
+            ) : (
+              <ul className="flex list-disc flex-col gap-1 pl-5 text-amber-900" data-testid="sign-off-gaps">
+                {gaps.map((g, i) => (
+                  <li key={`${g.kind}-${i}`} data-gap={g.kind}>
+                    {g.text}
+                    {g.details.length ? (
+                      <details className="text-stone-700">
+                        <summary className="min-h-11 cursor-pointer py-2.5">Details</summary>
+                        <ul className="pl-4">
+                          {g.details.map((d) => (
+                            <li key={d}>{d}</li>
+                          ))}
+                        </ul>
+                      </details>
+                    ) : null}
+                  </li>
+                ))}
+              </ul>
+            )}
+            {photoRule ? <p className="text-stone-600">Photos: {photoRule}.</p> : null}
+            {!ready ? <p className="text-amber-900">Approve every seat before signing off the head.</p> : null}
+          </div>
+          {customer ? (
+            customer.email ? (
+              <p className="text-sm text-stone-700" data-testid="sign-off-recipient">
+                Signing off sends the report (PDF and a link that opens without an account) to {customer.name} at{" "}
+                <span className="font-semibold">{customer.email}</span>
+                {supervisorEmail ? <>, with a copy to you</> : null}.
+              </p>
+            ) : (
+              <p className="rounded-lg border border-amber-400 bg-amber-50 p-2 text-sm text-amber-950" data-testid="sign-off-recipient" role="note">
+                {customer.name} has no e-mail on file: the report will go to you only{supervisorEmail ? ` (${supervisorEmail})` : ""}. Add one under
+                the customer to send it to them.
+              </p>
+            )
+          ) : null}
+          {ready && needsReason ? (
+            <>
+              <label className="flex flex-col gap-1 text-sm font-semibold">
+                Reason for signing off with the record incomplete
+                <textarea
+                  name="incompleteReason"
+                  minLength={3}
+                  maxLength={2000}
+                  rows={2}
+                  aria-invalid={Boolean(reviewState.fieldErrors.incompleteReason)}
+                  aria-describedby="incomplete-reason-help"
+                  className="rounded-lg border border-stone-400 p-2 font-normal"
+                />
+              </label>
+              <p id="incomplete-reason-help" className="text-xs text-stone-600">
+                Required to sign off; the head report prints it under the sign-off. Sending back needs none.
+              </p>
+              {reviewState.fieldErrors.incompleteReason ? (
+                <p className="text-sm text-rose-700">{reviewState.fieldErrors.incompleteReason[0]}</p>
+              ) : null}
+            </>
           ) : null}
           <label className="flex flex-col gap-1 text-sm font-semibold">
             Comment
@@ -72,11 +153,12 @@ export function HeadReviewPanel({ jobId, jobNumber, status, unapprovedSeatCodes,
               Send back to the bench
             </button>
           </div>
-          <p aria-live="polite" className={`text-sm ${reviewState.ok ? "text-emerald-800" : "text-rose-700"}`}>
-            {reviewState.message}
-          </p>
         </form>
       ) : null}
+
+      <p aria-live="polite" data-testid="head-review-message" className={`text-sm ${reviewState.ok ? "text-emerald-800" : "text-rose-700"}`}>
+        {reviewState.message}
+      </p>
 
       {canReview && status === "signed_off" ? (
         <ReopenForm action={submitHeadReopen} fields={{ jobId }} label="Reopen the head" />

@@ -15,6 +15,9 @@ export interface ReviewRow {
   comment: string | null;
   /** Why the seat was approved without all its done-checks passed; null otherwise. */
   checksReason: string | null;
+  /** A head signed off with its record incomplete: what was incomplete and why it was signed off anyway. */
+  incompleteItems: string[] | null;
+  incompleteReason: string | null;
   reviewerId: string;
   reviewerName: string;
   createdAt: string;
@@ -37,6 +40,8 @@ export async function getReviews(db: Db, shopId: string, jobId: string): Promise
     decision: review.decision,
     comment: review.comment,
     checksReason: review.checksReason,
+    incompleteItems: review.incompleteItems,
+    incompleteReason: review.incompleteReason,
     reviewerId: review.reviewerId,
     reviewerName,
     createdAt: review.createdAt.toISOString(),

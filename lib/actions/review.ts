@@ -6,8 +6,9 @@
 import { revalidatePath } from "next/cache";
 import { getDb } from "@/db/client";
 import { requireActor } from "@/lib/auth/guard";
-import { approveSettledSeats, reopenHead, reopenSeat, reviewHead, reviewSeat } from "@/lib/review/service";
-import { approveSettledSchema, headReopenSchema, headReviewSchema, seatReopenSchema, seatReviewSchema } from "@/lib/review/validation";
+import { approveSettledSeats, reopenHead, reopenSeat, reviewHead, reviewSeat, type HeadReviewResult } from "@/lib/review/service";
+import { revokeCustomerLink } from "@/lib/report/customer-links";
+import { approveSettledSchema, customerLinkRevokeSchema, headReopenSchema, headReviewSchema, seatReopenSchema, seatReviewSchema } from "@/lib/review/validation";
 import { actionFailure, type ActionState } from "./state";
 
 const text = (f: FormData, k: string) => {
@@ -20,6 +21,17 @@ function done(jobId: string, message: string): ActionState {
   revalidatePath("/jobs");
   revalidatePath("/audit");
   return { ok: true, message, fieldErrors: {} };
+}
+
+/** What the supervisor is told after a sign-off: where the report went. */
+function signedOffMessage(r: HeadReviewResult): string {
+  const report = r.report;
+  if (!report) return `Job ${r.number} signed off.`;
+  if (report.customerEmail) return `Job ${r.number} signed off. Report sent to ${report.customerEmail}.`;
+  const you = report.recipients[0];
+  return you
+    ? `Job ${r.number} signed off. ${report.customerName} has no e-mail on file: the report went to you only (${you}).`
+    : `Job ${r.number} signed off. Nobody has an e-mail address on file: no report was sent.`;
 }
 
 export async function submitSeatReview(_prev: ActionState, f: FormData): Promise<ActionState> {
@@ -83,9 +95,14 @@ export async function submitSeatReopen(_prev: ActionState, f: FormData): Promise
 export async function submitHeadReview(_prev: ActionState, f: FormData): Promise<ActionState> {
   try {
     const actor = await requireActor("jobs:audit");
-    const v = headReviewSchema.parse({ jobId: text(f, "jobId"), decision: text(f, "decision"), comment: text(f, "comment") });
+    const v = headReviewSchema.parse({
+      jobId: text(f, "jobId"),
+      decision: text(f, "decision"),
+      comment: text(f, "comment"),
+      incompleteReason: text(f, "incompleteReason"),
+    });
     const r = await reviewHead(await getDb(), actor, v);
-    return done(v.jobId, r.status === "signed_off" ? `Job ${r.number} signed off.` : `Job ${r.number} sent back to the bench.`);
+    return done(v.jobId, r.status === "signed_off" ? signedOffMessage(r) : `Job ${r.number} sent back to the bench.`);
   } catch (err) {
     return actionFailure(err);
   }
@@ -97,6 +114,18 @@ export async function submitHeadReopen(_prev: ActionState, f: FormData): Promise
     const v = headReopenSchema.parse({ jobId: text(f, "jobId"), reason: text(f, "reason") });
     const r = await reopenHead(await getDb(), actor, v);
     return done(v.jobId, `Job ${r.number} reopened and back at the bench.`);
+  } catch (err) {
+    return actionFailure(err);
+  }
+}
+
+export async function submitCustomerLinkRevoke(_prev: ActionState, f: FormData): Promise<ActionState> {
+  try {
+    const actor = await requireActor("jobs:audit");
+    const v = customerLinkRevokeSchema.parse({ linkId: text(f, "linkId"), jobId: text(f, "jobId") });
+    const r = await revokeCustomerLink(await getDb(), actor, { linkId: v.linkId });
+    revalidatePath(`/jobs/${r.jobId}`);
+    return { ok: true, message: `The customer's link to ${r.jobNumber}'s report is revoked; it no longer opens.`, fieldErrors: {} };
   } catch (err) {
     return actionFailure(err);
   }

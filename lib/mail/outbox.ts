@@ -30,6 +30,14 @@ export const enqueueMailSchema = z.object({
   html: z.string().min(1),
   text: z.string().min(1),
   createdById: z.uuid().nullish(),
+  // One file sent with the message, stored with it so a retry sends the same bytes.
+  attachment: z
+    .object({
+      filename: z.string().trim().min(1).max(200).regex(/^[^/\\\r\n]+$/, "A file name, without folders."),
+      contentType: z.string().trim().min(3).max(100),
+      content: z.instanceof(Buffer).refine((b) => b.byteLength > 0 && b.byteLength <= 10 * 1024 * 1024, "An attachment of 1 byte to 10 MB."),
+    })
+    .nullish(),
 });
 
 export type EnqueueMailInput = z.input<typeof enqueueMailSchema>;
@@ -49,6 +57,9 @@ export async function enqueueMail(db: Writer, input: EnqueueMailInput): Promise<
       html: data.html,
       text: data.text,
       createdById: data.createdById ?? null,
+      attachmentName: data.attachment?.filename ?? null,
+      attachmentType: data.attachment?.contentType ?? null,
+      attachment: data.attachment?.content ?? null,
     })
     .returning({ id: mailOutbox.id });
   return row!.id;
@@ -113,7 +124,11 @@ export async function processDueMail(
     const row = await claimNext(db, now);
     if (!row) break;
     try {
-      await transport.sendMail({ from, to: row.recipients, subject: row.subject, html: row.html, text: row.text });
+      const attachments =
+        row.attachment && row.attachmentName
+          ? [{ filename: row.attachmentName, contentType: row.attachmentType ?? "application/octet-stream", content: row.attachment }]
+          : undefined;
+      await transport.sendMail({ from, to: row.recipients, subject: row.subject, html: row.html, text: row.text, attachments });
       await db
         .update(mailOutbox)
         .set({ status: "sent", sentAt: new Date(), lastError: null })

@@ -7,7 +7,9 @@ import { heads, jobs, reviews, seats, type JobStatus, type SeatState } from "@/d
 import type { Actor } from "@/lib/auth/guard";
 import { recordAudit } from "@/lib/audit";
 import { BadRequestError, ConflictError, ForbiddenError, NotFoundError } from "@/lib/errors";
-import { queueHeadReportMail } from "@/lib/mail/head-report-mail";
+import { queueHeadReportMail, type HeadReportMail } from "@/lib/mail/head-report-mail";
+import { revokeLiveLinks } from "@/lib/report/customer-links";
+import { headCompleteness } from "./completeness";
 import { seatCode } from "@/lib/heads/layout";
 import { isClosed } from "@/lib/jobs/lifecycle";
 import { doneChecksOf, shortfallText } from "@/lib/bench/done-checks";
@@ -49,7 +51,7 @@ export function assertSupervisor(actor: Actor): void {
 }
 
 /** The text a decision is recorded with; the database also refuses empty or over-long text. */
-function requiredText(value: string, field: "comment" | "reason" | "checksReason", min: number): string {
+function requiredText(value: string, field: "comment" | "reason" | "checksReason" | "incompleteReason", min: number): string {
   const text = value.trim();
   if (text.length < min || text.length > 2000) {
     throw new BadRequestError(
@@ -322,15 +324,18 @@ export interface HeadReviewResult {
   jobId: string;
   number: string;
   status: JobStatus;
+  /** After a sign-off: the customer's link and where the report went. */
+  report?: HeadReportMail;
 }
 
 export async function reviewHead(
   db: Db,
   actor: Actor,
-  input: { jobId: string; decision: ReviewVerdict; comment: string },
+  input: { jobId: string; decision: ReviewVerdict; comment: string; incompleteReason?: string | null },
 ): Promise<HeadReviewResult> {
   assertSupervisor(actor);
   const comment = requiredText(input.comment, "comment", 3);
+  const givenReason = input.incompleteReason?.trim() ? requiredText(input.incompleteReason, "incompleteReason", 3) : null;
   return db.transaction(async (tx) => {
     const job = await lockJob(tx, actor.shopId, input.jobId);
     if (job.status !== "awaiting_audit") {
@@ -338,25 +343,36 @@ export async function reviewHead(
         `Job ${job.number} is ${STATUS_WORDS[job.status]}; a head is ${input.decision === "approved" ? "signed off" : "sent back"} only while it is awaiting audit.`,
       );
     }
+    // What the record lacks, read under the job's lock: the panel showed the same list.
+    let incompleteItems: string[] | null = null;
+    let incompleteReason: string | null = null;
     if (input.decision === "approved") {
       const all = await tx
-        .select()
+        .select({ id: seats.id })
         .from(seats)
         .innerJoin(heads, eq(heads.id, seats.headId))
         .where(eq(heads.jobId, job.id))
-        .orderBy(asc(seats.cylinder), asc(seats.kind), asc(seats.position));
-      const open = all.map((r) => r.seats).filter((s) => s.state !== "approved");
+        .limit(1);
       if (all.length === 0) throw new ConflictError(`Job ${job.number} has no seats to sign off.`);
-      if (open.length > 0) {
-        const codes = open.map((s) => seatCode(s));
+      const record = await headCompleteness(tx as unknown as Db, actor.shopId, job.id);
+      const codes = record.unapprovedSeatCodes;
+      if (codes.length > 0) {
         throw new ConflictError(
           `Job ${job.number} cannot be signed off: ${codes.length === 1 ? "seat" : "seats"} ${codes.join(", ")} ${codes.length === 1 ? "is" : "are"} not approved yet.`,
         );
       }
+      if (record.needsReason) {
+        if (!givenReason) {
+          const message = `Job ${job.number}'s record is incomplete (${record.gaps.map((g) => g.text).join(" ")}) Give a reason for signing it off anyway, or send it back.`;
+          throw new BadRequestError(message, { incompleteReason: [message] });
+        }
+        incompleteItems = record.gaps.map((g) => g.text);
+        incompleteReason = givenReason;
+      }
     }
     const next: JobStatus = input.decision === "approved" ? "signed_off" : "at_bench";
     await tx.update(jobs).set({ status: next, updatedAt: new Date() }).where(eq(jobs.id, job.id));
-    await tx.insert(reviews).values({ jobId: job.id, seatId: null, decision: input.decision, comment, reviewerId: actor.id });
+    await tx.insert(reviews).values({ jobId: job.id, seatId: null, decision: input.decision, comment, incompleteItems, incompleteReason, reviewerId: actor.id });
     await recordAudit(tx, {
       actorId: actor.id,
       action: input.decision === "approved" ? "job.signed_off" : "job.sent_back",
@@ -364,11 +380,11 @@ export async function reviewHead(
       entityId: job.id,
       jobId: job.id,
       before: { status: job.status },
-      after: { status: next, comment },
+      after: { status: next, comment, ...(incompleteReason ? { incompleteItems, incompleteReason } : {}) },
     });
-    // The customer's record goes out with the sign-off, or not at all.
-    if (input.decision === "approved") await queueHeadReportMail(tx, job.id, actor.id, comment);
-    return { jobId: job.id, number: job.number, status: next };
+    // The customer's link and record go out with the sign-off, or not at all.
+    const report = input.decision === "approved" ? await queueHeadReportMail(tx, job.id, actor.id, comment) : undefined;
+    return { jobId: job.id, number: job.number, status: next, report };
   });
 }
 
@@ -384,6 +400,8 @@ export async function reopenHead(db: Db, actor: Actor, input: { jobId: string; r
     const next: JobStatus = "at_bench";
     await tx.update(jobs).set({ status: next, updatedAt: new Date() }).where(eq(jobs.id, job.id));
     await tx.insert(reviews).values({ jobId: job.id, seatId: null, decision: "reopened", comment: reason, reviewerId: actor.id });
+    // The report the customer was sent no longer stands: its links stop opening.
+    await revokeLiveLinks(tx, job.id, actor.id, "head reopened");
     await recordAudit(tx, {
       actorId: actor.id,
       action: "job.reopened",

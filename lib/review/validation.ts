@@ -2,7 +2,7 @@
 import { z } from "zod";
 import { DATE_RANGE_MESSAGE, isCalendarDate, isDateInRange, storableText } from "@/lib/validations/text";
 import { uuidText } from "@/lib/validations/ids";
-import { checksReasonSchema } from "@/lib/validations/done-checks";
+import { blankToUndefined, checksReasonSchema } from "@/lib/validations/done-checks";
 
 const comment = storableText(
   z
@@ -23,7 +23,6 @@ const reason = storableText(
 const decision = z.enum(["approved", "sent_back"], { error: "Choose approve or send back." });
 
 /** An empty field is no value at all. */
-const blankToUndefined = (v: unknown) => (typeof v === "string" && v.trim() === "" ? undefined : v);
 
 /** A seat's comment: optional to approve, required to send back (checked on the whole form). */
 const seatCommentField = z.preprocess(blankToUndefined, comment.optional());
@@ -57,7 +56,19 @@ export const approveSettledSchema = z.object({
   checksReason: checksReasonSchema,
 });
 export const seatReopenSchema = z.object({ seatId: uuidText("Unknown seat."), jobId: uuidText("Unknown job."), reason });
-export const headReviewSchema = z.object({ jobId: uuidText("Unknown job."), decision, comment });
+// Required by the service when the head's record is incomplete (lib/review/completeness.ts).
+const incompleteReason = z.preprocess(
+  blankToUndefined,
+  storableText(
+    z
+      .string({ error: "The reason must be text." })
+      .trim()
+      .min(3, "Give a reason of at least 3 characters: why the head is signed off with its record incomplete.")
+      .max(2000, "Keep the reason under 2000 characters."),
+  ).optional(),
+);
+export const headReviewSchema = z.object({ jobId: uuidText("Unknown job."), decision, comment, incompleteReason });
+export const customerLinkRevokeSchema = z.object({ linkId: uuidText("Unknown link."), jobId: uuidText("Unknown job.") });
 export const headReopenSchema = z.object({ jobId: uuidText("Unknown job."), reason });
 
 const optionalUuid = (what: string) =>

@@ -10,7 +10,7 @@ export { DONE_CHECK_KINDS, DONE_CHECK_RESULTS, type DoneCheckKind, type DoneChec
 export const NOTE_MAX = 500;
 
 /** An empty field is no value at all. */
-const blankToUndefined = (v: unknown) => (typeof v === "string" && v.trim() === "" ? undefined : v);
+export const blankToUndefined = (v: unknown) => (typeof v === "string" && v.trim() === "" ? undefined : v);
 
 export const doneCheckSchema = z.object({
   seatId: uuidText("Unknown seat."),

@@ -8,6 +8,7 @@ import { freshPglite, freshServerDatabase, serverUrl, type TestDatabase } from "
 const EXPECTED_TABLES = [
   "audit_entries",
   "camshafts",
+  "customer_links",
   "customers",
   "engine_specs",
   "heads",

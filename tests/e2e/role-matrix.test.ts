@@ -343,6 +343,8 @@ interface Probe {
   state?(r: JobRecords): Promise<unknown>;
   /** Checks on an answer the gate let through. */
   allowed?(res: Response, p: Persona, r: JobRecords, before: unknown): Promise<void>;
+  /** Checks on a refusal that is a page for people rather than JSON (the customer's report link). */
+  refusedPage?(res: Response): Promise<void>;
 }
 
 const strokes = (n: number) =>
@@ -361,6 +363,15 @@ const strokes = (n: number) =>
 const personaWav = (p: Persona) => wav(40 * (PERSONAS.indexOf(p) + 1));
 
 const PROBES: Record<string, Probe> = {
+  "GET /r/[token]": {
+    // A token that is no link: the same plain 404 for every caller, signed in or not (the link,
+    // not a session, is the key; tests/e2e/customer-report.test.ts opens a real one).
+    request: () => ({ path: `/r/${"Q".repeat(43)}` }),
+    refusedPage: async (res) => {
+      expect(res.headers.get("content-type")).toMatch(/^text\/html/);
+      expect(await res.text()).toContain("There is no report at this address.");
+    },
+  },
   "GET /api/health": {
     request: () => ({ path: "/api/health" }),
     allowed: async (res) => expect(await res.json()).toMatchObject({ ok: true }),
@@ -579,7 +590,8 @@ describe("route handlers", () => {
               await probe.allowed?.(res, p, r, before);
               return;
             }
-            if (method !== "HEAD") {
+            if (probe.refusedPage) await probe.refusedPage(res);
+            else if (method !== "HEAD") {
               const body = (await res.json()) as { error: string; message: string };
               expect(body).toMatchObject({
                 error: expected === 401 ? "unauthorized" : "forbidden",

@@ -1,5 +1,6 @@
-// A supervisor audits a demo head in the browser: approves every seat, signs the head off, and
-// the report reaches the server's local mailbox with the right recipients, subject and link.
+// A supervisor audits a demo head in the browser: approves every seat, signs the head off (giving
+// the reason the seeded record needs: no clearances, torque sheet or photos), and the report
+// reaches the server's local mailbox with the right recipients, subject and public link.
 import fs from "node:fs";
 import path from "node:path";
 import { afterAll, beforeAll, describe, expect, inject, it } from "vitest";
@@ -50,9 +51,12 @@ describe("sign-off in the browser", () => {
       await panel.getByRole("button", { name: "Approve seat" }).waitFor({ state: "detached", timeout: 15_000 });
     }
     const head = page.getByTestId("head-review-panel");
+    expect(await head.getByTestId("sign-off-recipient").innerText()).toContain("secretary@saltmarsh-vmc.example");
     await head.locator("textarea[name=comment]").fill("All eight seats approved; head signed off.");
+    await head.getByLabel("Reason for signing off with the record incomplete").fill("Club measures the journals and torques the caps at refit.");
     await head.getByRole("button", { name: "Sign off the head" }).click();
     await page.getByTestId("job-status").getByText("Signed off").waitFor({ timeout: 15_000 });
+    expect(await head.getByTestId("head-review-message").innerText()).toBe("Job MHW-0143 signed off. Report sent to secretary@saltmarsh-vmc.example.");
 
     // A technician's stroke on a seat of a signed-off head is refused.
     const seatId = await page.locator('[data-testid=seat-map] a[href^="/bench/"]').first().getAttribute("href");
@@ -73,7 +77,10 @@ describe("sign-off in the browser", () => {
     expect(mail!).toMatch(/^Subject: Head report MHW-0143: signed off/m);
     expect(mail!).toContain("secretary@saltmarsh-vmc.example");
     expect(mail!).toContain(sup.email);
-    expect(mail!).toContain(`/jobs/${job.id}/report`);
+    // The customer has no account: the link is the report's public address (tests/e2e/customer-report.test.ts opens one).
+    expect(mail!).toMatch(new RegExp(`${baseURL.replace(/[.:/]/g, "\\$&")}/r/[A-Za-z0-9_-]{43}`));
+    expect(mail!).not.toContain(`/jobs/${job.id}/report`);
+    expect(mail!).toMatch(/Content-Type: application\/pdf; name=head-report-MHW-0143\.pdf/);
     await context.close();
   });
 

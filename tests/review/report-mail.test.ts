@@ -44,12 +44,14 @@ describe("head report mail", () => {
     for (const s of seatRows) await reviewSeat(t.db, rhea, { seatId: s.id, decision: "approved", comment: "Even grey ring, leak test dry." });
     expect(await t.db.select().from(mailOutbox)).toHaveLength(0);
 
-    await reviewHead(t.db, rhea, { jobId: job!.id, decision: "approved", comment: "All eight seats lapped and checked." });
+    await reviewHead(t.db, rhea, { jobId: job!.id, decision: "approved", comment: "All eight seats lapped and checked.", incompleteReason: "Journals measured at refit." });
     const queued = await t.db.select().from(mailOutbox);
     expect(queued).toHaveLength(1);
     expect(queued[0]!.kind).toBe("head_report");
     expect(queued[0]!.recipients.sort()).toEqual([customer!.email!, rhea.email].sort());
-    expect(queued[0]!.text).toContain(`/jobs/${job!.id}/report`);
+    // The customer has no account: the mail links to the report's public address, not the shop's page.
+    expect(queued[0]!.text).toMatch(/\/r\/[A-Za-z0-9_-]{43}\n/);
+    expect(queued[0]!.text).not.toContain(`/jobs/${job!.id}/report`);
     expect(queued[0]!.text).toContain("All eight seats lapped and checked.");
 
     const transport = nodemailer.createTransport({ host: "127.0.0.1", port: fake.port, secure: false, ignoreTLS: true });

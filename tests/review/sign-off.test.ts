@@ -199,8 +199,12 @@ describe("the head's sign-off", () => {
       await review.reviewSeat(db(), rhea, { seatId, decision: "approved", comment: `Seat ${code} band even` });
     }
     signInAs(rhea);
-    const res = await actions.submitHeadReview(initialActionState, h.form({ jobId: job.id, decision: "approved", comment: "Head signed off for collection" }));
-    expect(res).toMatchObject({ ok: true, message: "Job MHW-0143 signed off." });
+    // The seeded head has no clearances, torque sheet or photos, so signing off gives a reason.
+    const res = await actions.submitHeadReview(
+      initialActionState,
+      h.form({ jobId: job.id, decision: "approved", comment: "Head signed off for collection", incompleteReason: "Club measures the journals at refit." }),
+    );
+    expect(res).toMatchObject({ ok: true, message: "Job MHW-0143 signed off. Report sent to secretary@saltmarsh-vmc.example." });
     expect((await jobOf("MHW-0143")).status).toBe("signed_off");
     expect(await lastAudit(job.id)).toMatchObject({ action: "job.signed_off", actorId: rhea.id, before: { status: "awaiting_audit" }, after: { status: "signed_off" } });
     const [headReview] = await db().select().from(reviews).where(and(eq(reviews.jobId, job.id), sql`${reviews.seatId} is null`));

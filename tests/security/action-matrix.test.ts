@@ -254,6 +254,13 @@ async function failedMail(c: CaseContext): Promise<string> {
   return id;
 }
 
+/** A live customer's link to the job's report, as a sign-off would have made it. */
+async function liveCustomerLink(c: CaseContext): Promise<string> {
+  const { createCustomerLink } = await import("@/lib/report/customer-links");
+  const link = await createCustomerLink(db(), { jobId: c.job.jobId, createdById: userIds.get(EMAIL.supervisor)! });
+  return link.id;
+}
+
 /** A torque sheet on the head's second camshaft, with its next expected bolt. */
 async function torqueSheet(c: CaseContext) {
   const camshaft = c.job.camshafts[1]!;
@@ -381,6 +388,10 @@ const CASES: Record<string, Case> = {
           comment: "Cylinder 2 needs another pass.",
         }),
       );
+  },
+  "lib/actions/review.ts#submitCustomerLinkRevoke": async (c) => {
+    const linkId = await liveCustomerLink(c);
+    return () => action("lib/actions/review.ts#submitCustomerLinkRevoke")(prev, form({ jobId: c.job.jobId, linkId }));
   },
   "lib/actions/review.ts#submitHeadReopen": async (c) => {
     await setJob(c.job.jobId, "signed_off");

@@ -691,6 +691,12 @@ export const actionCases: ActionCase[] = [
   { group: "review actions", name: "approving every settled seat with a NUL byte in the reason", as: RHEA, field: "checksReason", run: (f) => approveSettled(f, [f.audit.seats.get("1I1")!], { checksReason: NUL_TEXT }) },
   { group: "review actions", name: "approving every settled seat with another shop's seat", as: RHEA, message: /not on job/, run: (f) => approveSettled(f, [f.other.seats.get("1I1")!]) },
   { group: "review actions", name: "approving every settled seat of another shop's head", as: RHEA, message: /your shop/, run: (f) => approveSettled(f, [f.other.seats.get("1I1")!], { jobId: f.other.jobId }) },
+  // submitHeadReview's reason for signing off an incomplete record, and submitCustomerLinkRevoke
+  { group: "review actions", name: "a NUL byte in the sign-off reason", as: RHEA, field: "incompleteReason", run: (f) => reviewActions.submitHeadReview(initialActionState, form({ jobId: f.audit.jobId, decision: "approved", comment: "All seats approved.", incompleteReason: NUL_TEXT })) },
+  { group: "review actions", name: "a 1 MB sign-off reason", as: RHEA, field: "incompleteReason", run: (f) => reviewActions.submitHeadReview(initialActionState, form({ jobId: f.audit.jobId, decision: "approved", comment: "All seats approved.", incompleteReason: HUGE(MB) })) },
+  { group: "review actions", name: "a sign-off reason that is one letter", as: RHEA, field: "incompleteReason", run: (f) => reviewActions.submitHeadReview(initialActionState, form({ jobId: f.audit.jobId, decision: "approved", comment: "All seats approved.", incompleteReason: "x" })) },
+  { group: "review actions", name: "a report link id that climbs paths", as: RHEA, field: "linkId", run: (f) => reviewActions.submitCustomerLinkRevoke(initialActionState, form({ jobId: f.audit.jobId, linkId: TRAVERSAL_ID })) },
+  { group: "review actions", name: "a report link that is not in the shop", as: RHEA, message: /your shop/, run: (f) => reviewActions.submitCustomerLinkRevoke(initialActionState, form({ jobId: f.audit.jobId, linkId: randomUUID() })) },
 
   // saveDoneCheck, and approving without the done-checks
   { group: "done-check actions", name: "an unknown check", as: INES, field: "kind", run: (f) => doneCheck(f, { kind: "sniff_test" }) },

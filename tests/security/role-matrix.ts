@@ -241,6 +241,15 @@ export const PAGE_MATRIX: Record<string, Row<PageOutcome>> = {
 export type CrossShopApi = 404 | "own-shop" | "n/a";
 
 export const ROUTE_MATRIX: Record<string, CrossShopRow<ApiOutcome, CrossShopApi>> = {
+  "GET /r/[token]": {
+    anonymous: 404,
+    technicianOwnJob: 404,
+    technicianOtherJob: 404,
+    supervisor: 404,
+    admin: 404,
+    otherShop: "n/a",
+    why: "The customer's report link: the token is the key, not a session, so a token that is no link is a plain 404 for everyone; a real one opens for anyone holding it (200), 410 once expired or revoked.",
+  },
   "GET /api/health": {
     anonymous: 200,
     technicianOwnJob: 200,
@@ -519,6 +528,15 @@ export const ACTION_MATRIX: Record<string, CrossShopRow<ActionOutcome, CrossShop
     admin: "forbidden",
     otherShop: "not-found",
     why: "Signing off or sending back a head is a supervisor's alone.",
+  },
+  "lib/actions/review.ts#submitCustomerLinkRevoke": {
+    anonymous: "unauthorized",
+    technicianOwnJob: "forbidden",
+    technicianOtherJob: "forbidden",
+    supervisor: "ok",
+    admin: "forbidden",
+    otherShop: "not-found",
+    why: "Revoking a customer's report link is a supervisor's alone, like sign-off.",
   },
   "lib/actions/review.ts#submitHeadReopen": {
     anonymous: "unauthorized",

@@ -27,6 +27,11 @@ import { JOB_STATUS_LABELS, JOB_STATUS_TONES } from "@/lib/labels";
 import { auditStartedAt, unfinishedWork } from "@/lib/jobs/hand-in";
 import { allowedMoves, isClosed } from "@/lib/jobs/lifecycle";
 import { Fact } from "@/components/ui/fact";
+import { CustomerLinkList } from "@/components/report/customer-link-list";
+import { headCompleteness, PHOTO_RULE } from "@/lib/review/completeness";
+import { listCustomerLinks } from "@/lib/report/customer-links";
+import { getShopTimeZone } from "@/db/queries/shops";
+import { formatWhen } from "@/lib/dates";
 
 export const metadata: Metadata = { title: "Job" };
 
@@ -43,6 +48,20 @@ export default async function JobPage({ params }: PageProps<"/jobs/[jobId]">) {
   const doneChecks = await getJobDoneChecks(db, actor.shopId, job.id);
   const unapproved = await getUnapprovedSeatCodes(db, actor.shopId, job.id);
   const canReview = actor.role === "supervisor";
+  // The sign-off panel's list of what is incomplete, and the customer's report links.
+  const record = job.status === "awaiting_audit" && canReview ? await headCompleteness(db, actor.shopId, job.id) : null;
+  const timeZone = await getShopTimeZone(db, actor.shopId);
+  const links = (await listCustomerLinks(db, actor.shopId, job.id)).map((l) => ({
+    id: l.id,
+    status: l.status,
+    sent: formatWhen(l.createdAt, timeZone),
+    sentBy: l.createdBy,
+    expires: formatWhen(l.expiresAt, timeZone),
+    revoked: l.revokedAt ? formatWhen(l.revokedAt, timeZone) : null,
+    revokedBy: l.revokedBy,
+    openings: l.openings,
+    lastOpened: l.lastOpenedAt ? formatWhen(l.lastOpenedAt, timeZone) : null,
+  }));
   const moves = allowedMoves(job.status, actor.role).map((m) => ({ to: m.to, label: m.label }));
   const unfinished = moves.some((m) => m.to === "awaiting_audit") ? await unfinishedWork(db, job.id) : null;
   // The technician (or a supervisor) may take a head back until the supervisor starts its audit.
@@ -176,7 +195,8 @@ export default async function JobPage({ params }: PageProps<"/jobs/[jobId]">) {
                 </p>
                 <ValveList jobId={job.id} valves={valves} seats={head.seats.map((s) => ({ id: s.id, code: seatCode(s), kind: s.kind }))} closed={closed} />
               </details>
-              <details className="rounded-xl border border-stone-300 bg-white p-3" open={job.status === "awaiting_audit" && canReview}>
+              {/* Kept open once signed off, so the supervisor sees where the report went and its link. */}
+              <details className="rounded-xl border border-stone-300 bg-white p-3" open={(job.status === "awaiting_audit" || job.status === "signed_off") && canReview}>
                 <summary className="min-h-11 py-2.5 cursor-pointer font-semibold">Audit and sign-off</summary>
                 <div className="mt-2 flex flex-col gap-3">
                   <div className="flex flex-wrap gap-2 text-sm">
@@ -191,6 +211,11 @@ export default async function JobPage({ params }: PageProps<"/jobs/[jobId]">) {
                     unapprovedSeatCodes={unapproved}
                     reviews={reviews.filter((r) => r.seatId === null)}
                     canReview={canReview}
+                    gaps={record?.gaps}
+                    needsReason={record?.needsReason}
+                    customer={record?.customer}
+                    supervisorEmail={actor.email}
+                    photoRule={PHOTO_RULE}
                   />
                   {canReview && !closed ? (
                     <ApproveSettledForm
@@ -204,6 +229,7 @@ export default async function JobPage({ params }: PageProps<"/jobs/[jobId]">) {
                         })}
                     />
                   ) : null}
+                  <CustomerLinkList jobId={job.id} links={links} canRevoke={canReview} />
                   <ul className="grid grid-cols-1 gap-2 md:grid-cols-2">
                     {head.seats.map((s) => (
                       <li key={s.id} className="rounded-lg border border-stone-200 p-2">

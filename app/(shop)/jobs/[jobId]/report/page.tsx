@@ -434,6 +434,19 @@ export default async function HeadReportPage({ params }: PageProps<"/jobs/[jobId
                     <span className="font-semibold">Approved without all done-checks:</span> {r.checksReason}
                   </p>
                 ) : null}
+                {r.incompleteReason ? (
+                  <div className="mt-1 text-stone-900" data-testid="report-incomplete-reason">
+                    <p className="font-semibold">Signed off with the record incomplete:</p>
+                    <ul className="list-disc pl-5">
+                      {(r.incompleteItems ?? []).map((item) => (
+                        <li key={item}>{item}</li>
+                      ))}
+                    </ul>
+                    <p>
+                      <span className="font-semibold">Reason:</span> {r.incompleteReason}
+                    </p>
+                  </div>
+                ) : null}
               </li>
             ))}
           </ul>
