@@ -4,6 +4,8 @@ import Link from "next/link";
 import { notFound } from "next/navigation";
 import { z } from "zod";
 import { getDb } from "@/db/client";
+import { eq } from "drizzle-orm";
+import { engineSpecs } from "@/db/schema";
 import { getJob, headSummary, seatCurves } from "@/db/queries/jobs";
 import { SeatMap } from "@/components/heads/seat-map";
 import { JobStatusActions } from "@/components/jobs/job-status-actions";
@@ -35,6 +37,9 @@ export default async function JobPage({ params }: PageProps<"/jobs/[jobId]">) {
   if (!job) notFound();
   const closed = isClosed(job.status);
   const specs = [...(await effectiveSpecs(db, job.id)).values()];
+  const [engine] = job.engineSpecId
+    ? await db.select({ id: engineSpecs.id, name: engineSpecs.name, retiredAt: engineSpecs.retiredAt }).from(engineSpecs).where(eq(engineSpecs.id, job.engineSpecId))
+    : [];
   const reviews = await getReviews(db, actor.shopId, job.id);
   const doneChecks = await getJobDoneChecks(db, actor.shopId, job.id);
   const unapproved = await getUnapprovedSeatCodes(db, actor.shopId, job.id);
@@ -211,6 +216,15 @@ export default async function JobPage({ params }: PageProps<"/jobs/[jobId]">) {
         <h2 id="job-specs" className="mb-2 text-lg font-semibold">
           Specifications for this job
         </h2>
+        {engine ? (
+          <p className="mb-2 text-sm" data-testid="job-engine-spec">
+            Engine in the library:{" "}
+            <Link href={`/specs#spec-${engine.id}`} className="font-semibold underline underline-offset-2">
+              {engine.name}
+            </Link>
+            {engine.retiredAt ? <span className="ml-2 rounded bg-stone-200 px-1.5 text-xs">retired: kept for this job</span> : null}
+          </p>
+        ) : null}
         {specs.length === 0 ? (
           <p className="text-stone-600">No figures on file: choose an engine from the specifications library when editing the job, or enter figures with each reading.</p>
         ) : (
