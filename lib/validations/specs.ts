@@ -55,8 +55,12 @@ export const specFigureSchema = z
         ctx.addIssue({ code: "custom", path: [f], message: `${info.label} has no ${f === "nominal" ? "single value" : FIELD_WORDS[f]}.` });
       }
     }
-    const si = (f: FigureField) => (s[f] === undefined ? undefined : toSi(info.quantity, Number(s[f]), unit));
-    for (const f of given) {
+    // A field that failed its own check (not a number) is left to its own message.
+    const si = (f: FigureField) => {
+      const n = s[f] === undefined ? NaN : Number(s[f]);
+      return Number.isFinite(n) && n >= 0 ? toSi(info.quantity, n, unit) : undefined;
+    };
+    for (const f of given.filter((g) => si(g) !== undefined)) {
       const v = si(f)!;
       if (v > SI_CEILING[info.quantity]) {
         ctx.addIssue({

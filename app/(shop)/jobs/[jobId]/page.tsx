@@ -87,7 +87,7 @@ export default async function JobPage({ params }: PageProps<"/jobs/[jobId]">) {
         <p className="text-lg font-semibold">{job.customer.name}</p>
         <p className="text-stone-700">{job.engineDescription}</p>
         <dl className="mt-2 grid grid-cols-2 gap-x-6 gap-y-1 text-sm sm:grid-cols-4">
-          <Fact label="Technician">{job.technician?.name ?? "Unassigned"}</Fact>
+          <Fact label="Technician">{job.technician ? `${job.technician.name}${job.technician.left ? " (left)" : ""}` : "Unassigned"}</Fact>
           <Fact label="Promised" figure>{formatDay(job.promisedOn)}</Fact>
           <Fact label="Contact">{job.customer.phone ?? job.customer.email ?? "—"}</Fact>
         </dl>
