@@ -27,7 +27,9 @@ const col = createColumnHelper<PeopleTableRow>();
 const nameOrEmail: FilterFn<PeopleTableRow> = (row, _id, value: string) => {
   const q = value.trim().toLowerCase();
   if (!q) return true;
-  return row.original.name.toLowerCase().includes(q) || row.original.email.toLowerCase().includes(q);
+  return (
+    row.original.name.toLowerCase().includes(q) || row.original.email.toLowerCase().includes(q)
+  );
 };
 
 export function PeopleTable({ people, selfId }: { people: PeopleTableRow[]; selfId: string }) {
@@ -44,12 +46,21 @@ export function PeopleTable({ people, selfId }: { people: PeopleTableRow[]; self
         cell: (c) => (
           <span className="font-semibold">
             {c.getValue()}
-            {c.row.original.id === selfId ? <span className="font-normal text-stone-500"> (you)</span> : null}
+            {c.row.original.id === selfId ? (
+              <span className="font-normal text-stone-500"> (you)</span>
+            ) : null}
           </span>
         ),
       }),
-      col.accessor("email", { header: "E-mail", cell: (c) => <span className="break-all text-stone-700">{c.getValue()}</span> }),
-      col.accessor("role", { header: "Role", filterFn: "equalsString", cell: (c) => ROLE_LABELS[c.getValue()] }),
+      col.accessor("email", {
+        header: "E-mail",
+        cell: (c) => <span className="break-all text-stone-700">{c.getValue()}</span>,
+      }),
+      col.accessor("role", {
+        header: "Role",
+        filterFn: "equalsString",
+        cell: (c) => ROLE_LABELS[c.getValue()],
+      }),
       col.accessor((r) => (r.active ? "active" : "inactive"), {
         id: "status",
         header: "Status",
@@ -57,11 +68,19 @@ export function PeopleTable({ people, selfId }: { people: PeopleTableRow[]; self
         cell: (c) => (
           <span className="flex flex-wrap gap-1">
             {c.row.original.active ? (
-              <span className="rounded-full bg-emerald-100 px-2 py-0.5 text-sm font-semibold text-emerald-900">Active</span>
+              <span className="rounded-full bg-emerald-100 px-2 py-0.5 text-sm font-semibold text-emerald-900">
+                Active
+              </span>
             ) : (
-              <span className="rounded-full bg-stone-200 px-2 py-0.5 text-sm font-semibold text-stone-800">Inactive (left)</span>
+              <span className="rounded-full bg-stone-200 px-2 py-0.5 text-sm font-semibold text-stone-800">
+                Inactive (left)
+              </span>
             )}
-            {c.row.original.locked ? <span className="rounded-full bg-rose-100 px-2 py-0.5 text-sm font-semibold text-rose-900">Locked</span> : null}
+            {c.row.original.locked ? (
+              <span className="rounded-full bg-rose-100 px-2 py-0.5 text-sm font-semibold text-rose-900">
+                Locked
+              </span>
+            ) : null}
           </span>
         ),
       }),
@@ -69,7 +88,11 @@ export function PeopleTable({ people, selfId }: { people: PeopleTableRow[]; self
         header: "Last sign-in",
         cell: (c) => {
           const v = c.getValue();
-          return v ? <time dateTime={v}>{c.row.original.lastSignInLabel}</time> : <span className="text-stone-500">Never</span>;
+          return v ? (
+            <time dateTime={v}>{c.row.original.lastSignInLabel}</time>
+          ) : (
+            <span className="text-stone-500">Never</span>
+          );
         },
       }),
     ],
@@ -100,11 +123,21 @@ export function PeopleTable({ people, selfId }: { people: PeopleTableRow[]; self
       <div className="flex flex-wrap items-end gap-3" role="search" aria-label="Filter people">
         <label className="flex flex-col gap-1 text-sm font-semibold">
           Name or e-mail
-          <input type="search" value={text} onChange={(e) => setText(e.target.value)} className={field} placeholder="Type to narrow" />
+          <input
+            type="search"
+            value={text}
+            onChange={(e) => setText(e.target.value)}
+            className={field}
+            placeholder="Type to narrow"
+          />
         </label>
         <label className="flex flex-col gap-1 text-sm font-semibold">
           Role
-          <select value={role} onChange={(e) => setRole(e.target.value as "" | UserRole)} className={field}>
+          <select
+            value={role}
+            onChange={(e) => setRole(e.target.value as "" | UserRole)}
+            className={field}
+          >
             <option value="">All roles</option>
             {ROLES.map((r) => (
               <option key={r} value={r}>
@@ -115,7 +148,11 @@ export function PeopleTable({ people, selfId }: { people: PeopleTableRow[]; self
         </label>
         <label className="flex flex-col gap-1 text-sm font-semibold">
           Status
-          <select value={status} onChange={(e) => setStatus(e.target.value as "" | "active" | "inactive")} className={field}>
+          <select
+            value={status}
+            onChange={(e) => setStatus(e.target.value as "" | "active" | "inactive")}
+            className={field}
+          >
             <option value="">Everyone</option>
             <option value="active">Active</option>
             <option value="inactive">Inactive</option>
@@ -154,7 +191,10 @@ export function PeopleTable({ people, selfId }: { people: PeopleTableRow[]; self
               const expanded = open === p.id;
               return (
                 <Fragment key={row.id}>
-                  <tr className={`border-t border-stone-200 ${p.active ? "" : "text-stone-500"}`} data-person={p.email}>
+                  <tr
+                    className={`border-t border-stone-200 ${p.active ? "" : "text-stone-500"}`}
+                    data-person={p.email}
+                  >
                     {row.getVisibleCells().map((cell) => (
                       <td key={cell.id} className="px-3 py-2 align-middle">
                         {flexRender(cell.column.columnDef.cell, cell.getContext())}

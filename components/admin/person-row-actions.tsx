@@ -8,11 +8,16 @@ import { ROLE_LABELS } from "@/lib/auth/roles";
 import { ROLES } from "@/lib/validations/auth";
 
 const field = "min-h-12 rounded-lg border border-stone-400 bg-white px-3 text-base";
-const button = "min-h-12 rounded-lg border border-stone-500 bg-white px-4 font-semibold disabled:opacity-50";
+const button =
+  "min-h-12 rounded-lg border border-stone-500 bg-white px-4 font-semibold disabled:opacity-50";
 
 function Result({ state, id }: { state: ActionState; id?: string }) {
   return (
-    <p id={id} aria-live="polite" className={`w-full text-sm ${state.ok ? "text-emerald-800" : "text-rose-700"}`}>
+    <p
+      id={id}
+      aria-live="polite"
+      className={`w-full text-sm ${state.ok ? "text-emerald-800" : "text-rose-700"}`}
+    >
       {state.message}
     </p>
   );
@@ -30,16 +35,27 @@ export function PersonRowActions({ person, isSelf }: { person: PersonRow; isSelf
       <section aria-label={`Access for ${person.name}`} className="flex flex-col gap-2">
         <h3 className="font-semibold">Access</h3>
         {isSelf ? (
-          <p className="text-sm text-stone-600">This is you: another admin must deactivate you or change your role.</p>
+          <p className="text-sm text-stone-600">
+            This is you: another admin must deactivate you or change your role.
+          </p>
         ) : person.active ? (
           confirming ? (
-            <form action={activeAction} className="flex flex-wrap items-center gap-2" onSubmit={() => setConfirming(false)}>
+            <form
+              action={activeAction}
+              className="flex flex-wrap items-center gap-2"
+              onSubmit={() => setConfirming(false)}
+            >
               <input type="hidden" name="id" value={person.id} />
               <input type="hidden" name="active" value="false" />
               <p className="w-full text-sm">
-                Deactivate {person.name}? They are signed out everywhere at once and cannot sign in; their jobs, reviews and audit entries keep their name.
+                Deactivate {person.name}? They are signed out everywhere at once and cannot sign in;
+                their jobs, reviews and audit entries keep their name.
               </p>
-              <button type="submit" disabled={activePending} className="min-h-12 rounded-lg bg-rose-800 px-4 font-semibold text-white disabled:opacity-60">
+              <button
+                type="submit"
+                disabled={activePending}
+                className="min-h-12 rounded-lg bg-rose-800 px-4 font-semibold text-white disabled:opacity-60"
+              >
                 {activePending ? "Deactivating…" : `Yes, deactivate ${person.name}`}
               </button>
               <button type="button" onClick={() => setConfirming(false)} className={button}>
@@ -73,7 +89,11 @@ export function PersonRowActions({ person, isSelf }: { person: PersonRow; isSelf
           </form>
         ) : null}
       </section>
-      <form action={roleAction} className="flex flex-wrap items-end gap-2" aria-label={`Role of ${person.name}`}>
+      <form
+        action={roleAction}
+        className="flex flex-wrap items-end gap-2"
+        aria-label={`Role of ${person.name}`}
+      >
         <input type="hidden" name="id" value={person.id} />
         <label className="flex flex-col gap-1 text-sm font-semibold">
           Role
@@ -90,7 +110,11 @@ export function PersonRowActions({ person, isSelf }: { person: PersonRow; isSelf
         </button>
         <Result state={roleState} />
       </form>
-      <form action={pwAction} className="flex flex-wrap items-end gap-2" aria-label={`Password of ${person.name}`}>
+      <form
+        action={pwAction}
+        className="flex flex-wrap items-end gap-2"
+        aria-label={`Password of ${person.name}`}
+      >
         <input type="hidden" name="id" value={person.id} />
         <label className="flex flex-col gap-1 text-sm font-semibold">
           New password
@@ -107,7 +131,11 @@ export function PersonRowActions({ person, isSelf }: { person: PersonRow; isSelf
         <button type="submit" disabled={pwPending} className={button}>
           {pwPending ? "Saving…" : "Reset password"}
         </button>
-        <p id={`pw-${person.id}-msg`} aria-live="polite" className={`w-full text-sm ${pwState.ok ? "text-emerald-800" : "text-rose-700"}`}>
+        <p
+          id={`pw-${person.id}-msg`}
+          aria-live="polite"
+          className={`w-full text-sm ${pwState.ok ? "text-emerald-800" : "text-rose-700"}`}
+        >
           {pwState.fieldErrors.password?.[0] ?? pwState.message}
         </p>
       </form>

@@ -25,7 +25,11 @@ export const SPEC_UNITS: Record<SpecQuantity, readonly SpecUnit[]> = {
   force: FORCE_UNITS,
 };
 
-export const SI_UNIT: Record<SpecQuantity, "mm" | "N·m" | "N"> = { length: "mm", torque: "N·m", force: "N" };
+export const SI_UNIT: Record<SpecQuantity, "mm" | "N·m" | "N"> = {
+  length: "mm",
+  torque: "N·m",
+  force: "N",
+};
 
 /**
  * The largest SI value that makes sense for a figure of each quantity on a cylinder head: a

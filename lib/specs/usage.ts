@@ -18,7 +18,11 @@ type Reader = Pick<Db, "select">;
 const CLOSED: JobStatus[] = ["signed_off", "collected"];
 
 /** Every job of the shop on these engines, by engine, open and closed alike. */
-export async function jobsUsingSpecs(db: Reader, shopId: string, specIds: string[]): Promise<Map<string, SpecJob[]>> {
+export async function jobsUsingSpecs(
+  db: Reader,
+  shopId: string,
+  specIds: string[],
+): Promise<Map<string, SpecJob[]>> {
   const out = new Map<string, SpecJob[]>();
   if (specIds.length === 0) return out;
   const rows = await db
@@ -35,12 +39,27 @@ export async function jobsUsingSpecs(db: Reader, shopId: string, specIds: string
 }
 
 /** The open jobs whose limits for `key` come from this engine's figure. */
-export async function affectedOpenJobs(db: Reader, shopId: string, specId: string, key: SpecKey): Promise<SpecJob[]> {
-  const overridden = db.select({ jobId: jobSpecOverrides.jobId }).from(jobSpecOverrides).where(eq(jobSpecOverrides.key, key));
+export async function affectedOpenJobs(
+  db: Reader,
+  shopId: string,
+  specId: string,
+  key: SpecKey,
+): Promise<SpecJob[]> {
+  const overridden = db
+    .select({ jobId: jobSpecOverrides.jobId })
+    .from(jobSpecOverrides)
+    .where(eq(jobSpecOverrides.key, key));
   return db
     .select({ id: jobs.id, number: jobs.number, status: jobs.status })
     .from(jobs)
-    .where(and(eq(jobs.shopId, shopId), eq(jobs.engineSpecId, specId), notInArray(jobs.status, CLOSED), notInArray(jobs.id, overridden)))
+    .where(
+      and(
+        eq(jobs.shopId, shopId),
+        eq(jobs.engineSpecId, specId),
+        notInArray(jobs.status, CLOSED),
+        notInArray(jobs.id, overridden),
+      ),
+    )
     .orderBy(asc(jobs.number));
 }
 

@@ -3,7 +3,11 @@ import Link from "next/link";
 import { asc, eq, inArray } from "drizzle-orm";
 import { getDb } from "@/db/client";
 import { engineSpecs, jobSpecOverrides, specValues, type SpecValue } from "@/db/schema";
-import { EngineSpecSettings, NewEngineSpecForm, SpecFigureForm } from "@/components/specs/spec-forms";
+import {
+  EngineSpecSettings,
+  NewEngineSpecForm,
+  SpecFigureForm,
+} from "@/components/specs/spec-forms";
 import { Cautions } from "@/components/sheets/cautions";
 import { requireActor } from "@/lib/auth/guard";
 import { can } from "@/lib/auth/roles";
@@ -16,7 +20,10 @@ import { affectedSentence, jobsUsingSpecs } from "@/lib/specs/usage";
 export const metadata: Metadata = { title: "Specifications" };
 
 const FIELDS = ["min", "max", "limit", "nominal"] as const;
-const COLUMN: Record<(typeof FIELDS)[number], "minValue" | "maxValue" | "limitValue" | "nominalValue"> = {
+const COLUMN: Record<
+  (typeof FIELDS)[number],
+  "minValue" | "maxValue" | "limitValue" | "nominalValue"
+> = {
   min: "minValue",
   max: "maxValue",
   limit: "limitValue",
@@ -32,7 +39,8 @@ function Figure({ v, field }: { v: SpecValue; field: (typeof FIELDS)[number] }) 
   if (v.enteredUnit && typed !== undefined && v.enteredUnit !== v.unit) {
     return (
       <span>
-        {typed} {unitLabel(v.enteredUnit)} <span className="block text-xs text-stone-500">{formatSi(quantity, si)}</span>
+        {typed} {unitLabel(v.enteredUnit)}{" "}
+        <span className="block text-xs text-stone-500">{formatSi(quantity, si)}</span>
       </span>
     );
   }
@@ -46,13 +54,25 @@ function Figure({ v, field }: { v: SpecValue; field: (typeof FIELDS)[number] }) 
 export default async function SpecsPage() {
   const actor = await requireActor("jobs:read");
   const db = await getDb();
-  const specs = await db.select().from(engineSpecs).where(eq(engineSpecs.shopId, actor.shopId)).orderBy(asc(engineSpecs.retiredAt), asc(engineSpecs.name));
+  const specs = await db
+    .select()
+    .from(engineSpecs)
+    .where(eq(engineSpecs.shopId, actor.shopId))
+    .orderBy(asc(engineSpecs.retiredAt), asc(engineSpecs.name));
   const ids = specs.map((s) => s.id);
-  const values = ids.length ? await db.select().from(specValues).where(inArray(specValues.engineSpecId, ids)) : [];
+  const values = ids.length
+    ? await db.select().from(specValues).where(inArray(specValues.engineSpecId, ids))
+    : [];
   const usage = await jobsUsingSpecs(db, actor.shopId, ids);
-  const openIds = [...usage.values()].flat().filter((j) => !isClosed(j.status)).map((j) => j.id);
+  const openIds = [...usage.values()]
+    .flat()
+    .filter((j) => !isClosed(j.status))
+    .map((j) => j.id);
   const overrides = openIds.length
-    ? await db.select({ jobId: jobSpecOverrides.jobId, key: jobSpecOverrides.key }).from(jobSpecOverrides).where(inArray(jobSpecOverrides.jobId, openIds))
+    ? await db
+        .select({ jobId: jobSpecOverrides.jobId, key: jobSpecOverrides.key })
+        .from(jobSpecOverrides)
+        .where(inArray(jobSpecOverrides.jobId, openIds))
     : [];
   const manage = can(actor.role, "specs:manage");
   return (
@@ -60,27 +80,48 @@ export default async function SpecsPage() {
       <div>
         <h1 className="text-2xl font-bold tracking-tight">Specifications library</h1>
         <p className="text-stone-600">
-          Each engine&apos;s figures, saved once and used by every job on that engine, in the unit the manual gives them (kept in SI for the checks). A job can override a figure; its sheets say which was used.
+          Each engine&apos;s figures, saved once and used by every job on that engine, in the unit
+          the manual gives them (kept in SI for the checks). A job can override a figure; its sheets
+          say which was used.
         </p>
       </div>
       {manage ? (
-        <section className="rounded-xl border border-stone-300 bg-white p-4" aria-label="Add an engine">
+        <section
+          className="rounded-xl border border-stone-300 bg-white p-4"
+          aria-label="Add an engine"
+        >
           <NewEngineSpecForm />
         </section>
       ) : null}
-      {specs.length === 0 ? <p className="rounded-xl border border-dashed border-stone-400 p-6 text-center">No engines in the library yet.</p> : null}
+      {specs.length === 0 ? (
+        <p className="rounded-xl border border-dashed border-stone-400 p-6 text-center">
+          No engines in the library yet.
+        </p>
+      ) : null}
       {specs.map((s) => {
         const jobsOn = usage.get(s.id) ?? [];
         const open = jobsOn.filter((j) => !isClosed(j.status));
         const affected: Partial<Record<SpecKey, string>> = {};
         for (const key of SPEC_KEY_LIST) {
-          affected[key] = affectedSentence(open.filter((j) => !overrides.some((o) => o.jobId === j.id && o.key === key)), false);
+          affected[key] = affectedSentence(
+            open.filter((j) => !overrides.some((o) => o.jobId === j.id && o.key === key)),
+            false,
+          );
         }
         return (
-          <section key={s.id} id={`spec-${s.id}`} className={`rounded-xl border border-stone-300 p-4 ${s.retiredAt ? "bg-stone-50" : "bg-white"}`} aria-label={s.name}>
+          <section
+            key={s.id}
+            id={`spec-${s.id}`}
+            className={`rounded-xl border border-stone-300 p-4 ${s.retiredAt ? "bg-stone-50" : "bg-white"}`}
+            aria-label={s.name}
+          >
             <h2 className="text-lg font-semibold">
               {s.name}
-              {s.retiredAt ? <span className="ml-2 rounded bg-stone-200 px-1.5 py-0.5 text-sm font-semibold text-stone-700">Retired</span> : null}
+              {s.retiredAt ? (
+                <span className="ml-2 rounded bg-stone-200 px-1.5 py-0.5 text-sm font-semibold text-stone-700">
+                  Retired
+                </span>
+              ) : null}
             </h2>
             {s.source ? <p className="text-sm text-stone-500">Source: {s.source}</p> : null}
             <div className="mt-2 overflow-x-auto">
@@ -119,10 +160,15 @@ export default async function SpecsPage() {
                   {jobsOn.map((j, i) => (
                     <span key={j.id}>
                       {i > 0 ? ", " : null}
-                      <Link href={`/jobs/${j.id}`} className="figure font-semibold underline underline-offset-2">
+                      <Link
+                        href={`/jobs/${j.id}`}
+                        className="figure font-semibold underline underline-offset-2"
+                      >
                         {j.number}
                       </Link>{" "}
-                      <span className="text-stone-600">({JOB_STATUS_LABELS[j.status].toLowerCase()})</span>
+                      <span className="text-stone-600">
+                        ({JOB_STATUS_LABELS[j.status].toLowerCase()})
+                      </span>
                     </span>
                   ))}
                 </p>
@@ -131,11 +177,18 @@ export default async function SpecsPage() {
             {manage ? (
               <>
                 <details className="mt-2">
-                  <summary className="min-h-11 cursor-pointer py-2.5 font-semibold">Add or change a figure</summary>
-                  <SpecFigureForm target={{ kind: "library", engineSpecId: s.id }} affected={affected} />
+                  <summary className="min-h-11 cursor-pointer py-2.5 font-semibold">
+                    Add or change a figure
+                  </summary>
+                  <SpecFigureForm
+                    target={{ kind: "library", engineSpecId: s.id }}
+                    affected={affected}
+                  />
                 </details>
                 <details className="mt-1">
-                  <summary className="min-h-11 cursor-pointer py-2.5 font-semibold">Rename or retire</summary>
+                  <summary className="min-h-11 cursor-pointer py-2.5 font-semibold">
+                    Rename or retire
+                  </summary>
                   <EngineSpecSettings id={s.id} name={s.name} retired={s.retiredAt !== null} />
                 </details>
               </>
