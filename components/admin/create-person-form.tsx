@@ -46,23 +46,12 @@ export function CreatePersonForm() {
     <form onSubmit={onSubmit} noValidate className="grid grid-cols-1 gap-3 sm:grid-cols-2">
       <label className="flex flex-col gap-1 font-semibold">
         Name
-        <input
-          className={field}
-          autoComplete="off"
-          aria-describedby="new-name-error"
-          {...register("name")}
-        />
+        <input className={field} autoComplete="off" aria-describedby="new-name-error" {...register("name")} />
         {err("name")}
       </label>
       <label className="flex flex-col gap-1 font-semibold">
         E-mail
-        <input
-          className={field}
-          type="email"
-          autoComplete="off"
-          aria-describedby="new-email-error"
-          {...register("email")}
-        />
+        <input className={field} type="email" autoComplete="off" aria-describedby="new-email-error" {...register("email")} />
         {err("email")}
       </label>
       <label className="flex flex-col gap-1 font-semibold">
@@ -77,25 +66,14 @@ export function CreatePersonForm() {
       </label>
       <label className="flex flex-col gap-1 font-semibold">
         First password
-        <input
-          className={field}
-          type="password"
-          autoComplete="new-password"
-          aria-describedby="new-password-hint new-password-error"
-          {...register("password")}
-        />
+        <input className={field} type="password" autoComplete="new-password" aria-describedby="new-password-hint new-password-error" {...register("password")} />
         <span id="new-password-hint" className="text-sm font-normal text-stone-600">
-          At least 10 characters; a short sentence works well. Not a common password, and not the
-          person&apos;s name or e-mail.
+          At least 10 characters; a short sentence works well. Not a common password, and not the person&apos;s name or e-mail.
         </span>
         {err("password")}
       </label>
       <div className="flex flex-wrap items-center gap-3 sm:col-span-2">
-        <button
-          type="submit"
-          disabled={pending}
-          className="min-h-12 rounded-lg bg-ink px-5 font-semibold text-white disabled:opacity-60"
-        >
+        <button type="submit" disabled={pending} className="min-h-12 rounded-lg bg-ink px-5 font-semibold text-white disabled:opacity-60">
           {pending ? "Adding…" : "Add person"}
         </button>
         <p aria-live="polite" className={result?.ok ? "text-emerald-800" : "text-rose-700"}>

@@ -11,13 +11,7 @@ import { ConflictError, NotFoundError } from "@/lib/errors";
 import { isClosed } from "@/lib/jobs/lifecycle";
 import { SPEC_KEYS, type SpecKey } from "@/lib/specs/keys";
 import { affectedOpenJobs, affectedSentence } from "@/lib/specs/usage";
-import {
-  engineSpecSchema,
-  renameEngineSpecSchema,
-  retireEngineSpecSchema,
-  specFigureSchema,
-  type SpecFigure,
-} from "@/lib/validations/specs";
+import { engineSpecSchema, renameEngineSpecSchema, retireEngineSpecSchema, specFigureSchema, type SpecFigure } from "@/lib/validations/specs";
 import { storableText } from "@/lib/validations/text";
 import { actionFailure, type ActionState } from "./state";
 
@@ -64,27 +58,13 @@ export async function createEngineSpec(_prev: ActionState, f: FormData): Promise
     const v = engineSpecSchema.parse({ name: text(f, "name"), source: text(f, "source") ?? "" });
     const db = await getDb();
     await db.transaction(async (tx) => {
-      const [row] = await tx
-        .insert(engineSpecs)
-        .values({ shopId: actor.shopId, name: v.name, source: v.source || null })
-        .returning();
-      await recordAudit(tx, {
-        actorId: actor.id,
-        action: "spec.created",
-        entityType: "engine_spec",
-        entityId: row!.id,
-        after: v,
-      });
+      const [row] = await tx.insert(engineSpecs).values({ shopId: actor.shopId, name: v.name, source: v.source || null }).returning();
+      await recordAudit(tx, { actorId: actor.id, action: "spec.created", entityType: "engine_spec", entityId: row!.id, after: v });
     });
     revalidatePath("/specs");
     return { ok: true, message: `${v.name} added to the library.`, fieldErrors: {} };
   } catch (err) {
-    if (isUniqueViolation(err))
-      return {
-        ok: false,
-        message: "The library already has that engine.",
-        fieldErrors: { name: ["Already in the library."] },
-      };
+    if (isUniqueViolation(err)) return { ok: false, message: "The library already has that engine.", fieldErrors: { name: ["Already in the library."] } };
     return actionFailure(err);
   }
 }
@@ -97,15 +77,9 @@ export async function saveSpecFigure(_prev: ActionState, f: FormData): Promise<A
     const key = v.key as SpecKey;
     const db = await getDb();
     const affected = await db.transaction(async (tx) => {
-      const [spec] = await tx
-        .select()
-        .from(engineSpecs)
-        .where(and(eq(engineSpecs.id, specId), eq(engineSpecs.shopId, actor.shopId)));
+      const [spec] = await tx.select().from(engineSpecs).where(and(eq(engineSpecs.id, specId), eq(engineSpecs.shopId, actor.shopId)));
       if (!spec) throw new NotFoundError("That engine is not in your library.");
-      const [before] = await tx
-        .select()
-        .from(specValues)
-        .where(and(eq(specValues.engineSpecId, specId), eq(specValues.key, key)));
+      const [before] = await tx.select().from(specValues).where(and(eq(specValues.engineSpecId, specId), eq(specValues.key, key)));
       const values = { ...storedFigure(v), updatedAt: new Date() };
       if (before) await tx.update(specValues).set(values).where(eq(specValues.id, before.id));
       else await tx.insert(specValues).values({ engineSpecId: specId, key, ...values });
@@ -116,15 +90,7 @@ export async function saveSpecFigure(_prev: ActionState, f: FormData): Promise<A
         entityType: "engine_spec",
         entityId: specId,
         before: before
-          ? {
-              key,
-              min: before.minValue,
-              max: before.maxValue,
-              limit: before.limitValue,
-              nominal: before.nominalValue,
-              enteredUnit: before.enteredUnit,
-              entered: before.enteredText,
-            }
+          ? { key, min: before.minValue, max: before.maxValue, limit: before.limitValue, nominal: before.nominalValue, enteredUnit: before.enteredUnit, entered: before.enteredText }
           : null,
         after: {
           key,
@@ -140,11 +106,7 @@ export async function saveSpecFigure(_prev: ActionState, f: FormData): Promise<A
       return jobsReached;
     });
     revalidatePath("/specs");
-    return {
-      ok: true,
-      message: `${SPEC_KEYS[key].label} saved. ${affectedSentence(affected, true)}`,
-      fieldErrors: {},
-    };
+    return { ok: true, message: `${SPEC_KEYS[key].label} saved. ${affectedSentence(affected, true)}`, fieldErrors: {} };
   } catch (err) {
     return actionFailure(err);
   }
@@ -155,51 +117,24 @@ export async function saveJobOverride(_prev: ActionState, f: FormData): Promise<
     const actor = await requireActor("specs:manage");
     const jobId = z.string().uuid("Unknown job.").parse(text(f, "jobId"));
     const { reason } = z
-      .object({
-        reason: storableText(
-          z
-            .string()
-            .trim()
-            .min(3, "Say why this job differs from the library.")
-            .max(300, "Keep the reason under 300 characters."),
-        ),
-      })
+      .object({ reason: storableText(z.string().trim().min(3, "Say why this job differs from the library.").max(300, "Keep the reason under 300 characters.")) })
       .parse({ reason: text(f, "reason") ?? "" });
     const v = figureFrom(f);
     const key = v.key as SpecKey;
     const db = await getDb();
     await db.transaction(async (tx) => {
-      const [job] = await tx
-        .select()
-        .from(jobs)
-        .where(and(eq(jobs.id, jobId), eq(jobs.shopId, actor.shopId)))
-        .for("share");
+      const [job] = await tx.select().from(jobs).where(and(eq(jobs.id, jobId), eq(jobs.shopId, actor.shopId))).for("share");
       if (!job) throw new NotFoundError("That job does not exist in your shop.");
-      if (isClosed(job.status))
-        throw new ConflictError(`Job ${job.number} is signed off; its figures are read-only.`);
+      if (isClosed(job.status)) throw new ConflictError(`Job ${job.number} is signed off; its figures are read-only.`);
       const values = { ...storedFigure(v), reason, updatedAt: new Date() };
       await tx
         .insert(jobSpecOverrides)
         .values({ jobId, key, ...values })
-        .onConflictDoUpdate({
-          target: [jobSpecOverrides.jobId, jobSpecOverrides.key],
-          set: values,
-        });
-      await recordAudit(tx, {
-        actorId: actor.id,
-        action: "spec.job_override",
-        entityType: "job",
-        entityId: jobId,
-        jobId,
-        after: { key, ...values },
-      });
+        .onConflictDoUpdate({ target: [jobSpecOverrides.jobId, jobSpecOverrides.key], set: values });
+      await recordAudit(tx, { actorId: actor.id, action: "spec.job_override", entityType: "job", entityId: jobId, jobId, after: { key, ...values } });
     });
     revalidatePath(`/jobs/${jobId}`);
-    return {
-      ok: true,
-      message: `${SPEC_KEYS[key].label} overridden on this job.`,
-      fieldErrors: {},
-    };
+    return { ok: true, message: `${SPEC_KEYS[key].label} overridden on this job.`, fieldErrors: {} };
   } catch (err) {
     return actionFailure(err);
   }
@@ -219,33 +154,14 @@ export async function renameEngineSpec(_prev: ActionState, f: FormData): Promise
         .for("update");
       if (!spec) throw new NotFoundError("That engine is not in your library.");
       if (spec.name === v.name) return spec.name;
-      await tx
-        .update(engineSpecs)
-        .set({ name: v.name, updatedAt: new Date() })
-        .where(eq(engineSpecs.id, v.id));
-      await recordAudit(tx, {
-        actorId: actor.id,
-        action: "spec.renamed",
-        entityType: "engine_spec",
-        entityId: v.id,
-        before: { name: spec.name },
-        after: { name: v.name },
-      });
+      await tx.update(engineSpecs).set({ name: v.name, updatedAt: new Date() }).where(eq(engineSpecs.id, v.id));
+      await recordAudit(tx, { actorId: actor.id, action: "spec.renamed", entityType: "engine_spec", entityId: v.id, before: { name: spec.name }, after: { name: v.name } });
       return spec.name;
     });
     revalidatePath("/specs");
-    return {
-      ok: true,
-      message: before === v.name ? "The name is unchanged." : `${before} is now called ${v.name}.`,
-      fieldErrors: {},
-    };
+    return { ok: true, message: before === v.name ? "The name is unchanged." : `${before} is now called ${v.name}.`, fieldErrors: {} };
   } catch (err) {
-    if (isUniqueViolation(err))
-      return {
-        ok: false,
-        message: "The library already has an engine of that name.",
-        fieldErrors: { name: ["Already in the library."] },
-      };
+    if (isUniqueViolation(err)) return { ok: false, message: "The library already has an engine of that name.", fieldErrors: { name: ["Already in the library."] } };
     return actionFailure(err);
   }
 }
@@ -268,10 +184,7 @@ export async function setEngineSpecRetired(_prev: ActionState, f: FormData): Pro
       if (!spec) throw new NotFoundError("That engine is not in your library.");
       if ((spec.retiredAt !== null) === v.retired) return null;
       const retiredAt = v.retired ? new Date() : null;
-      await tx
-        .update(engineSpecs)
-        .set({ retiredAt, updatedAt: new Date() })
-        .where(eq(engineSpecs.id, v.id));
+      await tx.update(engineSpecs).set({ retiredAt, updatedAt: new Date() }).where(eq(engineSpecs.id, v.id));
       await recordAudit(tx, {
         actorId: actor.id,
         action: v.retired ? "spec.retired" : "spec.reinstated",
@@ -286,9 +199,7 @@ export async function setEngineSpecRetired(_prev: ActionState, f: FormData): Pro
     if (name === null) return { ok: true, message: "Nothing to change.", fieldErrors: {} };
     return {
       ok: true,
-      message: v.retired
-        ? `${name} is retired: not offered for new jobs; jobs that use it keep it.`
-        : `${name} is offered for new jobs again.`,
+      message: v.retired ? `${name} is retired: not offered for new jobs; jobs that use it keep it.` : `${name} is offered for new jobs again.`,
       fieldErrors: {},
     };
   } catch (err) {

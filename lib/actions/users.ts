@@ -9,13 +9,7 @@ import { requireActor } from "@/lib/auth/guard";
 import { recordAudit } from "@/lib/audit";
 import { BadRequestError, ConflictError, NotFoundError } from "@/lib/errors";
 import { passwordProblem } from "@/lib/validations/password-rules";
-import {
-  changeRoleSchema,
-  createUserSchema,
-  personSchema,
-  resetPasswordSchema,
-  setActiveSchema,
-} from "@/lib/validations/users";
+import { changeRoleSchema, createUserSchema, personSchema, resetPasswordSchema, setActiveSchema } from "@/lib/validations/users";
 import { actionFailure, type ActionState } from "./state";
 
 function isUniqueViolation(err: unknown): boolean {
@@ -30,14 +24,7 @@ async function assertAnotherAdmin(tx: Tx, shopId: string, personId: string): Pro
   const [others] = await tx
     .select({ n: sql<number>`count(*)::int` })
     .from(users)
-    .where(
-      and(
-        eq(users.shopId, shopId),
-        eq(users.role, "admin"),
-        ne(users.id, personId),
-        eq(users.active, true),
-      ),
-    );
+    .where(and(eq(users.shopId, shopId), eq(users.role, "admin"), ne(users.id, personId), eq(users.active, true)));
   if ((others?.n ?? 0) === 0) throw new ConflictError("The shop needs at least one active admin.");
 }
 
@@ -50,13 +37,7 @@ export async function createUser(input: unknown): Promise<ActionState> {
     await db.transaction(async (tx) => {
       const [created] = await tx
         .insert(users)
-        .values({
-          shopId: actor.shopId,
-          name: data.name,
-          email: data.email,
-          role: data.role,
-          passwordHash,
-        })
+        .values({ shopId: actor.shopId, name: data.name, email: data.email, role: data.role, passwordHash })
         .returning({ id: users.id });
       await recordAudit(tx, {
         actorId: actor.id,
@@ -70,11 +51,7 @@ export async function createUser(input: unknown): Promise<ActionState> {
     return { ok: true, message: `${data.name} can now sign in as ${data.role}.`, fieldErrors: {} };
   } catch (err) {
     if (isUniqueViolation(err)) {
-      return {
-        ok: false,
-        message: "Someone already uses that e-mail address.",
-        fieldErrors: { email: ["Already in use."] },
-      };
+      return { ok: false, message: "Someone already uses that e-mail address.", fieldErrors: { email: ["Already in use."] } };
     }
     return actionFailure(err);
   }
@@ -83,10 +60,7 @@ export async function createUser(input: unknown): Promise<ActionState> {
 export async function resetPassword(_prev: ActionState, formData: FormData): Promise<ActionState> {
   try {
     const actor = await requireActor("users:manage");
-    const data = resetPasswordSchema.parse({
-      id: formData.get("id"),
-      password: formData.get("password"),
-    });
+    const data = resetPasswordSchema.parse({ id: formData.get("id"), password: formData.get("password") });
     const db = await getDb();
     const [person] = await db
       .select({ email: users.email, name: users.name })
@@ -101,31 +75,15 @@ export async function resetPassword(_prev: ActionState, formData: FormData): Pro
       const [updated] = await tx
         .update(users)
         // A reset ends every session signed in with the old password.
-        .set({
-          passwordHash,
-          failedSignIns: 0,
-          lockedUntil: null,
-          sessionVersion: sql`${users.sessionVersion} + 1`,
-          updatedAt: new Date(),
-        })
+        .set({ passwordHash, failedSignIns: 0, lockedUntil: null, sessionVersion: sql`${users.sessionVersion} + 1`, updatedAt: new Date() })
         .where(and(eq(users.id, data.id), eq(users.shopId, actor.shopId)))
         .returning({ id: users.id });
       if (!updated) throw new NotFoundError("That person is not in your shop.");
       // The password itself is never written to the audit trail.
-      await recordAudit(tx, {
-        actorId: actor.id,
-        action: "user.password_reset",
-        entityType: "user",
-        entityId: data.id,
-      });
+      await recordAudit(tx, { actorId: actor.id, action: "user.password_reset", entityType: "user", entityId: data.id });
     });
     revalidatePath("/admin/people");
-    return {
-      ok: true,
-      message:
-        "Password reset; any lock on the account is cleared and every device signed in as them is signed out.",
-      fieldErrors: {},
-    };
+    return { ok: true, message: "Password reset; any lock on the account is cleared and every device signed in as them is signed out.", fieldErrors: {} };
   } catch (err) {
     return actionFailure(err);
   }
@@ -148,10 +106,7 @@ export async function changeRole(_prev: ActionState, formData: FormData): Promis
       if (!before) throw new NotFoundError("That person is not in your shop.");
       if (before.role === data.role) return;
       if (before.role === "admin") await assertAnotherAdmin(tx, actor.shopId, data.id);
-      await tx
-        .update(users)
-        .set({ role: data.role, updatedAt: new Date() })
-        .where(eq(users.id, data.id));
+      await tx.update(users).set({ role: data.role, updatedAt: new Date() }).where(eq(users.id, data.id));
       await recordAudit(tx, {
         actorId: actor.id,
         action: "user.role_changed",
@@ -176,8 +131,7 @@ export async function setActive(_prev: ActionState, formData: FormData): Promise
   try {
     const actor = await requireActor("users:manage");
     const data = setActiveSchema.parse({ id: formData.get("id"), active: formData.get("active") });
-    if (data.id === actor.id)
-      throw new BadRequestError("You cannot deactivate yourself; ask another admin.");
+    if (data.id === actor.id) throw new BadRequestError("You cannot deactivate yourself; ask another admin.");
     const db = await getDb();
     const changed = await db.transaction(async (tx) => {
       const [before] = await tx
@@ -190,20 +144,12 @@ export async function setActive(_prev: ActionState, formData: FormData): Promise
       if (!data.active && before.role === "admin") {
         // Lock every admin row of the shop first, so two admins deactivating each other at once
         // cannot both pass the check and leave the shop with none.
-        await tx
-          .select({ id: users.id })
-          .from(users)
-          .where(and(eq(users.shopId, actor.shopId), eq(users.role, "admin")))
-          .for("update");
+        await tx.select({ id: users.id }).from(users).where(and(eq(users.shopId, actor.shopId), eq(users.role, "admin"))).for("update");
         await assertAnotherAdmin(tx, actor.shopId, data.id);
       }
       await tx
         .update(users)
-        .set({
-          active: data.active,
-          sessionVersion: sql`${users.sessionVersion} + 1`,
-          updatedAt: new Date(),
-        })
+        .set({ active: data.active, sessionVersion: sql`${users.sessionVersion} + 1`, updatedAt: new Date() })
         .where(eq(users.id, data.id));
       await recordAudit(tx, {
         actorId: actor.id,
@@ -239,19 +185,10 @@ export async function endSessions(_prev: ActionState, formData: FormData): Promi
         .where(and(eq(users.id, data.id), eq(users.shopId, actor.shopId)))
         .returning({ id: users.id });
       if (!updated) throw new NotFoundError("That person is not in your shop.");
-      await recordAudit(tx, {
-        actorId: actor.id,
-        action: "user.sessions_ended",
-        entityType: "user",
-        entityId: data.id,
-      });
+      await recordAudit(tx, { actorId: actor.id, action: "user.sessions_ended", entityType: "user", entityId: data.id });
     });
     revalidatePath("/admin/people");
-    return {
-      ok: true,
-      message: "Signed out on every device; they sign in again with their password.",
-      fieldErrors: {},
-    };
+    return { ok: true, message: "Signed out on every device; they sign in again with their password.", fieldErrors: {} };
   } catch (err) {
     return actionFailure(err);
   }

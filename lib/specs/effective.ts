@@ -18,21 +18,11 @@ export interface EffectiveSpec {
 
 type Reader = Pick<Db, "select">;
 
-export async function effectiveSpecs(
-  db: Reader,
-  jobId: string,
-): Promise<Map<SpecKey, EffectiveSpec>> {
+export async function effectiveSpecs(db: Reader, jobId: string): Promise<Map<SpecKey, EffectiveSpec>> {
   const out = new Map<SpecKey, EffectiveSpec>();
-  const [job] = await db
-    .select({ engineSpecId: jobs.engineSpecId })
-    .from(jobs)
-    .where(eq(jobs.id, jobId))
-    .limit(1);
+  const [job] = await db.select({ engineSpecId: jobs.engineSpecId }).from(jobs).where(eq(jobs.id, jobId)).limit(1);
   if (job?.engineSpecId) {
-    const rows = await db
-      .select()
-      .from(specValues)
-      .where(eq(specValues.engineSpecId, job.engineSpecId));
+    const rows = await db.select().from(specValues).where(eq(specValues.engineSpecId, job.engineSpecId));
     for (const r of rows) {
       out.set(r.key as SpecKey, {
         key: r.key as SpecKey,
@@ -46,10 +36,7 @@ export async function effectiveSpecs(
       });
     }
   }
-  const overrides = await db
-    .select()
-    .from(jobSpecOverrides)
-    .where(eq(jobSpecOverrides.jobId, jobId));
+  const overrides = await db.select().from(jobSpecOverrides).where(eq(jobSpecOverrides.jobId, jobId));
   for (const r of overrides) {
     out.set(r.key as SpecKey, {
       key: r.key as SpecKey,
@@ -65,11 +52,7 @@ export async function effectiveSpecs(
   return out;
 }
 
-export async function effectiveSpec(
-  db: Reader,
-  jobId: string,
-  key: SpecKey,
-): Promise<EffectiveSpec | null> {
+export async function effectiveSpec(db: Reader, jobId: string, key: SpecKey): Promise<EffectiveSpec | null> {
   return (await effectiveSpecs(db, jobId)).get(key) ?? null;
 }
 
