@@ -27,6 +27,7 @@ afterAll(async () => {
 });
 
 const table = () => admin.getByTestId("people-table");
+const filter = () => admin.getByRole("search", { name: "Filter people" });
 const rowOf = (email: string) => table().locator(`tr[data-person="${email}"]`);
 
 describe("people who leave", () => {
@@ -60,19 +61,19 @@ describe("people who leave", () => {
     const count = admin.getByTestId("people-count");
     const all = Number((await count.innerText()).match(/of (\d+)/)![1]);
     expect(all).toBeGreaterThanOrEqual(5);
-    await admin.getByLabel("Name or e-mail").fill(`leaver-${stamp}`);
+    await filter().getByLabel("Name or e-mail").fill(`leaver-${stamp}`);
     await expect.poll(() => table().locator("tbody tr[data-person]").count()).toBe(1);
     expect(await count.innerText()).toBe(`Showing 1 of ${all}`);
-    await admin.getByLabel("Name or e-mail").fill("pell");
+    await filter().getByLabel("Name or e-mail").fill("pell");
     // "Pell Garrow" by name and the demo admin Tobin Pell: both match, nobody else.
     await expect.poll(() => table().locator("tbody tr[data-person]").count()).toBeGreaterThanOrEqual(2);
-    await admin.getByLabel("Role").selectOption("admin");
+    await filter().getByLabel("Role").selectOption("admin");
     await expect.poll(() => rowOf(leaver.email).count()).toBe(0);
     expect(await rowOf("admin@millrace.example").count()).toBe(1);
-    await admin.getByLabel("Name or e-mail").fill("nobody-by-this-name");
+    await filter().getByLabel("Name or e-mail").fill("nobody-by-this-name");
     await admin.getByText("Nobody matches the filter.").waitFor();
-    await admin.getByLabel("Name or e-mail").fill("");
-    await admin.getByLabel("Role").selectOption("");
+    await filter().getByLabel("Name or e-mail").fill("");
+    await filter().getByLabel("Role").selectOption("");
     await expect.poll(async () => (await count.innerText()) === `Showing ${all} of ${all}`).toBe(true);
   });
 
@@ -99,10 +100,10 @@ describe("people who leave", () => {
     await page.getByTestId("sign-in-error").waitFor();
 
     // The status filter finds them among the inactive.
-    await admin.getByLabel("Status").selectOption("inactive");
+    await filter().getByLabel("Status").selectOption("inactive");
     await expect.poll(() => rowOf(leaver.email).count()).toBe(1);
     expect(await rowOf("admin@millrace.example").count()).toBe(0);
-    await admin.getByLabel("Status").selectOption("");
+    await filter().getByLabel("Status").selectOption("");
 
     // An admin cannot deactivate themselves: there is no button for it.
     await admin.getByRole("button", { name: "Manage Tobin Pell" }).click();
