@@ -201,7 +201,7 @@ describe("which jobs a figure reaches", () => {
     });
     // The override keeps its own figure, in its own unit.
     const eff = await effectiveSpec(db(), jobId["MHW-0141"]!, "journal_clearance");
-    expect(eff).toMatchObject({ source: "job_override" });
+    expect(eff).toMatchObject({ source: "job_override", unit: "mm", enteredUnit: "in", entered: { min: "0.0016", max: "0.0035" } });
     expect(eff!.max).toBeCloseTo(0.0889, 6);
     // Another figure of the same engine still reaches both open jobs.
     expect(listJobs(await affectedOpenJobs(db(), shopId, specId, "deck_flatness"))).toBe(

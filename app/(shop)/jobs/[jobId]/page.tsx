@@ -18,6 +18,7 @@ import { getReviews, getUnapprovedSeatCodes } from "@/db/queries/reviews";
 import { effectiveSpecs } from "@/lib/specs/effective";
 import { getJobDoneChecks } from "@/lib/bench/done-checks";
 import { SPEC_KEYS } from "@/lib/specs/keys";
+import { unitLabel } from "@/lib/specs/units";
 import { requireActor } from "@/lib/auth/guard";
 import { can } from "@/lib/auth/roles";
 import { seatCode } from "@/lib/heads/layout";
@@ -49,7 +50,7 @@ export default async function JobPage({ params }: PageProps<"/jobs/[jobId]">) {
   // The technician (or a supervisor) may take a head back until the supervisor starts its audit.
   const mayWork = can(actor.role, "jobs:work") && (actor.role !== "technician" || !job.technician || job.technician.id === actor.id);
   const canTakeBack = job.status === "awaiting_audit" && mayWork && !(await auditStartedAt(db, job.id));
-  const range = (v: { min: number | null; max: number | null; limit: number | null; nominal: number | null }) =>
+  const range = (v: { min: number | string | null; max: number | string | null; limit: number | string | null; nominal: number | string | null }) =>
     [v.nominal !== null ? `${v.nominal}` : null, v.min !== null || v.max !== null ? `${v.min ?? "…"}–${v.max ?? "…"}` : null, v.limit !== null ? `limit ${v.limit}` : null]
       .filter(Boolean)
       .join(", ");
@@ -233,7 +234,21 @@ export default async function JobPage({ params }: PageProps<"/jobs/[jobId]">) {
               <li key={sp.key} className="flex justify-between gap-2 border-b border-stone-100 py-1">
                 <span>{SPEC_KEYS[sp.key]?.label ?? sp.key}</span>
                 <span className="figure text-right">
-                  {range(sp)} {sp.unit}
+                  {sp.enteredUnit && sp.entered && sp.enteredUnit !== sp.unit ? (
+                    <>
+                      {range({
+                        min: sp.entered.min ?? null,
+                        max: sp.entered.max ?? null,
+                        limit: sp.entered.limit ?? null,
+                        nominal: sp.entered.nominal ?? null,
+                      })}{" "}
+                      {unitLabel(sp.enteredUnit)} <span className="text-stone-500">({range(sp)} {sp.unit})</span>
+                    </>
+                  ) : (
+                    <>
+                      {range(sp)} {sp.unit}
+                    </>
+                  )}
                   <span className={`ml-2 rounded px-1.5 text-xs ${sp.source === "job_override" ? "bg-amber-200" : "bg-stone-100"}`}>
                     {sp.source === "job_override" ? `override: ${sp.note ?? ""}` : "library"}
                   </span>
