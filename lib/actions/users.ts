@@ -1,7 +1,7 @@
 "use server";
 
 import bcrypt from "bcryptjs";
-import { and, eq, ne, sql } from "drizzle-orm";
+import { and, asc, eq, ne, sql } from "drizzle-orm";
 import { revalidatePath } from "next/cache";
 import { getDb } from "@/db/client";
 import { users } from "@/db/schema";
@@ -134,6 +134,16 @@ export async function setActive(_prev: ActionState, formData: FormData): Promise
     if (data.id === actor.id) throw new BadRequestError("You cannot deactivate yourself; ask another admin.");
     const db = await getDb();
     const changed = await db.transaction(async (tx) => {
+      if (!data.active) {
+        // Take the shop's admin rows first, always in the same order, so two admins deactivating
+        // each other at once run one after the other and cannot leave the shop with none.
+        await tx
+          .select({ id: users.id })
+          .from(users)
+          .where(and(eq(users.shopId, actor.shopId), eq(users.role, "admin")))
+          .orderBy(asc(users.id))
+          .for("update");
+      }
       const [before] = await tx
         .select({ name: users.name, role: users.role, active: users.active })
         .from(users)
@@ -141,12 +151,7 @@ export async function setActive(_prev: ActionState, formData: FormData): Promise
         .for("update");
       if (!before) throw new NotFoundError("That person is not in your shop.");
       if (before.active === data.active) return null;
-      if (!data.active && before.role === "admin") {
-        // Lock every admin row of the shop first, so two admins deactivating each other at once
-        // cannot both pass the check and leave the shop with none.
-        await tx.select({ id: users.id }).from(users).where(and(eq(users.shopId, actor.shopId), eq(users.role, "admin"))).for("update");
-        await assertAnotherAdmin(tx, actor.shopId, data.id);
-      }
+      if (!data.active && before.role === "admin") await assertAnotherAdmin(tx, actor.shopId, data.id);
       await tx
         .update(users)
         .set({ active: data.active, sessionVersion: sql`${users.sessionVersion} + 1`, updatedAt: new Date() })
