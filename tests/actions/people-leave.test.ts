@@ -36,13 +36,14 @@ let admin: string;
 let dov: string;
 let shopId: string;
 
+// Seeding the demo shop hashes every demo password; on a busy machine that can take a minute.
 beforeAll(async () => {
   state.t = await freshPglite();
   await seedDemoShop(db());
   admin = await h.userId(db(), "admin@millrace.example");
   dov = await h.userId(db(), "dov@millrace.example");
   shopId = (await row(admin)).shopId;
-});
+}, 180_000);
 afterAll(async () => {
   await state.t?.cleanup();
 });

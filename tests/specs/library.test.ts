@@ -36,6 +36,7 @@ let shopId: string;
 let specId: string;
 const jobId: Record<string, string> = {};
 
+// Seeding the demo shop hashes every demo password; on a busy machine that can take a minute.
 beforeAll(async () => {
   state.t = await freshPglite();
   await seedDemoShop(db());
@@ -66,7 +67,7 @@ beforeAll(async () => {
       .returning({ id: jobs.id });
     jobId[number] = row!.id;
   }
-});
+}, 180_000);
 afterAll(async () => {
   await state.t?.cleanup();
 });
