@@ -109,6 +109,8 @@ export const users = pgTable(
     // Carried in every session token; a password reset, a deactivation or "end all sessions" moves
     // it on, and a token with an older one no longer signs anyone in.
     sessionVersion: integer("session_version").notNull().default(0),
+    // The last sign-in with the right password; null for someone who never signed in.
+    lastSignInAt: timestamp("last_sign_in_at", { withTimezone: true }),
     ...timestamps,
   },
   (t) => [
@@ -445,6 +447,8 @@ export const engineSpecs = pgTable(
       .references(() => shops.id, { onDelete: "restrict" }),
     name: text("name").notNull(),
     source: text("source"),
+    // A retired engine is not offered for new jobs; jobs that already use it keep it.
+    retiredAt: timestamp("retired_at", { withTimezone: true }),
     ...timestamps,
   },
   (t) => [unique("engine_specs_shop_name_unique").on(t.shopId, t.name)],
@@ -457,10 +461,17 @@ const specColumns = {
   maxValue: real("max_value"),
   limitValue: real("limit_value"),
   nominalValue: real("nominal_value"),
-  // SI base unit of the key's quantity: "mm", "N·m" or "N".
+  // SI base unit of the key's quantity: "mm", "N·m" or "N". The four values above are in it.
   unit: text("unit").notNull(),
+  // The unit the figure was typed in (a manual in inches, a torque in lbf·ft) and the figures as
+  // typed, so the library shows them as the manual gives them; null for figures typed in SI before.
+  enteredUnit: text("entered_unit"),
+  enteredText: jsonb("entered_text").$type<EnteredFigures>(),
   note: text("note"),
 };
+
+/** The figures of a spec value as they were typed, in `enteredUnit`. */
+export type EnteredFigures = Partial<Record<"min" | "max" | "limit" | "nominal", string>>;
 
 export const specValues = pgTable(
   "spec_values",

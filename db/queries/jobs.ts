@@ -107,7 +107,8 @@ export interface JobDetail {
   notes: string | null;
   engineSpecId: string | null;
   customer: { id: string; name: string; email: string | null; phone: string | null };
-  technician: { id: string; name: string } | null;
+  /** `left`: the person was deactivated since; the job keeps their name. */
+  technician: { id: string; name: string; left: boolean } | null;
   heads: Array<
     Head & {
       camshafts: Array<{ id: string; position: number; label: string; journalCount: number }>;
@@ -118,7 +119,7 @@ export interface JobDetail {
 
 export async function getJob(db: Db, shopId: string, jobId: string): Promise<JobDetail | null> {
   const [row] = await db
-    .select({ job: jobs, customer: customers, techName: technician.name })
+    .select({ job: jobs, customer: customers, techName: technician.name, techActive: technician.active })
     .from(jobs)
     .innerJoin(customers, eq(customers.id, jobs.customerId))
     .leftJoin(technician, eq(technician.id, jobs.assignedTechnicianId))
@@ -166,7 +167,8 @@ export async function getJob(db: Db, shopId: string, jobId: string): Promise<Job
     notes: row.job.notes,
     engineSpecId: row.job.engineSpecId,
     customer: { id: row.customer.id, name: row.customer.name, email: row.customer.email, phone: row.customer.phone },
-    technician: row.job.assignedTechnicianId && row.techName ? { id: row.job.assignedTechnicianId, name: row.techName } : null,
+    technician:
+      row.job.assignedTechnicianId && row.techName ? { id: row.job.assignedTechnicianId, name: row.techName, left: row.techActive === false } : null,
     heads: result,
   };
 }

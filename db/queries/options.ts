@@ -1,5 +1,5 @@
 // Choices for forms: customers, people who can lap, and the specifications library.
-import { asc, eq, ne, and } from "drizzle-orm";
+import { asc, eq, ne, and, isNull, or } from "drizzle-orm";
 import type { Db } from "@/db/client";
 import { customers, engineSpecs, users } from "@/db/schema";
 
@@ -21,6 +21,16 @@ export async function lapperChoices(db: Db, shopId: string): Promise<Choice[]> {
     .orderBy(asc(users.name));
 }
 
-export async function engineSpecChoices(db: Db, shopId: string): Promise<Choice[]> {
-  return db.select({ id: engineSpecs.id, label: engineSpecs.name }).from(engineSpecs).where(eq(engineSpecs.shopId, shopId)).orderBy(asc(engineSpecs.name));
+/**
+ * Engines offered for a job: those not retired, and the job's own engine (`keepId`) even when it
+ * is retired, so editing a job never drops the engine it was booked on.
+ */
+export async function engineSpecChoices(db: Db, shopId: string, keepId?: string | null): Promise<Choice[]> {
+  const offered = keepId ? or(isNull(engineSpecs.retiredAt), eq(engineSpecs.id, keepId)) : isNull(engineSpecs.retiredAt);
+  const rows = await db
+    .select({ id: engineSpecs.id, label: engineSpecs.name, retiredAt: engineSpecs.retiredAt })
+    .from(engineSpecs)
+    .where(and(eq(engineSpecs.shopId, shopId), offered))
+    .orderBy(asc(engineSpecs.name));
+  return rows.map((r) => ({ id: r.id, label: r.retiredAt ? `${r.label} (retired)` : r.label }));
 }

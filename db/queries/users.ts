@@ -10,6 +10,8 @@ export interface PersonRow {
   active: boolean;
   lockedUntil: string | null;
   locked: boolean;
+  /** ISO time of the last sign-in with the right password; null when they never signed in. */
+  lastSignInAt: string | null;
 }
 
 export async function listPeople(db: Db, shopId: string): Promise<PersonRow[]> {
@@ -22,9 +24,14 @@ export async function listPeople(db: Db, shopId: string): Promise<PersonRow[]> {
       active: users.active,
       lockedUntil: users.lockedUntil,
       locked: sql<boolean>`coalesce(${users.lockedUntil} > now(), false)`,
+      lastSignInAt: users.lastSignInAt,
     })
     .from(users)
     .where(eq(users.shopId, shopId))
     .orderBy(asc(users.name));
-  return rows.map((r) => ({ ...r, lockedUntil: r.lockedUntil ? r.lockedUntil.toISOString() : null }));
+  return rows.map((r) => ({
+    ...r,
+    lockedUntil: r.lockedUntil ? r.lockedUntil.toISOString() : null,
+    lastSignInAt: r.lastSignInAt ? r.lastSignInAt.toISOString() : null,
+  }));
 }

@@ -30,7 +30,8 @@ function initials(name: string): string {
 
 type Tx = Parameters<Parameters<Awaited<ReturnType<typeof getDb>>["transaction"]>[0]>[0];
 
-async function checkRefs(tx: Tx, actorId: string, shopId: string, v: JobFormValues): Promise<string> {
+/** `keepSpecId`: the engine the job already has, which it keeps even when it is retired. */
+async function checkRefs(tx: Tx, actorId: string, shopId: string, v: JobFormValues, keepSpecId: string | null = null): Promise<string> {
   if (v.assignedTechnicianId) {
     const [tech] = await tx
       .select({ role: users.role })
@@ -42,10 +43,13 @@ async function checkRefs(tx: Tx, actorId: string, shopId: string, v: JobFormValu
   }
   if (v.engineSpecId) {
     const [spec] = await tx
-      .select({ id: engineSpecs.id })
+      .select({ id: engineSpecs.id, name: engineSpecs.name, retiredAt: engineSpecs.retiredAt })
       .from(engineSpecs)
       .where(and(eq(engineSpecs.id, v.engineSpecId), eq(engineSpecs.shopId, shopId)));
     if (!spec) throw new BadRequestError("That engine is not in your library.", { engineSpecId: ["Choose from the list."] });
+    if (spec.retiredAt && spec.id !== keepSpecId) {
+      throw new BadRequestError(`${spec.name} is retired from the library: choose another engine.`, { engineSpecId: ["Retired: choose another engine."] });
+    }
   }
   if (v.customerId) {
     const [c] = await tx.select({ id: customers.id }).from(customers).where(and(eq(customers.id, v.customerId), eq(customers.shopId, shopId)));
@@ -137,7 +141,7 @@ export async function updateJob(jobId: string, input: unknown): Promise<JobActio
       const [before] = await tx.select().from(jobs).where(and(eq(jobs.id, jobId), eq(jobs.shopId, actor.shopId))).for("update");
       if (!before) throw new NotFoundError("That job does not exist in your shop.");
       if (isClosed(before.status)) throw new ConflictError(`Job ${before.number} is signed off; a supervisor must reopen it before it is edited.`);
-      const customerId = await checkRefs(tx, actor.id, actor.shopId, v);
+      const customerId = await checkRefs(tx, actor.id, actor.shopId, v, before.engineSpecId);
       await tx
         .update(jobs)
         .set({

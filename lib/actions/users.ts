@@ -1,7 +1,7 @@
 "use server";
 
 import bcrypt from "bcryptjs";
-import { and, eq, ne, sql } from "drizzle-orm";
+import { and, asc, eq, ne, sql } from "drizzle-orm";
 import { revalidatePath } from "next/cache";
 import { getDb } from "@/db/client";
 import { users } from "@/db/schema";
@@ -134,13 +134,23 @@ export async function setActive(_prev: ActionState, formData: FormData): Promise
     if (data.id === actor.id) throw new BadRequestError("You cannot deactivate yourself; ask another admin.");
     const db = await getDb();
     const changed = await db.transaction(async (tx) => {
+      if (!data.active) {
+        // Take the shop's admin rows first, always in the same order, so two admins deactivating
+        // each other at once run one after the other and cannot leave the shop with none.
+        await tx
+          .select({ id: users.id })
+          .from(users)
+          .where(and(eq(users.shopId, actor.shopId), eq(users.role, "admin")))
+          .orderBy(asc(users.id))
+          .for("update");
+      }
       const [before] = await tx
-        .select({ role: users.role, active: users.active })
+        .select({ name: users.name, role: users.role, active: users.active })
         .from(users)
         .where(and(eq(users.id, data.id), eq(users.shopId, actor.shopId)))
         .for("update");
       if (!before) throw new NotFoundError("That person is not in your shop.");
-      if (before.active === data.active) return false;
+      if (before.active === data.active) return null;
       if (!data.active && before.role === "admin") await assertAnotherAdmin(tx, actor.shopId, data.id);
       await tx
         .update(users)
@@ -148,17 +158,20 @@ export async function setActive(_prev: ActionState, formData: FormData): Promise
         .where(eq(users.id, data.id));
       await recordAudit(tx, {
         actorId: actor.id,
-        action: data.active ? "user.reactivated" : "user.deactivated",
+        action: data.active ? "person.reactivated" : "person.deactivated",
         entityType: "user",
         entityId: data.id,
-        before: { active: before.active },
-        after: { active: data.active },
+        before: { name: before.name, active: before.active },
+        after: { name: before.name, active: data.active },
       });
-      return true;
+      return before.name;
     });
     revalidatePath("/admin/people");
-    const message = data.active ? "They can sign in again." : "Deactivated: they are signed out everywhere and cannot sign in.";
-    return { ok: true, message: changed ? message : "Nothing to change.", fieldErrors: {} };
+    if (changed === null) return { ok: true, message: "Nothing to change.", fieldErrors: {} };
+    const message = data.active
+      ? `${changed} can sign in again.`
+      : `${changed} is deactivated: signed out everywhere at once, and cannot sign in. Their jobs, reviews and audit entries keep their name.`;
+    return { ok: true, message, fieldErrors: {} };
   } catch (err) {
     return actionFailure(err);
   }

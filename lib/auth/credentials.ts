@@ -39,13 +39,12 @@ export async function checkCredentials(
   }
   const matches = await bcrypt.compare(password, user.passwordHash);
   if (matches) {
-    if (user.failedSignIns !== 0 || user.lockedUntil) {
-      await db
-        .update(users)
-        .set({ failedSignIns: 0, lockedUntil: null, updatedAt: now })
-        .where(eq(users.id, user.id));
-    }
-    return { ok: true, user };
+    // Every sign-in with the right password is the person's last sign-in, which the admin sees.
+    await db
+      .update(users)
+      .set({ failedSignIns: 0, lockedUntil: null, lastSignInAt: now, updatedAt: now })
+      .where(eq(users.id, user.id));
+    return { ok: true, user: { ...user, failedSignIns: 0, lockedUntil: null, lastSignInAt: now } };
   }
   // Count in SQL so two wrong guesses at once both count.
   const [after] = await db

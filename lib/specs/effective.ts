@@ -2,7 +2,7 @@
 // with where each value came from, so the report can say so.
 import { and, eq } from "drizzle-orm";
 import type { Db } from "@/db/client";
-import { jobSpecOverrides, jobs, specValues } from "@/db/schema";
+import { jobSpecOverrides, jobs, specValues, type EnteredFigures } from "@/db/schema";
 import type { SpecKey } from "./keys";
 
 export interface EffectiveSpec {
@@ -12,6 +12,9 @@ export interface EffectiveSpec {
   limit: number | null;
   nominal: number | null;
   unit: string;
+  /** The unit and figures as typed (a manual in inches or lbf·ft); null when typed in SI before units were kept. */
+  enteredUnit: string | null;
+  entered: EnteredFigures | null;
   source: "library" | "job_override";
   note: string | null;
 }
@@ -31,6 +34,8 @@ export async function effectiveSpecs(db: Reader, jobId: string): Promise<Map<Spe
         limit: r.limitValue,
         nominal: r.nominalValue,
         unit: r.unit,
+        enteredUnit: r.enteredUnit,
+        entered: r.enteredText,
         source: "library",
         note: r.note,
       });
@@ -45,6 +50,8 @@ export async function effectiveSpecs(db: Reader, jobId: string): Promise<Map<Spe
       limit: r.limitValue,
       nominal: r.nominalValue,
       unit: r.unit,
+      enteredUnit: r.enteredUnit,
+      entered: r.enteredText,
       source: "job_override",
       note: r.reason,
     });

@@ -241,6 +241,14 @@ async function throwawayPerson(n: number): Promise<string> {
   return u!.id;
 }
 
+async function throwawayEngine(n: number): Promise<string> {
+  const [spec] = await db()
+    .insert(engineSpecs)
+    .values({ shopId: (await h.actorOf(db(), EMAIL.admin)).shopId, name: `Matrix engine to keep ${n}` })
+    .returning({ id: engineSpecs.id });
+  return spec!.id;
+}
+
 async function failedMail(c: CaseContext): Promise<string> {
   const id = await enqueueMail(db(), {
     kind: "head_report",
@@ -545,6 +553,14 @@ const CASES: Record<string, Case> = {
         prev,
         form({ name: shop!.name, address: shop!.address ?? "", phone: `01632 961 ${String(c.n).padStart(3, "0")}`, timeZone: shop!.timeZone }),
       );
+  },
+  "lib/actions/specs.ts#renameEngineSpec": async (c) => {
+    const id = await throwawayEngine(c.n);
+    return () => action("lib/actions/specs.ts#renameEngineSpec")(prev, form({ id, name: `Matrix engine renamed ${c.n}` }));
+  },
+  "lib/actions/specs.ts#setEngineSpecRetired": async (c) => {
+    const id = await throwawayEngine(c.n);
+    return () => action("lib/actions/specs.ts#setEngineSpecRetired")(prev, form({ id, retired: "true" }));
   },
   "lib/actions/users.ts#createUser": async (c) => {
     return () =>

@@ -666,6 +666,9 @@ export const actionCases: ActionCase[] = [
   { group: "people actions", name: "resetting another shop's password", as: ADMIN, message: /your shop/, run: (f) => userActions.resetPassword(initialActionState, form({ id: f.users.get(QUILL)!, password: "long-enough-pw" })) },
   { group: "people actions", name: "resetting a person id that climbs paths", as: ADMIN, field: "id", run: () => userActions.resetPassword(initialActionState, form({ id: TRAVERSAL_ID, password: "long-enough-pw" })) },
   { group: "people actions", name: "an unknown role on change", as: ADMIN, field: "role", run: (f) => userActions.changeRole(initialActionState, form({ id: f.users.get(DOV)!, role: "owner" })) },
+  { group: "people actions", name: "deactivating another shop's person", as: ADMIN, message: /your shop/, run: (f) => userActions.setActive(initialActionState, form({ id: f.users.get(QUILL)!, active: "false" })) },
+  { group: "people actions", name: "active=maybe", as: ADMIN, field: "active", run: (f) => userActions.setActive(initialActionState, form({ id: f.users.get(DOV)!, active: "maybe" })) },
+  { group: "people actions", name: "an admin deactivating themselves", as: ADMIN, message: /cannot deactivate yourself/, run: (f) => userActions.setActive(initialActionState, form({ id: f.users.get(ADMIN)!, active: "false" })) },
   { group: "people actions", name: "changing another shop's role", as: ADMIN, message: /your shop/, run: (f) => userActions.changeRole(initialActionState, form({ id: f.users.get(QUILL)!, role: "admin" })) },
   { group: "people actions", name: "a supervisor creating a person", as: RHEA, message: /admin/, run: () => userActions.createUser({ name: "Tam Ashby", email: "tam@millrace.example", role: "technician", password: "long-enough-pw" }) },
 
@@ -757,6 +760,15 @@ export const actionCases: ActionCase[] = [
   { group: "spec actions", name: "another shop's engine", as: RHEA, message: /your library/, run: (f) => specFigure(f, { engineSpecId: f.other.specId }) },
   { group: "spec actions", name: "a 1 MB engine name", as: RHEA, field: "name", run: () => specActions.createEngineSpec(initialActionState, form({ name: HUGE(MB), source: "" })) },
   { group: "spec actions", name: "a NUL byte in an engine name", as: RHEA, field: "name", run: () => specActions.createEngineSpec(initialActionState, form({ name: "Tor T14\u0000 1.4", source: "" })) },
+  { group: "spec actions", name: "a unit of another quantity (lbf·ft for a clearance)", as: RHEA, field: "unit", run: (f) => specFigure(f, { unit: "lbf·ft" }) },
+  { group: "spec actions", name: "an unknown unit", as: RHEA, field: "unit", run: (f) => specFigure(f, { unit: "furlong" }) },
+  { group: "spec actions", name: "a clearance of 40 in (1 016 mm)", as: RHEA, field: "max", run: (f) => specFigure(f, { unit: "in", min: "0.0015", max: "40" }) },
+  { group: "spec actions", name: "a cap torque of 9 000 lbf·ft", as: RHEA, field: "nominal", run: (f) => specFigure(f, { key: "cap_bolt_torque", unit: "lbf·ft", min: "", max: "", nominal: "9000" }) },
+  { group: "spec actions", name: "a figure written as 1e3", as: RHEA, field: "min", run: (f) => specFigure(f, { min: "1e3" }) },
+  { group: "spec actions", name: "renaming to an empty name", as: RHEA, field: "name", run: (f) => specActions.renameEngineSpec(initialActionState, form({ id: f.ownSpecId, name: " " })) },
+  { group: "spec actions", name: "renaming another shop's engine", as: RHEA, message: /your library/, run: (f) => specActions.renameEngineSpec(initialActionState, form({ id: f.other.specId, name: "Taken over" })) },
+  { group: "spec actions", name: "retiring with retired=maybe", as: RHEA, field: "retired", run: (f) => specActions.setEngineSpecRetired(initialActionState, form({ id: f.ownSpecId, retired: "maybe" })) },
+  { group: "spec actions", name: "retiring another shop's engine", as: RHEA, message: /your library/, run: (f) => specActions.setEngineSpecRetired(initialActionState, form({ id: f.other.specId, retired: "true" })) },
   { group: "spec actions", name: "overriding another shop's job", as: RHEA, message: /your shop/, run: (f) => specActions.saveJobOverride(initialActionState, form({ jobId: f.other.jobId, reason: "Oversize journals fitted.", key: "journal_clearance", min: "0.05", max: "0.09" })) },
 
   // the sign-in check

@@ -4,6 +4,8 @@ import Link from "next/link";
 import { notFound } from "next/navigation";
 import { z } from "zod";
 import { getDb } from "@/db/client";
+import { eq } from "drizzle-orm";
+import { engineSpecs } from "@/db/schema";
 import { getJob, headSummary, seatCurves } from "@/db/queries/jobs";
 import { SeatMap, DEFAULT_SETTLED_THRESHOLD_DB } from "@/components/heads/seat-map";
 import { ApproveSettledForm } from "@/components/review/approve-settled-form";
@@ -20,6 +22,7 @@ import { getReviews, getUnapprovedSeatCodes } from "@/db/queries/reviews";
 import { effectiveSpecs } from "@/lib/specs/effective";
 import { getJobDoneChecks } from "@/lib/bench/done-checks";
 import { SPEC_KEYS } from "@/lib/specs/keys";
+import { unitLabel } from "@/lib/specs/units";
 import { requireActor } from "@/lib/auth/guard";
 import { can } from "@/lib/auth/roles";
 import { seatCode } from "@/lib/heads/layout";
@@ -44,6 +47,9 @@ export default async function JobPage({ params }: PageProps<"/jobs/[jobId]">) {
   if (!job) notFound();
   const closed = isClosed(job.status);
   const specs = [...(await effectiveSpecs(db, job.id)).values()];
+  const [engine] = job.engineSpecId
+    ? await db.select({ id: engineSpecs.id, name: engineSpecs.name, retiredAt: engineSpecs.retiredAt }).from(engineSpecs).where(eq(engineSpecs.id, job.engineSpecId))
+    : [];
   const reviews = await getReviews(db, actor.shopId, job.id);
   const doneChecks = await getJobDoneChecks(db, actor.shopId, job.id);
   const unapproved = await getUnapprovedSeatCodes(db, actor.shopId, job.id);
@@ -67,7 +73,7 @@ export default async function JobPage({ params }: PageProps<"/jobs/[jobId]">) {
   // The technician (or a supervisor) may take a head back until the supervisor starts its audit.
   const mayWork = can(actor.role, "jobs:work") && (actor.role !== "technician" || !job.technician || job.technician.id === actor.id);
   const canTakeBack = job.status === "awaiting_audit" && mayWork && !(await auditStartedAt(db, job.id));
-  const range = (v: { min: number | null; max: number | null; limit: number | null; nominal: number | null }) =>
+  const range = (v: { min: number | string | null; max: number | string | null; limit: number | string | null; nominal: number | string | null }) =>
     [v.nominal !== null ? `${v.nominal}` : null, v.min !== null || v.max !== null ? `${v.min ?? "…"}–${v.max ?? "…"}` : null, v.limit !== null ? `limit ${v.limit}` : null]
       .filter(Boolean)
       .join(", ");
@@ -112,7 +118,7 @@ export default async function JobPage({ params }: PageProps<"/jobs/[jobId]">) {
         <p className="text-lg font-semibold">{job.customer.name}</p>
         <p className="text-stone-700">{job.engineDescription}</p>
         <dl className="mt-2 grid grid-cols-2 gap-x-6 gap-y-1 text-sm sm:grid-cols-4">
-          <Fact label="Technician">{job.technician?.name ?? "Unassigned"}</Fact>
+          <Fact label="Technician">{job.technician ? `${job.technician.name}${job.technician.left ? " (left)" : ""}` : "Unassigned"}</Fact>
           <Fact label="Promised" figure>{formatDay(job.promisedOn)}</Fact>
           <Fact label="Contact">{job.customer.phone ?? job.customer.email ?? "—"}</Fact>
         </dl>
@@ -262,6 +268,15 @@ export default async function JobPage({ params }: PageProps<"/jobs/[jobId]">) {
         <h2 id="job-specs" className="mb-2 text-lg font-semibold">
           Specifications for this job
         </h2>
+        {engine ? (
+          <p className="mb-2 text-sm" data-testid="job-engine-spec">
+            Engine in the library:{" "}
+            <Link href={`/specs#spec-${engine.id}`} className="font-semibold underline underline-offset-2">
+              {engine.name}
+            </Link>
+            {engine.retiredAt ? <span className="ml-2 rounded bg-stone-200 px-1.5 text-xs">retired: kept for this job</span> : null}
+          </p>
+        ) : null}
         {specs.length === 0 ? (
           <p className="text-stone-600">No figures on file: choose an engine from the specifications library when editing the job, or enter figures with each reading.</p>
         ) : (
@@ -270,7 +285,21 @@ export default async function JobPage({ params }: PageProps<"/jobs/[jobId]">) {
               <li key={sp.key} className="flex justify-between gap-2 border-b border-stone-100 py-1">
                 <span>{SPEC_KEYS[sp.key]?.label ?? sp.key}</span>
                 <span className="figure text-right">
-                  {range(sp)} {sp.unit}
+                  {sp.enteredUnit && sp.entered && sp.enteredUnit !== sp.unit ? (
+                    <>
+                      {range({
+                        min: sp.entered.min ?? null,
+                        max: sp.entered.max ?? null,
+                        limit: sp.entered.limit ?? null,
+                        nominal: sp.entered.nominal ?? null,
+                      })}{" "}
+                      {unitLabel(sp.enteredUnit)} <span className="text-stone-500">({range(sp)} {sp.unit})</span>
+                    </>
+                  ) : (
+                    <>
+                      {range(sp)} {sp.unit}
+                    </>
+                  )}
                   <span className={`ml-2 rounded px-1.5 text-xs ${sp.source === "job_override" ? "bg-amber-200" : "bg-stone-100"}`}>
                     {sp.source === "job_override" ? `override: ${sp.note ?? ""}` : "library"}
                   </span>

@@ -21,7 +21,7 @@ export default async function EditJobPage({ params }: PageProps<"/jobs/[jobId]/e
   const [customers, lappers, specs] = await Promise.all([
     customerChoices(db, actor.shopId),
     lapperChoices(db, actor.shopId),
-    engineSpecChoices(db, actor.shopId),
+    engineSpecChoices(db, actor.shopId, job.engineSpecId),
   ]);
   const head = job.heads[0];
   const locked = job.heads.some((h) => h.seats.some((s) => s.state !== "waiting"));
