@@ -127,6 +127,7 @@ export const AUDIT_WORDS: Readonly<Record<string, Words>> = {
   "spec.job_override": (c) => [`${c.who} set this job's own ${specKeyWords(c.after.key)} on `, c.job],
   "spec.renamed": (c) => [`${c.who} renamed ${named("engine", c.before.name)}${opt(" to", c.after.name)}`],
   "spec.retired": (c) => [`${c.who} retired ${named("engine", c.before.name ?? c.after.name)}`],
+  "spec.reinstated": (c) => [`${c.who} brought back ${named("engine", c.before.name ?? c.after.name)} for new jobs`],
   "user.created": (c) => [`${c.who} added ${str(c.after.name) ?? "a person"}${str(c.after.role) ? ` as ${roleWord(c.after.role).toLowerCase()}` : ""}`],
   "user.password_reset": (c) => [`${c.who} reset the password of ${c.person}`],
   "user.role_changed": (c) =>
@@ -142,6 +143,7 @@ export const AUDIT_WORDS: Readonly<Record<string, Words>> = {
   "customer_link.created": (c) => [`${c.who} made a report link for the customer of `, c.job],
   "customer_link.opened": (c) => [`${c.who} opened the customer's report link for `, c.job],
   "customer_link.revoked": (c) => [`${c.who} revoked the customer's report link for `, c.job],
+  "customer_link.refused": (c) => [`${c.who} tried a customer's report link that was ${c.after.why === "revoked" ? "revoked" : "out of date"}, for `, c.job],
   "customer.created": (c) => [`${c.who} added ${named("customer", c.after.name)}`],
   "customer.updated": (c) => [`${c.who} updated the details of ${named("customer", c.after.name ?? c.before.name)}`],
   "shop.updated": (c) => [`${c.who} updated the shop's details`],

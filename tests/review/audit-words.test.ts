@@ -68,7 +68,7 @@ describe("every action has words", () => {
 
   it("finds the actions the code writes (the scan itself works)", () => {
     // A sample from each writer: reviews, hand-in's helper, sheets, bench, photos, people, the seed.
-    for (const a of ["seat.approved", "job.taken_back", "job.back_to_bench", "measurement.recorded", "torque.ticked", "seat.state_changed", "seat.photo_added", "user.deactivated", "job.created"]) {
+    for (const a of ["seat.approved", "job.taken_back", "job.back_to_bench", "measurement.recorded", "torque.ticked", "seat.state_changed", "seat.photo_added", "person.deactivated", "job.created"]) {
       expect(written.has(a), a).toBe(true);
     }
     expect(written.size).toBeGreaterThanOrEqual(30);
