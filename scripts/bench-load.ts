@@ -155,19 +155,47 @@ class PhoneConnection {
     const header = this.received.subarray(0, end).toString("latin1");
     const status = /^HTTP\/1\.[01] (\d{3})/.exec(header);
     const length = /\r\ncontent-length:\s*(\d+)/i.exec(header);
+    const chunked = /\r\ntransfer-encoding:\s*chunked/i.test(header);
     const w = this.waiting;
-    if (!status || !length) {
+    if (!status || (!length && !chunked)) {
       this.waiting = null;
-      w?.reject(new Error(`an answer without a status line or Content-Length: ${header.slice(0, 200)}`));
+      w?.reject(new Error(`an answer without a status line or a body length: ${header.slice(0, 200)}`));
       this.socket.destroy();
       return;
     }
-    const total = end + 4 + Number(length[1]);
-    if (this.received.length < total) return;
-    const body = this.received.subarray(end + 4, total).toString("utf8");
+    let body: Buffer;
+    let total: number;
+    if (length) {
+      total = end + 4 + Number(length[1]);
+      if (this.received.length < total) return;
+      body = this.received.subarray(end + 4, total);
+    } else {
+      // Chunked: <size in hex>\r\n<data>\r\n … 0\r\n\r\n (RFC 9112, 7.1).
+      const parts: Buffer[] = [];
+      let at = end + 4;
+      for (;;) {
+        const line = this.received.indexOf("\r\n", at);
+        if (line < 0) return;
+        const size = parseInt(this.received.subarray(at, line).toString("latin1"), 16);
+        if (Number.isNaN(size)) {
+          this.waiting = null;
+          w?.reject(new Error("a chunked answer with a bad chunk size"));
+          this.socket.destroy();
+          return;
+        }
+        if (this.received.length < line + 2 + size + 2) return;
+        if (size === 0) {
+          total = line + 4;
+          break;
+        }
+        parts.push(this.received.subarray(line + 2, line + 2 + size));
+        at = line + 2 + size + 2;
+      }
+      body = Buffer.concat(parts);
+    }
     this.received = this.received.subarray(total);
     this.waiting = null;
-    w?.resolve({ status: Number(status[1]), body });
+    w?.resolve({ status: Number(status[1]), body: body.toString("utf8") });
   }
 
   close(): void {
