@@ -8,6 +8,7 @@ import { Outbox, type FlushReport, type PendingStroke } from "@/lib/bench/outbox
 import { recoverTakes, Takes } from "@/lib/bench/takes";
 import { applySavedStrokes } from "@/lib/bench/saved-strokes";
 import type { SeatReport } from "@/lib/bench/service";
+import { keepSeatCopy } from "./offline-copy";
 
 async function fetchSeat(seatId: string): Promise<SeatReport> {
   const res = await fetch(`/api/seats/${seatId}`, { headers: { accept: "application/json" } });
@@ -118,7 +119,10 @@ export function useBenchSync(
     if (flushed.sent > 0 || (unread.current && flushed.stoppedBy === "done")) {
       const pending = await outbox().pendingStrokes(seatId);
       const applied = !unread.current && flushed.otherSent === 0 ? applySavedStrokes(reportRef.current, flushed.saved) : null;
-      if (applied) setReport(applied);
+      if (applied) {
+        setReport(applied);
+        keepSeatCopy(applied);
+      }
       else if (flushed.saved.some((s) => s.seatId === seatId) || flushed.otherSent > 0 || unread.current) unread.current = !(await refresh());
       if (!unread.current) setLocal((l) => l.filter((x) => pending.some((p) => p.stroke.clientId === x.stroke.clientId)));
     }
