@@ -1,10 +1,8 @@
-// The production server (`npm start`): Next.js's own request handler for everything, except the
-// one request that arrives many times a second from every phone at the bench — a stroke save —
-// which is answered directly (lib/server/stroke-save.ts) by the same code as its route handler,
-// without Next.js's per-request routing and rendering pipeline. It gets the same gate as every
-// other request: the origin check and headers of proxy.ts and next.config.ts, and the signed-in
-// check from the session cookie. `npm run dev` runs this same file with `--dev` (through tsx),
-// so development gets the same gate, request ids and log lines.
+// The production server (`npm start`): Next.js's own request handler for every request, behind a
+// thin gate of ours — a request id on every request and log line, methods nothing of ours serves
+// refused with 405 (Next.js cannot even read a TRACE), and the caller's address stamped for the
+// sign-in throttle. `npm run dev` runs this same file with `--dev` (through tsx), so development
+// gets the same gate, request ids and log lines.
 //
 // Built into .next/grindfade-server.cjs by `npm run build` (scripts/server-bundles.mjs).
 import http from "node:http";
@@ -38,9 +36,6 @@ async function main(): Promise<void> {
   const handle = app.getRequestHandler();
   // Runs instrumentation.ts: the database is opened (or the start refused) before we listen.
   await app.prepare();
-  // Only now: next/server, which the stroke path uses, needs what Next.js sets up as it prepares.
-  const { answerStrokeSave, strokeSaveTarget } = await import("@/lib/server/stroke-save");
-
   const { COMMON_HEADERS, API_POLICY } = await import("@/lib/security/headers");
   const { isServedMethod, METHOD_REFUSAL, SERVED_METHODS } = await import("@/lib/security/request-gate");
   const { ADDRESS_HEADER, clientAddress, stampAddress } = await import("@/lib/auth/throttle");
@@ -68,20 +63,7 @@ async function main(): Promise<void> {
     }
     // Who is asking, for the sign-in throttle: from the connection, or the trusted proxies' header.
     req.headers[ADDRESS_HEADER] = stampAddress(clientAddress(req.headers, req.socket.remoteAddress, trustedProxies), () => randomBytes(18).toString("base64url"));
-    const sessionId = strokeSaveTarget(req.method, req.url);
-    if (sessionId === null) {
-      void handle(req, res);
-      return;
-    }
-    answerStrokeSave(req, res, sessionId).catch((err: unknown) => {
-      const requestId = String(req.headers[REQUEST_ID_HEADER]);
-      log.error({ requestId, err }, "server error");
-      if (!res.headersSent) {
-        res.statusCode = 500;
-        res.setHeader("Content-Type", "application/json");
-      }
-      res.end(JSON.stringify({ error: "internal", message: `Something went wrong on the server. Try again in a moment; if it keeps happening, give an admin this code: ${requestId}.`, requestId }));
-    });
+    void handle(req, res);
   }
   server.keepAliveTimeout = 5_000;
 

@@ -9,7 +9,6 @@ import * as schema from "./schema";
 import { DatabaseStartError, DatabaseStoppingError } from "@/lib/errors";
 import { serverEnv } from "@/lib/env";
 import { installGracefulShutdown } from "./shutdown";
-import { registerStrokeSubmitter } from "./stroke-submitters";
 
 export type Db = PgDatabase<PgQueryResultHKT, typeof schema>;
 
@@ -70,7 +69,14 @@ export function checkPgliteDirectory(dir: string): "new" | "existing" {
 
 /** Where PGlite runs: on the app's own thread, or on a thread of its own (the built db/pglite-thread script). */
 export interface PgliteOptions {
-  thread?: { script: string | URL; execArgv?: string[]; onUnexpectedStop?: (err: Error) => void };
+  thread?: {
+    script: string | URL;
+    execArgv?: string[];
+    /** Told when the thread stops without being closed; by default the process stops. */
+    onUnexpectedStop?: (err: Error) => void;
+    /** Given the thread once it serves (a supervisor may watch or stop it). */
+    onStarted?: (worker: import("node:worker_threads").Worker) => void;
+  };
 }
 
 function cannotOpen(dir: string, err: unknown): DatabaseStartError {
@@ -84,68 +90,83 @@ function cannotOpen(dir: string, err: unknown): DatabaseStartError {
 async function openPglite(dir: string, options: PgliteOptions = {}): Promise<DatabaseHandle> {
   checkPgliteDirectory(dir);
   fs.mkdirSync(dir, { recursive: true });
-  const { drizzle } = await import("drizzle-orm/pglite");
-  const { migrate } = await import("drizzle-orm/pglite/migrator");
-  if (options.thread) {
-    const { RemotePglite } = await import("./pglite-remote");
-    let remote: Awaited<ReturnType<typeof RemotePglite.open>>;
-    try {
-      remote = await RemotePglite.open(dir, options.thread.script, { execArgv: options.thread.execArgv });
-    } catch (err) {
-      throw cannotOpen(dir, err);
-    }
-    // Without its database the server can answer nothing: it stops with one line, and whatever
-    // restarts it gets a database that replays its log, as after any crash.
-    remote.onUnexpectedStop = options.thread.onUnexpectedStop ?? ((err) => {
-      console.error(`Grindfade cannot go on: ${err.message} The server stops; start it again.`);
-      process.exit(1);
-    });
-    // drizzle's PGlite driver calls only what RemotePglite answers: query, exec and transaction.
-    const db = drizzle({ client: remote as never, schema }) as unknown as Db;
-    await migrate(db as never, { migrationsFolder: migrationsFolder() });
-    registerStrokeSubmitter(db, (save) => remote.submitStrokes(save));
-    return { db, kind: "pglite", onThread: true, busy: () => remote.busy(), close: () => remote.close() };
-  }
-  const { PGlite } = await import("@electric-sql/pglite");
-  let client: InstanceType<typeof PGlite>;
+  let served: { socketDir: string; close(): Promise<void> };
   try {
-    client = new PGlite(dir);
-    await client.waitReady;
+    served = options.thread ? await serveOnThread(dir, options.thread) : await (await import("./pglite-socket")).servePglite(dir);
   } catch (err) {
     throw cannotOpen(dir, err);
   }
-  const busy = countActivity(client);
-  const db = drizzle({ client, schema });
-  await migrate(db, { migrationsFolder: migrationsFolder() });
-  return { db: db as unknown as Db, kind: "pglite", busy, close: () => client.close() };
+  const { SOCKET_PORT } = await import("./pglite-socket");
+  let handle: DatabaseHandle;
+  try {
+    handle = await connect({ host: served.socketDir, port: SOCKET_PORT, user: "postgres", database: "postgres" }, "pglite");
+  } catch (err) {
+    await served.close().catch(() => {});
+    throw err instanceof DatabaseStartError ? err : cannotOpen(dir, err);
+  }
+  return {
+    ...handle,
+    onThread: Boolean(options.thread),
+    close: async () => {
+      await handle.close();
+      await served.close();
+    },
+  };
 }
 
 /**
- * Counts the client's queries and transactions from the call until they settle (PGlite runs
- * one at a time, so this includes the ones waiting for their turn). The graceful stop reads it.
+ * Starts the database thread (the built db/pglite-thread script) on `dir` and waits until it
+ * serves. Without its database the server can answer nothing: should the thread stop on its own,
+ * the process stops with one line, and whatever restarts it gets a database that replays its log,
+ * as after any crash.
  */
-function countActivity<C extends { query: unknown; exec: unknown; transaction: unknown }>(client: C): () => boolean {
-  let inFlight = 0;
-  for (const name of ["query", "exec", "transaction"] as const) {
-    const original = (client[name] as (...args: unknown[]) => Promise<unknown>).bind(client);
-    const counted = async (...args: unknown[]) => {
-      inFlight++;
+async function serveOnThread(dir: string, thread: NonNullable<PgliteOptions["thread"]>): Promise<{ socketDir: string; close(): Promise<void> }> {
+  const { Worker } = await import("node:worker_threads");
+  const worker = new Worker(thread.script, { workerData: { dir }, execArgv: thread.execArgv });
+  let closing = false;
+  const socketDir = await new Promise<string>((resolve, reject) => {
+    worker.once("message", (m: { ready: boolean; socketDir?: string; error?: string }) => (m.ready ? resolve(m.socketDir!) : reject(new Error(m.error))));
+    worker.once("error", reject);
+    worker.once("exit", (code) => reject(new Error(`The database thread stopped (exit code ${code}).`)));
+  });
+  const onStop = thread.onUnexpectedStop ?? ((err: Error) => {
+    console.error(`Grindfade cannot go on: ${err.message} The server stops; start it again.`);
+    process.exit(1);
+  });
+  let stopped = false;
+  const stop = (err: Error) => {
+    if (closing || stopped) return;
+    stopped = true;
+    onStop(err);
+  };
+  worker.on("error", stop);
+  worker.on("exit", (code) => stop(new Error(`The database thread stopped (exit code ${code}).`)));
+  thread.onStarted?.(worker);
+  return {
+    socketDir,
+    close: async () => {
+      closing = true;
+      if (stopped) return;
+      const closed = new Promise<void>((resolve, reject) => {
+        worker.once("message", (m: { closed?: boolean; error?: string }) => (m.closed ? resolve() : reject(new Error(m.error))));
+        worker.once("exit", () => resolve());
+      });
+      worker.postMessage("close");
       try {
-        return await original(...args);
+        await closed;
       } finally {
-        inFlight--;
+        await worker.terminate();
       }
-    };
-    Object.defineProperty(client, name, { value: counted, configurable: true, writable: true });
-  }
-  return () => inFlight > 0;
+    },
+  };
 }
 
-async function openPostgres(url: string): Promise<DatabaseHandle> {
+/** A pool on a PostgreSQL server, or on the embedded database's socket, migrated. */
+async function connect(config: import("pg").PoolConfig, kind: DatabaseHandle["kind"]): Promise<DatabaseHandle> {
   const { Pool } = await import("pg");
   const { drizzle } = await import("drizzle-orm/node-postgres");
   const { migrate } = await import("drizzle-orm/node-postgres/migrator");
-  const pool = new Pool({ connectionString: url, connectionTimeoutMillis: 5000, max: 10 });
+  const pool = new Pool({ connectionTimeoutMillis: 5000, max: 10, ...config });
   try {
     const c = await pool.connect();
     c.release();
@@ -153,14 +174,20 @@ async function openPostgres(url: string): Promise<DatabaseHandle> {
     await pool.end().catch(() => {});
     const reason = err instanceof Error ? err.message : String(err);
     throw new DatabaseStartError(
-      `DATABASE_URL: the PostgreSQL server could not be reached (${reason || "connection refused"}).`,
+      kind === "postgres"
+        ? `DATABASE_URL: the PostgreSQL server could not be reached (${reason || "connection refused"}).`
+        : `The embedded database could not be reached on its socket (${reason}).`,
     );
   }
   const db = drizzle({ client: pool, schema });
   await migrate(db, { migrationsFolder: migrationsFolder() });
   // A checked-out client is running a query or holding a transaction.
   const busy = () => pool.waitingCount > 0 || pool.totalCount > pool.idleCount;
-  return { db: db as unknown as Db, kind: "postgres", busy, close: () => pool.end() };
+  return { db: db as unknown as Db, kind, busy, close: () => pool.end() };
+}
+
+function openPostgres(url: string): Promise<DatabaseHandle> {
+  return connect({ connectionString: url }, "postgres");
 }
 
 /** Opens a database without touching the process-wide one (migration tests, scripts). */

@@ -24,6 +24,7 @@ const MAX_ASSETS = 400;
 const ID = "[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}";
 const BENCH_PAGE = new RegExp(`^/bench/(${ID})$`, "i");
 const SEAT_DATA = new RegExp(`^/api/seats/(${ID})$`, "i");
+const SEAT_ID = new RegExp(`^${ID}$`, "i");
 const HASHED = /^\/_next\/static\//;
 const WORKLET = /^\/worklets\/[\w.-]+\.js$/;
 
@@ -85,6 +86,12 @@ self.addEventListener("fetch", (event) => {
 // it listens (the analysis worker and the worklet load only then).
 self.addEventListener("message", (event) => {
   const data = event.data;
+  // The screen's copy of a seat, brought up to date from its own stroke saves (it no longer reads
+  // the seat after each stroke): kept in place of the last read, so an offline reload shows it.
+  if (data && data.type === "seat" && typeof data.seatId === "string" && SEAT_ID.test(data.seatId) && typeof data.json === "string") {
+    event.waitUntil(keepSeatCopy(data.seatId, data.json));
+    return;
+  }
   if (!data || data.type !== "keep" || typeof data.path !== "string") return;
   const seat = BENCH_PAGE.exec(data.path);
   if (!seat) return;
@@ -130,6 +137,20 @@ async function sweep() {
     const res = await cache.match(key);
     if (!res || Date.now() - storedAt(res) > SESSION_MS) await cache.delete(key);
   }
+}
+
+/**
+ * Replaces the kept copy of a seat with the screen's own; only a seat this worker already keeps
+ * (read while signed in, not forgotten since), and never larger than a seat read could be.
+ */
+async function keepSeatCopy(seatId, json) {
+  if (json.length > 2_000_000) return;
+  const cache = await caches.open(PAGES);
+  const existing = await cache.match(dataKey(seatId), { ignoreVary: true, ignoreSearch: true });
+  if (!existing) return;
+  const headers = new Headers(existing.headers);
+  headers.set(STORED_AT, String(Date.now()));
+  await cache.put(dataKey(seatId), new Response(json, { status: 200, headers }));
 }
 
 async function forgetSeat(seatId) {

@@ -13,3 +13,9 @@ export function keepOfflineCopy(): void {
       /* no offline copy: the screen still works online, and queued strokes still wait in IndexedDB */
     });
 }
+
+/** Hands the offline worker the screen's up-to-date copy of the seat, to show after an offline reload. */
+export function keepSeatCopy(report: { seat: { id: string } }): void {
+  if (process.env.NODE_ENV !== "production" || !("serviceWorker" in navigator)) return;
+  navigator.serviceWorker.controller?.postMessage({ type: "seat", seatId: report.seat.id, json: JSON.stringify(report) });
+}

@@ -6,7 +6,9 @@
 import { useCallback, useEffect, useRef, useState } from "react";
 import { Outbox, type FlushReport, type PendingStroke } from "@/lib/bench/outbox";
 import { recoverTakes, Takes } from "@/lib/bench/takes";
+import { applySavedStrokes } from "@/lib/bench/saved-strokes";
 import type { SeatReport } from "@/lib/bench/service";
+import { keepSeatCopy } from "./offline-copy";
 
 async function fetchSeat(seatId: string): Promise<SeatReport> {
   const res = await fetch(`/api/seats/${seatId}`, { headers: { accept: "application/json" } });
@@ -52,7 +54,12 @@ export function useBenchSync(
 ): BenchSync {
   const seatId = initial.seat.id;
   // Plain fetch keeps the bench screen's first load small.
-  const [report, setReport] = useState<SeatReport>(initial);
+  const [report, setReportState] = useState<SeatReport>(initial);
+  const reportRef = useRef(initial);
+  const setReport = useCallback((r: SeatReport) => {
+    reportRef.current = r;
+    setReportState(r);
+  }, []);
   const [local, setLocal] = useState<PendingStroke[]>([]);
   const [pendingCount, setPendingCount] = useState(0);
   const [syncNote, setSyncNote] = useState<string | null>(null);
@@ -76,7 +83,7 @@ export function useBenchSync(
     } catch {
       return false; // keep showing the last copy; the sync note says what is pending
     }
-  }, [seatId]);
+  }, [seatId, setReport]);
 
   const sync = useCallback(async (): Promise<SyncNote> => {
     let flushed: FlushReport;
@@ -105,15 +112,22 @@ export function useBenchSync(
             ? "The server is busy; strokes are kept and will be resent."
             : null,
     );
-    // Sent strokes leave the local list only once the server's copy of the seat has them; a read
-    // that failed (the network dropped right after the send) is tried again at the next sync.
+    // Sent strokes leave the local list only once the screen's copy of the seat has them. Stroke
+    // saves alone bring it up to date from their answers; anything else sent, or answers that do
+    // not add up, read the seat again. A read that failed (the network dropped right after the
+    // send) is tried again at the next sync.
     if (flushed.sent > 0 || (unread.current && flushed.stoppedBy === "done")) {
       const pending = await outbox().pendingStrokes(seatId);
-      unread.current = !(await refresh());
+      const applied = !unread.current && flushed.otherSent === 0 ? applySavedStrokes(reportRef.current, flushed.saved) : null;
+      if (applied) {
+        setReport(applied);
+        keepSeatCopy(applied);
+      }
+      else if (flushed.saved.some((s) => s.seatId === seatId) || flushed.otherSent > 0 || unread.current) unread.current = !(await refresh());
       if (!unread.current) setLocal((l) => l.filter((x) => pending.some((p) => p.stroke.clientId === x.stroke.clientId)));
     }
     return flushed.stoppedBy;
-  }, [outbox, refresh, seatId]);
+  }, [outbox, refresh, seatId, setReport]);
 
   // Strokes still in the outbox from before a reload belong on the curve too.
   useEffect(() => {

@@ -41,8 +41,20 @@ export type SendResult =
   | { kind: "refused"; status: number; message: string }
   | { kind: "signed-out" };
 
+/** Strokes the server confirmed in a flush, with its answer (lib/strokes: accepted, duplicates, seatState, verdict, strokeCount). */
+export interface SavedStrokes {
+  seatId: string;
+  sessionId: string;
+  strokes: StrokeInput[];
+  answer: unknown;
+}
+
 export interface FlushReport {
   sent: number;
+  /** Stroke saves the server confirmed, in the order they were sent. */
+  saved: SavedStrokes[];
+  /** Other things sent (session starts and ends, recordings): the seat's copy must be read again. */
+  otherSent: number;
   pending: number;
   refused: Array<{ op: StoredOp; message: string }>;
   /** Set aside in this run after the server failed on them too often. */
@@ -207,6 +219,8 @@ export class Outbox {
           ? {
               ...pass,
               sent: total.sent + pass.sent,
+              saved: [...total.saved, ...pass.saved],
+              otherSent: total.otherSent + pass.otherSent,
               refused: [...total.refused, ...pass.refused],
               setAside: [...total.setAside, ...pass.setAside],
               lastBody: pass.lastBody ?? total.lastBody,
@@ -224,7 +238,7 @@ export class Outbox {
     const db = await this.dbp;
     const stored = await db.getAll("ops");
     const ops = stored.filter((o) => !o.failed && o.setAside === undefined);
-    const report: FlushReport = { sent: 0, pending: 0, refused: [], setAside: [], stoppedBy: "done" };
+    const report: FlushReport = { sent: 0, saved: [], otherSent: 0, pending: 0, refused: [], setAside: [], stoppedBy: "done" };
     // A session refused by the server refuses everything recorded in it, in this flush or a
     // later one: its strokes, end and recording are kept, marked with the refusal, not sent.
     const blockedSessions = new Map<string, string>();
@@ -309,6 +323,9 @@ export class Outbox {
         await Promise.all([...batch.map((b) => tx.store.delete(b.seq)), tx.done]);
         report.sent += batch.length;
         report.lastBody = result.body;
+        if (op.kind === "stroke") {
+          report.saved.push({ seatId: op.seatId, sessionId: op.sessionId, strokes: batch.map((b) => (b as Extract<StoredOp, { kind: "stroke" }>).stroke), answer: result.body });
+        } else report.otherSent += 1;
       } else if (result.kind === "refused") {
         if (op.kind === "stroke" && result.status === 400 && batch.length > 1) {
           singlyUntil = i + batch.length;

@@ -38,7 +38,7 @@ import {
 } from "./rules";
 
 export { seatStateFor } from "./rules";
-export { saveStrokes, type StrokeSaveResult } from "./stroke-batch";
+export { saveStrokes, type StrokeSaveResult } from "@/lib/strokes/batch";
 
 export { SEAT_HOLD_SECONDS } from "./rules";
 

@@ -11,12 +11,12 @@ import { auditEntries, customers, jobs, lappingSessions, shops, strokes, valves,
 import { seedDemoShop } from "@/db/seed";
 import { SEAT_HOLD_REFRESH_SECONDS } from "@/lib/bench/rules";
 import { getSeatReport } from "@/lib/bench/service";
-import { saveStrokeBatch, StrokeSaveQueue, type StrokeSave, type StrokeSaveOutcome } from "@/lib/bench/stroke-batch";
+import { saveStrokeBatch, type StrokeSave, type StrokeSaveOutcome } from "@/lib/strokes/batch";
+import { StrokeSaveQueue } from "@/lib/strokes/queue";
 import { AppError } from "@/lib/errors";
 import { seatCode } from "@/lib/heads/layout";
 import { createHeadWithSeats } from "@/lib/heads/create";
 import type { StrokeInput } from "@/lib/validations/bench";
-import { strokeSubmitterFor } from "@/db/stroke-submitters";
 import { freshPglite, freshServerDatabase, serverUrl, type TestDatabase } from "../helpers/db";
 import { syntheticStroke } from "../helpers/strokes";
 import { userIds } from "./helpers";
@@ -182,19 +182,14 @@ async function record(db: Db, tw: Twin) {
 const server = serverUrl();
 const backends: Array<[string, () => Promise<TestDatabase>]> = [
   ["PGlite", () => freshPglite()],
-  // As the production server runs it: the batched saves go to the save queue on the database
-  // thread, all of a chunk at once, and it batches them as they arrive; the one-at-a-time saves
-  // they are compared with run here and reach the thread statement by statement.
+  // As the production server runs it: every statement reaches the database thread.
   ["PGlite on a thread of its own", () => freshPglite({ thread: true })],
 ];
 if (server) backends.push(["PostgreSQL server", () => freshServerDatabase(server)]);
 
-/** Saves sent together: to the database thread's queue when it has one (db/stroke-submitters.ts), else as one batch here. */
-async function writeBatch(db: Db, batch: StrokeSave[]): Promise<StrokeSaveOutcome[]> {
-  const submit = strokeSubmitterFor(db);
-  if (!submit) return saveStrokeBatch(db, batch);
-  const settled = await Promise.allSettled(batch.map((save) => submit(save)));
-  return settled.map((o) => (o.status === "fulfilled" ? { ok: true, result: o.value } : { ok: false, error: o.reason }));
+/** Saves sent together, written as one batch. */
+function writeBatch(db: Db, batch: StrokeSave[]): Promise<StrokeSaveOutcome[]> {
+  return saveStrokeBatch(db, batch);
 }
 
 describe.each(backends)("a batch of stroke saves on %s", (_name, open) => {
