@@ -99,7 +99,9 @@ async function openPglite(dir: string, options: PgliteOptions = {}): Promise<Dat
   const { SOCKET_PORT } = await import("./pglite-socket");
   let handle: DatabaseHandle;
   try {
-    handle = await connect({ host: served.socketDir, port: SOCKET_PORT, user: "postgres", database: "postgres" }, "pglite");
+    // One connection, kept open: PGlite runs one statement at a time, and its socket keeps an
+    // exchange whole only within one connection (db/pglite-socket.ts).
+    handle = await connect({ host: served.socketDir, port: SOCKET_PORT, user: "postgres", database: "postgres", max: 1, idleTimeoutMillis: 0 }, "pglite");
   } catch (err) {
     await served.close().catch(() => {});
     throw err instanceof DatabaseStartError ? err : cannotOpen(dir, err);
