@@ -182,4 +182,43 @@ describe("the customer's report", () => {
     await stranger.close();
     await context.close();
   });
+
+  // Runs after the sign-off above, which queued this head's report mail (to the supervisor only:
+  // Perrin Ashdown has no e-mail): the admin opens it in the outbox and sees what was sent.
+  it("shows the admin the queued report mail in the outbox: kind by name, attempts, the HTML sandboxed, the link readable", async () => {
+    const context = await browser.newContext(DESKTOP);
+    const admin = DEMO_USERS.find((u) => u.role === "admin")!;
+    const page = await signIn(context, baseURL, admin.email, admin.password);
+    await page.waitForURL((u) => !u.pathname.startsWith("/sign-in"));
+    await page.goto(`${baseURL}/admin/outbox`);
+    const table = page.getByTestId("outbox-table");
+    await table.waitFor();
+    expect(await table.locator("thead").innerText()).toContain("Sends tried");
+    const row = table.locator("tbody tr", { hasText: "MHW-0145" }).first();
+    const cells = row.locator("td");
+    // No codes: the kind is a name, the status a word; a sent message was tried at least once.
+    expect(await cells.nth(1).innerText()).toBe("Head report to customer");
+    const status = await cells.nth(4).innerText();
+    expect(["Waiting to go", "Going out", "Sent", "Failed"]).toContain(status);
+    if (status === "Sent") expect(Number(await cells.nth(5).innerText())).toBeGreaterThanOrEqual(1);
+    const subject = await cells.nth(3).innerText();
+    expect(subject).toContain("MHW-0145");
+    await row.getByRole("link", { name: subject }).click();
+    await page.waitForURL(/\/admin\/outbox\?message=[0-9a-f-]{36}#message$/);
+    const message = page.getByTestId("outbox-message");
+    await message.waitFor();
+    expect(await message.getByRole("heading", { level: 2 }).innerText()).toBe(subject);
+    // The HTML is shown in a frame with every sandbox restriction (no scripts, no same origin).
+    const frame = message.getByTestId("outbox-message-html");
+    expect(await frame.getAttribute("sandbox")).toBe("");
+    const inside = page.frameLocator('[data-testid="outbox-message-html"]');
+    await inside.locator("a").first().waitFor();
+    // The report link, readable and openable outside the frame, and the same in the text.
+    const link = await message.getByTestId("outbox-message-links").getByRole("link").first().innerText();
+    expect(link).toMatch(/^https?:\/\/\S+\/r\/[A-Za-z0-9_-]+$/);
+    expect(await inside.locator("a").first().getAttribute("href")).toBe(link);
+    await message.getByText("Plain-text version").click();
+    expect(await message.getByTestId("outbox-message-text").innerText()).toContain(link);
+    await context.close();
+  });
 });

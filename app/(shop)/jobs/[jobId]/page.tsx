@@ -271,7 +271,7 @@ export default async function JobPage({ params }: PageProps<"/jobs/[jobId]">) {
         {engine ? (
           <p className="mb-2 text-sm" data-testid="job-engine-spec">
             Engine in the library:{" "}
-            <Link href={`/specs#spec-${engine.id}`} className="font-semibold underline underline-offset-2">
+            <Link href={`/specs#spec-${engine.id}`} className="inline-flex min-h-11 min-w-11 items-center font-semibold underline underline-offset-2">
               {engine.name}
             </Link>
             {engine.retiredAt ? <span className="ml-2 rounded bg-stone-200 px-1.5 text-xs">retired: kept for this job</span> : null}
