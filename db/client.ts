@@ -181,6 +181,10 @@ async function connect(config: import("pg").PoolConfig, kind: DatabaseHandle["ki
         : `The embedded database could not be reached on its socket (${reason}).`,
     );
   }
+  // A connection lost while idle (the server restarted, the database thread stopped) is reported
+  // by the pool as an event; unheard, it would stop the process. The pool drops that connection
+  // and the next statement opens a new one; a thread that stopped is handled by its own watcher.
+  pool.on("error", (err) => console.error(`The database connection was lost while idle (${err.message}); the next statement reconnects.`));
   const db = drizzle({ client: pool, schema });
   await migrate(db, { migrationsFolder: migrationsFolder() });
   // A checked-out client is running a query or holding a transaction.
