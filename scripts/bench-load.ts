@@ -66,6 +66,8 @@ const DEFAULT_PG = "postgres://postgres@127.0.0.1:55432/postgres";
 interface Fixture {
   phones: Array<{ email: string; password: string; seatIds: string[] }>;
   catchup: Array<{ email: string; password: string; seatId: string }>;
+  /** A seat nobody else laps, for the highest-rate run. */
+  peak: { email: string; password: string; seatId: string };
 }
 
 async function prepareFixture(db: Db): Promise<Fixture> {
@@ -105,7 +107,8 @@ async function prepareFixture(db: Db): Promise<Fixture> {
     const tech = techs[c % techs.length]!;
     catchup.push({ email: tech.email, password: tech.password, seatId: await seatFor(tech.email) });
   }
-  return { phones, catchup };
+  const peakTech = techs[0]!;
+  return { phones, catchup, peak: { email: peakTech.email, password: peakTech.password, seatId: await seatFor(peakTech.email) } };
 }
 
 async function countStrokes(db: Db): Promise<number> {
@@ -120,14 +123,23 @@ async function countStrokes(db: Db): Promise<number> {
  * line, Content-Length and the body (the server's answers always carry Content-Length).
  */
 class PhoneConnection {
-  private readonly socket: net.Socket;
+  private socket!: net.Socket;
   private received: Buffer = Buffer.alloc(0);
   private waiting: { resolve(answer: { status: number; body: string }): void; reject(err: Error): void } | null = null;
   private readonly head: string;
 
-  constructor(base: URL, cookie: string) {
+  constructor(
+    private readonly base: URL,
+    cookie: string,
+  ) {
     this.head = `Host: ${base.host}\r\nOrigin: ${base.origin}\r\nCookie: ${cookie}\r\nConnection: keep-alive\r\n`;
-    this.socket = net.connect({ host: base.hostname, port: Number(base.port), noDelay: true });
+    this.open();
+  }
+
+  /** A new connection, as a browser opens one when the server has closed an idle one (keepAliveTimeout). */
+  private open(): void {
+    this.received = Buffer.alloc(0);
+    this.socket = net.connect({ host: this.base.hostname, port: Number(this.base.port), noDelay: true });
     this.socket.on("data", (chunk: Buffer) => this.read(chunk));
     const fail = (err: Error) => {
       const w = this.waiting;
@@ -140,7 +152,7 @@ class PhoneConnection {
 
   send(method: "GET" | "POST", target: string, body = ""): Promise<{ status: number; body: string }> {
     if (this.waiting) return Promise.reject(new Error("one request at a time on a phone's connection"));
-    if (this.socket.destroyed) return Promise.reject(new Error("the phone's connection is closed"));
+    if (this.socket.destroyed || this.socket.readyState === "closed") this.open();
     return new Promise((resolve, reject) => {
       this.waiting = { resolve, reject };
       const type = body ? "Content-Type: application/json\r\n" : "";
@@ -470,18 +482,17 @@ async function runOn(database: "PGlite" | "PostgreSQL", start: () => Promise<Run
       stored = (await countStrokes(check.db)) - before;
       await check.close();
     }
-    const tech = DEMO_USERS.find((u) => u.role === "technician")!;
-    const cookie = (await cookiesFor(server.baseURL, [tech])).get(tech.email)!;
+    const peakCookie = (await cookiesFor(server.baseURL, [fixture.peak])).get(fixture.peak.email)!;
     const peakSession = randomUUID();
-    const peakSeat = fixture.phones.find((p) => p.email === tech.email)!.seatIds.at(-1)!;
-    const opened = await fetch(`${server.baseURL}/api/seats/${peakSeat}/sessions`, {
+    const opened = await fetch(`${server.baseURL}/api/seats/${fixture.peak.seatId}/sessions`, {
       method: "POST",
-      headers: { "content-type": "application/json", origin: server.baseURL, cookie },
+      headers: { "content-type": "application/json", origin: server.baseURL, cookie: peakCookie },
       body: sessionStart(peakSession, 9999),
     });
-    if (opened.status !== 201) throw new Error(`opening the peak-rate session failed (${opened.status})`);
-    const peak = await peakRate(server.baseURL, cookie, [peakSession]);
-    console.log(`${database}: highest rate answered (figure, not a goal): ${peak.perS.toFixed(0)} single-stroke saves/s from 50 connections, p95 ${f1(peak.p95)} ms, non-2xx ${peak.non2xx}`);
+    if (opened.status === 201) {
+      const peak = await peakRate(server.baseURL, peakCookie, [peakSession]);
+      console.log(`${database}: highest rate answered (figure, not a goal): ${peak.perS.toFixed(0)} single-stroke saves/s from 50 connections, p95 ${f1(peak.p95)} ms, non-2xx ${peak.non2xx}`);
+    } else console.log(`${database}: highest rate not measured: opening its session answered ${opened.status}`);
 
     const heldOk = held.failures.length === 0 && saveP95 <= GOALS.p95Ms && readP95 <= GOALS.p95Ms;
     goals.push(
