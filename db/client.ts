@@ -1,5 +1,5 @@
-// The only place a database is opened. Embedded PGlite in a data directory by default; a
-// PostgreSQL server through node-postgres when DATABASE_URL is set. Migrations (and the demo
+// The only place a database is opened: a PostgreSQL server when DATABASE_URL is set, else embedded
+// PGlite in a data directory, served on its own socket (db/pglite-socket.ts) — node-postgres either way. Migrations (and the demo
 // seed, on an empty database) are applied once per process, before the first query.
 import fs from "node:fs";
 import path from "node:path";
@@ -90,13 +90,13 @@ function cannotOpen(dir: string, err: unknown): DatabaseStartError {
 async function openPglite(dir: string, options: PgliteOptions = {}): Promise<DatabaseHandle> {
   checkPgliteDirectory(dir);
   fs.mkdirSync(dir, { recursive: true });
+  const { servePglite, SOCKET_PORT } = await import("./pglite-socket");
   let served: { socketDir: string; close(): Promise<void> };
   try {
-    served = options.thread ? await serveOnThread(dir, options.thread) : await (await import("./pglite-socket")).servePglite(dir);
+    served = options.thread ? await serveOnThread(dir, options.thread) : await servePglite(dir);
   } catch (err) {
     throw cannotOpen(dir, err);
   }
-  const { SOCKET_PORT } = await import("./pglite-socket");
   let handle: DatabaseHandle;
   try {
     // One connection, kept open: PGlite runs one statement at a time, and its socket keeps an

@@ -5,9 +5,9 @@ import { ZodError } from "zod";
 
 
 // Every error carries the kinds it is (its class and those above it) under a process-wide symbol,
-// and `instanceof` reads them: the production server's own bundle, Next.js's bundle and the
-// database thread each hold a copy of these classes, and an error made by one copy must still be
-// recognised by another (a refusal from the database thread, answered by the server's stroke path).
+// and `instanceof` reads them: the production server's own bundle (server.ts) and Next.js's
+// bundles each hold a copy of these classes, and an error made by one copy must still be
+// recognised by another.
 const KINDS = Symbol.for("grindfade.error.kinds");
 
 export class AppError extends Error {
@@ -164,10 +164,8 @@ export interface ApiErrorBody {
   requestId?: string;
 }
 
-/** The status and JSON body an error is answered with (errorResponse, and the production server's own stroke path). */
 /**
- * The status and JSON body an error is answered with (errorResponse, and the production server's
- * own stroke path). A refusal is logged as one line without a stack; a server error logs its
+ * The status and JSON body an error is answered with (errorResponse's, and a test's to read). A refusal is logged as one line without a stack; a server error logs its
  * stack once, with the request id that its answer also carries.
  */
 export function errorAnswer(err: unknown, requestId: string | undefined = currentRequestId()): { status: number; body: ApiErrorBody } {

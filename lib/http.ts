@@ -63,22 +63,6 @@ export async function readJson<T>(req: Request, schema: ZodType<T>, maxBytes: nu
   return parseJsonText(await readLimitedText(req, maxBytes), schema);
 }
 
-/**
- * readJson's checks, in its order, on a body that was read already (no further than one byte past
- * `maxBytes`) by a server outside Next.js: the content type, the declared and the actual length,
- * UTF-8, JSON, then the schema.
- */
-export function readJsonBytes<T>(
-  head: { contentType: string | null; contentLength: string | null },
-  body: Uint8Array,
-  schema: ZodType<T>,
-  maxBytes: number = MAX_JSON_BYTES,
-): T {
-  if (!isJsonType(head.contentType)) throw notJson();
-  if ((head.contentLength !== null && Number(head.contentLength) > maxBytes) || body.byteLength > maxBytes) throw tooLarge(maxBytes);
-  return parseJsonText(utf8(body), schema);
-}
-
 const notJson = () => new UnsupportedMediaTypeError("Send the body as JSON, with Content-Type: application/json.");
 
 function utf8(bytes: Uint8Array): string {

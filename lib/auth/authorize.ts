@@ -1,5 +1,5 @@
 // Who may do what, decided from a signed-in person's role: pure, with no tie to next-auth, so the
-// production server's own stroke path (lib/server/stroke-save.ts) uses the same decision.
+// stroke save's batch (lib/strokes/batch.ts) decides for each save from the row it read.
 import { users, type UserRole } from "@/db/schema";
 import { ForbiddenError, UnauthorizedError } from "@/lib/errors";
 import { can, type Permission } from "./roles";

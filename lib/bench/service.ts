@@ -68,9 +68,6 @@ async function loadSeat(db: Reader, shopId: string, seatId: string, lock = false
   return row;
 }
 
-
-
-
 export interface StageRecord {
   stage: LappingStage;
   sessions: Array<{ id: string; technicianName: string; startedAt: string; endedAt: string | null; hasRecording: boolean }>;
@@ -121,8 +118,6 @@ export async function sentBackReason(db: Db, seatId: string): Promise<SeatReport
     .limit(1);
   return latest?.decision === "sent_back" ? { comment: latest.comment ?? "", by: latest.by, at: latest.at.toISOString() } : null;
 }
-
-
 
 /** Both stages of a seat, with sessions, strokes and verdicts: two queries, whatever the count. */
 async function stageRecords(db: Reader, seatId: string): Promise<Record<LappingStage, StageRecord>> {
@@ -188,33 +183,6 @@ async function stageRecords(db: Reader, seatId: string): Promise<Record<LappingS
   };
   return { coarse: record("coarse"), fine: record("fine") };
 }
-
-/**
- * The verdicts a stroke save needs, from one query that reads only what the verdict looks at:
- * the given stage's and, for the seat's state, the fine stage's.
- */
-async function stageVerdicts(
-  db: Reader,
-  seatId: string,
-  stage: LappingStage,
-): Promise<{ current: SeatVerdict; fine: SeatVerdict; currentStrokes: number }> {
-  const rows = await db
-    .select({
-      stage: lappingSessions.stage,
-      startS: strokes.startS,
-      contrastDb: strokes.contrastDb,
-      flags: strokes.flags,
-    })
-    .from(strokes)
-    .innerJoin(lappingSessions, eq(lappingSessions.id, strokes.sessionId))
-    .where(stage === "fine" ? and(eq(lappingSessions.seatId, seatId), eq(lappingSessions.stage, "fine")) : eq(lappingSessions.seatId, seatId))
-    .orderBy(...STROKE_ORDER);
-  const of = (st: LappingStage) => rows.filter((r) => r.stage === st);
-  const currentList = of(stage);
-  const current = judgeStage(currentList);
-  return { current, fine: stage === "fine" ? current : judgeStage(of("fine")), currentStrokes: currentList.length };
-}
-
 
 async function nextSeatInHead(db: Reader, ctx: SeatContext): Promise<string | null> {
   const all = await db
